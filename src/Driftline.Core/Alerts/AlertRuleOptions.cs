@@ -1,0 +1,68 @@
+using Driftline.Core.Options;
+
+namespace Driftline.Core.Alerts;
+
+/// <summary>
+/// One alert rule over a count window of labels, with hysteresis: it raises when the measure
+/// crosses <see cref="Raise"/> and clears only when it comes back past <see cref="Clear"/>,
+/// so a value hovering at the threshold does not flap.
+/// </summary>
+internal sealed class AlertRuleOptions
+{
+    /// <summary>Name shown in alerts. Required.</summary>
+    public string Name { get; set; } = "";
+
+    /// <summary>The measure watched.</summary>
+    public AlertMetric Metric { get; set; } = AlertMetric.CalibrationGap;
+
+    /// <summary>Labels in the window the measure is computed over. Default 2,000.</summary>
+    public int Window { get; set; } = 2_000;
+
+    /// <summary>No decision before the window holds this many labels. Default 1,000.</summary>
+    public int MinLabels { get; set; } = 1_000;
+
+    /// <summary>Threshold that raises the alert.</summary>
+    public double Raise { get; set; }
+
+    /// <summary>Threshold that clears it again.</summary>
+    public double Clear { get; set; }
+
+    /// <summary>Which side is bad. Default <see cref="AlertDirection.Above"/>.</summary>
+    public AlertDirection Direction { get; set; } = AlertDirection.Above;
+
+    /// <summary>Checks the rule; returns the mistakes found.</summary>
+    public IEnumerable<OptionError> Validate(string section)
+    {
+        if (string.IsNullOrWhiteSpace(Name))
+        {
+            yield return new($"{section}:Name", "is empty", "Give every rule a short name, e.g. \"calibration-gap\"");
+        }
+        if (Window is < 10 or > 10_000_000)
+        {
+            yield return new($"{section}:Window", $"{Window} is outside 10–10,000,000", "Use a few thousand labels, e.g. 2000");
+        }
+        if (MinLabels < 1 || MinLabels > Window)
+        {
+            yield return new($"{section}:MinLabels", $"{MinLabels} is not between 1 and Window ({Window})", "Use about half the window");
+        }
+        if (!double.IsFinite(Raise) || !double.IsFinite(Clear))
+        {
+            yield return new($"{section}:Raise", "Raise and Clear must both be finite numbers", "Set both thresholds");
+        }
+        else if (Direction == AlertDirection.Above ? Clear >= Raise : Clear <= Raise)
+        {
+            yield return new($"{section}:Clear", $"{Clear} does not lie on the good side of Raise ({Raise}) for direction {Direction}",
+                Direction == AlertDirection.Above ? "Make Clear lower than Raise" : "Make Clear higher than Raise");
+        }
+    }
+
+    /// <summary>
+    /// The rules used when a configuration names none. Chosen on the demo stream (see
+    /// README): quiet while it is stable, raised within a few thousand labels of the storm.
+    /// </summary>
+    public static List<AlertRuleOptions> Defaults() =>
+    [
+        new() { Name = "calibration-gap", Metric = AlertMetric.CalibrationGap, Window = 2_000, MinLabels = 1_000, Raise = 0.05, Clear = 0.025 },
+        new() { Name = "worse-than-prior", Metric = AlertMetric.LogLossOverPrior, Window = 2_000, MinLabels = 1_000, Raise = 1.0, Clear = 0.95 },
+    ];
+}

@@ -1,0 +1,14 @@
+namespace Driftline.Core.Alerts;
+
+/// <summary>An alert raised or cleared.</summary>
+/// <param name="Rule">Rule name.</param>
+/// <param name="Raised">True when raised, false when cleared.</param>
+/// <param name="Metric">The measure watched.</param>
+/// <param name="Value">The measure's value when the state changed.</param>
+/// <param name="Threshold">The threshold crossed (raise or clear).</param>
+/// <param name="Window">Labels in the window.</param>
+/// <param name="EventId">Id of the labelled event whose arrival triggered the change.</param>
+/// <param name="TimeTicks">Event time of that label as UTC ticks, or no time.</param>
+/// <param name="Labels">Labels graded so far in the run.</param>
+internal sealed record AlertTransition(string Rule, bool Raised, AlertMetric Metric, double Value, double Threshold,
+    int Window, string EventId, long TimeTicks, long Labels);

@@ -1,0 +1,283 @@
+using System.Buffers;
+using System.Text;
+using System.Text.Json;
+using Driftline.Core.Features;
+
+namespace Driftline.Core.Events;
+
+/// <summary>
+/// Parses one UTF-8 JSON record (an event, a label-only record or an external probability)
+/// into a reused <see cref="ParsedRecord"/>. Forward-only over <see cref="Utf8JsonReader"/>;
+/// feature names and values are hashed straight from the bytes, so a good record allocates
+/// only its id string. Not thread-safe: one parser per stage.
+/// </summary>
+/// <remarks>
+/// A record is rejected, with a reason, when it is not JSON, not an object, has no non-empty
+/// string <c>id</c>, has <c>features</c> that is not an object, a feature value that is not a
+/// string, number, boolean, array of strings or null, a number that is not finite, a
+/// <c>label</c> other than 0, 1, true or false, a <c>p</c> that is not a finite number in
+/// [0, 1], or neither features, label nor p. Unknown top-level fields are ignored; a
+/// <c>null</c> field counts as absent.
+/// </remarks>
+internal sealed class EventParser
+{
+    /// <summary>Most features one event may carry; more is treated as a malformed record.</summary>
+    public const int MaxFeatures = 10_000;
+
+    private readonly Dictionary<string, string> _keys = new(StringComparer.Ordinal);
+    private readonly Dictionary<string, string>.AlternateLookup<ReadOnlySpan<char>> _keyLookup;
+    private byte[] _nameScratch = new byte[256];
+    private byte[] _valueScratch = new byte[256];
+
+    /// <summary>Creates a parser.</summary>
+    public EventParser() => _keyLookup = _keys.GetAlternateLookup<ReadOnlySpan<char>>();
+
+    /// <summary>
+    /// Parses <paramref name="utf8"/> into <paramref name="record"/>. Returns false and sets
+    /// <paramref name="error"/> to a plain-language reason when the record is rejected; the
+    /// record's content is then unspecified.
+    /// </summary>
+    public bool TryParse(ReadOnlySpan<byte> utf8, ParsedRecord record, out string? error)
+    {
+        record.Reset();
+        try
+        {
+            error = ParseObject(utf8, record);
+        }
+        catch (JsonException ex)
+        {
+            error = "not valid JSON: " + FirstSentence(ex.Message);
+        }
+        return error is null;
+    }
+
+    private string? ParseObject(ReadOnlySpan<byte> utf8, ParsedRecord record)
+    {
+        var reader = new Utf8JsonReader(utf8, new JsonReaderOptions { AllowTrailingCommas = false, CommentHandling = JsonCommentHandling.Disallow });
+        if (!reader.Read())
+        {
+            return "empty record";
+        }
+        if (reader.TokenType != JsonTokenType.StartObject)
+        {
+            return "not a JSON object";
+        }
+
+        bool sawFeatures = false;
+        while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
+        {
+            string? error = null;
+            if (reader.ValueTextEquals("id"u8))
+            {
+                reader.Read();
+                if (reader.TokenType != JsonTokenType.String)
+                {
+                    return "id must be a non-empty string";
+                }
+                record.Id = reader.GetString()!;
+            }
+            else if (reader.ValueTextEquals("features"u8))
+            {
+                reader.Read();
+                if (reader.TokenType == JsonTokenType.Null)
+                {
+                    continue;
+                }
+                if (reader.TokenType != JsonTokenType.StartObject)
+                {
+                    return "features must be a JSON object";
+                }
+                sawFeatures = true;
+                error = ReadFeatures(ref reader, record);
+            }
+            else if (reader.ValueTextEquals("label"u8))
+            {
+                reader.Read();
+                error = ReadLabel(ref reader, record);
+            }
+            else if (reader.ValueTextEquals("time"u8))
+            {
+                reader.Read();
+                if (reader.TokenType == JsonTokenType.Null)
+                {
+                    continue;
+                }
+                if (reader.TokenType != JsonTokenType.String || !reader.TryGetDateTimeOffset(out var time))
+                {
+                    return "time must be an ISO 8601 timestamp string";
+                }
+                record.TimeTicks = time.UtcTicks;
+            }
+            else if (reader.ValueTextEquals("key"u8))
+            {
+                reader.Read();
+                if (reader.TokenType == JsonTokenType.Null)
+                {
+                    continue;
+                }
+                if (reader.TokenType != JsonTokenType.String)
+                {
+                    return "key must be a string";
+                }
+                record.Key = InternKey(ref reader);
+            }
+            else if (reader.ValueTextEquals("p"u8))
+            {
+                reader.Read();
+                if (reader.TokenType == JsonTokenType.Null)
+                {
+                    continue;
+                }
+                if (reader.TokenType != JsonTokenType.Number || !reader.TryGetDouble(out double p) || !double.IsFinite(p) || p < 0 || p > 1)
+                {
+                    return "p must be a finite number between 0 and 1";
+                }
+                record.Probability = p;
+            }
+            else
+            {
+                reader.Read();
+                reader.Skip();
+            }
+            if (error is not null)
+            {
+                return error;
+            }
+        }
+        if (reader.Read())
+        {
+            return "unexpected content after the JSON object";
+        }
+        if (record.Id.Length == 0)
+        {
+            return "id must be a non-empty string";
+        }
+
+        if (sawFeatures)
+        {
+            record.Kind = RecordKind.Event;
+        }
+        else if (!double.IsNaN(record.Probability))
+        {
+            record.Kind = RecordKind.Probability;
+        }
+        else if (record.HasLabel)
+        {
+            record.Kind = RecordKind.Label;
+        }
+        else
+        {
+            return "record has neither features, a label nor p";
+        }
+        return null;
+    }
+
+    private string? ReadLabel(ref Utf8JsonReader reader, ParsedRecord record)
+    {
+        switch (reader.TokenType)
+        {
+            case JsonTokenType.Null:
+                return null;
+            case JsonTokenType.True:
+                record.Label = 1;
+                return null;
+            case JsonTokenType.False:
+                record.Label = 0;
+                return null;
+            case JsonTokenType.Number when reader.TryGetDouble(out double v) && (v == 0 || v == 1):
+                record.Label = (int)v;
+                return null;
+            default:
+                return "label must be 0, 1, true or false";
+        }
+    }
+
+    private string? ReadFeatures(ref Utf8JsonReader reader, ParsedRecord record)
+    {
+        while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
+        {
+            ReadOnlySpan<byte> name = Unescaped(ref reader, ref _nameScratch);
+            ulong nameHash = FeatureHash.Name(name);
+            reader.Read();
+            switch (reader.TokenType)
+            {
+                case JsonTokenType.Null:
+                    break;
+                case JsonTokenType.String:
+                    record.AddFeature(new RawFeature(nameHash, FeatureHash.Value(nameHash, Unescaped(ref reader, ref _valueScratch)), 1.0, RawFeatureKind.Categorical));
+                    break;
+                case JsonTokenType.Number:
+                    if (!reader.TryGetDouble(out double x) || !double.IsFinite(x))
+                    {
+                        return "feature '" + Encoding.UTF8.GetString(name) + "' is not a finite number";
+                    }
+                    record.AddFeature(new RawFeature(nameHash, nameHash, x, RawFeatureKind.Numeric));
+                    break;
+                case JsonTokenType.True:
+                case JsonTokenType.False:
+                    record.AddFeature(new RawFeature(nameHash, nameHash, reader.TokenType == JsonTokenType.True ? 1.0 : 0.0, RawFeatureKind.Boolean));
+                    break;
+                case JsonTokenType.StartArray:
+                    while (reader.Read() && reader.TokenType != JsonTokenType.EndArray)
+                    {
+                        if (reader.TokenType != JsonTokenType.String)
+                        {
+                            return "feature '" + Encoding.UTF8.GetString(name) + "' is an array with a value that is not a string";
+                        }
+                        record.AddFeature(new RawFeature(nameHash, FeatureHash.Value(nameHash, Unescaped(ref reader, ref _valueScratch)), 1.0, RawFeatureKind.Categorical));
+                    }
+                    break;
+                default:
+                    return "feature '" + Encoding.UTF8.GetString(name) + "' must be a string, number, boolean, array of strings or null";
+            }
+            if (record.FeatureCount > MaxFeatures)
+            {
+                return $"more than {MaxFeatures} features";
+            }
+        }
+        return null;
+    }
+
+    // The token's bytes with JSON escapes resolved; points into the input when there are none.
+    private static ReadOnlySpan<byte> Unescaped(ref Utf8JsonReader reader, ref byte[] scratch)
+    {
+        if (!reader.ValueIsEscaped && !reader.HasValueSequence)
+        {
+            return reader.ValueSpan;
+        }
+        int needed = reader.HasValueSequence ? checked((int)reader.ValueSequence.Length) : reader.ValueSpan.Length;
+        if (scratch.Length < needed)
+        {
+            scratch = new byte[Math.Max(needed, scratch.Length * 2)];
+        }
+        int written = reader.CopyString(scratch);
+        return scratch.AsSpan(0, written);
+    }
+
+    private string InternKey(ref Utf8JsonReader reader)
+    {
+        ReadOnlySpan<byte> bytes = Unescaped(ref reader, ref _valueScratch);
+        if (bytes.Length > 256)
+        {
+            return Encoding.UTF8.GetString(bytes);
+        }
+        Span<char> chars = stackalloc char[256];
+        int n = Encoding.UTF8.GetChars(bytes, chars);
+        if (_keyLookup.TryGetValue(chars[..n], out var key))
+        {
+            return key;
+        }
+        key = new string(chars[..n]);
+        if (_keys.Count < 100_000)
+        {
+            _keys[key] = key;
+        }
+        return key;
+    }
+
+    private static string FirstSentence(string message)
+    {
+        int cut = message.IndexOf(". ", StringComparison.Ordinal);
+        return cut > 0 ? message[..cut] : message.TrimEnd('.');
+    }
+}

@@ -1,0 +1,102 @@
+namespace Driftline.Core.Options;
+
+/// <summary>
+/// The online model: features, learner and forgetting. Bound from the <c>Model</c> section.
+/// </summary>
+internal sealed class ModelOptions
+{
+    /// <summary>Learning rule. Default <see cref="LearnerKind.Ftrl"/>.</summary>
+    public LearnerKind Learner { get; set; } = LearnerKind.Ftrl;
+
+    /// <summary>Weights per model as a power of two (2^HashBits). Default 18 (262,144 slots); 10–28 allowed.</summary>
+    public int HashBits { get; set; } = 18;
+
+    /// <summary>Base learning rate (α). Default 0.1.</summary>
+    public double LearningRate { get; set; } = 0.1;
+
+    /// <summary>Smoothing of the per-coordinate rate (β): rate = α / (β + √Σg²). Default 1.</summary>
+    public double RateSmoothing { get; set; } = 1.0;
+
+    /// <summary>L1 penalty (FTRL only: drives weights of weak features to exactly zero). Default 0.</summary>
+    public double L1 { get; set; }
+
+    /// <summary>L2 penalty. Default 0.</summary>
+    public double L2 { get; set; }
+
+    /// <summary>
+    /// Forgetting, as the number of labels after which old evidence counts half. 0 turns
+    /// forgetting off (the model then slowly freezes, as plain AdaGrad does). Default 20,000.
+    /// </summary>
+    public double HalfLifeLabels { get; set; } = 20_000;
+
+    /// <summary>How numeric features are scaled. Default <see cref="ScalingMode.Online"/>.</summary>
+    public ScalingMode Scaling { get; set; } = ScalingMode.Online;
+
+    /// <summary>Divisors for named numeric features; a named feature is never standardised online.</summary>
+    public Dictionary<string, double> FixedScales { get; set; } = new(StringComparer.Ordinal);
+
+    /// <summary>Standardised values are clipped to ± this many standard deviations. Default 8.</summary>
+    public double StandardisedLimit { get; set; } = 8;
+
+    /// <summary>Pairwise interactions, each written <c>"a*b"</c> with two feature names.</summary>
+    public List<string> Interactions { get; set; } = [];
+
+    /// <summary>Most distinct keys (one model each) before new keys are rejected. Default 64.</summary>
+    public int MaxModels { get; set; } = 64;
+
+    /// <summary>Checks every option; returns the mistakes found.</summary>
+    public IEnumerable<OptionError> Validate(string section = "Model")
+    {
+        if (HashBits is < 10 or > 28)
+        {
+            yield return new($"{section}:HashBits", $"{HashBits} is outside 10–28", "Use 18 for up to about a hundred thousand distinct feature values, more for larger vocabularies");
+        }
+        if (!(LearningRate > 0) || !double.IsFinite(LearningRate))
+        {
+            yield return new($"{section}:LearningRate", $"{LearningRate} is not a positive number", "Use a value such as 0.1");
+        }
+        if (!(RateSmoothing > 0) || !double.IsFinite(RateSmoothing))
+        {
+            yield return new($"{section}:RateSmoothing", $"{RateSmoothing} is not a positive number", "Use 1");
+        }
+        if (!(L1 >= 0) || !double.IsFinite(L1))
+        {
+            yield return new($"{section}:L1", $"{L1} is negative or not a number", "Use 0 (off) or a small positive penalty such as 0.5");
+        }
+        if (L1 > 0 && Learner != LearnerKind.Ftrl)
+        {
+            yield return new($"{section}:L1", "L1 applies only to the Ftrl learner", "Set Learner to Ftrl or L1 to 0");
+        }
+        if (!(L2 >= 0) || !double.IsFinite(L2))
+        {
+            yield return new($"{section}:L2", $"{L2} is negative or not a number", "Use 0 (off) or a small positive penalty such as 1");
+        }
+        if (!(HalfLifeLabels >= 0) || !double.IsFinite(HalfLifeLabels) || (HalfLifeLabels > 0 && HalfLifeLabels < 10))
+        {
+            yield return new($"{section}:HalfLifeLabels", $"{HalfLifeLabels} is not 0 or at least 10", "Use 0 for no forgetting, or a number of labels such as 20000");
+        }
+        if (!(StandardisedLimit > 0))
+        {
+            yield return new($"{section}:StandardisedLimit", $"{StandardisedLimit} is not positive", "Use 8");
+        }
+        foreach (var (name, scale) in FixedScales)
+        {
+            if (!(scale > 0) || !double.IsFinite(scale))
+            {
+                yield return new($"{section}:FixedScales:{name}", $"{scale} is not a positive number", "Give the divisor that brings the feature near 1, e.g. 1000 for values in the thousands");
+            }
+        }
+        for (int i = 0; i < Interactions.Count; i++)
+        {
+            var parts = Interactions[i].Split('*', StringSplitOptions.TrimEntries);
+            if (parts.Length != 2 || parts[0].Length == 0 || parts[1].Length == 0)
+            {
+                yield return new($"{section}:Interactions:{i}", $"'{Interactions[i]}' is not two feature names joined by *", "Write it as \"zone*raining\"");
+            }
+        }
+        if (MaxModels < 1)
+        {
+            yield return new($"{section}:MaxModels", $"{MaxModels} is less than 1", "Use at least 1 (one model per key)");
+        }
+    }
+}

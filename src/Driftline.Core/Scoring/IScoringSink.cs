@@ -1,0 +1,19 @@
+using Driftline.Core.Alerts;
+
+namespace Driftline.Core.Scoring;
+
+/// <summary>
+/// Where the core's results go. The core calls it synchronously on its own thread; an
+/// implementation buffers (the host's writers) and must not block for long.
+/// </summary>
+internal interface IScoringSink
+{
+    /// <summary>A probability for one event, in input order.</summary>
+    void OnPrediction(in Prediction prediction);
+
+    /// <summary>An alert raised or cleared.</summary>
+    void OnAlert(AlertTransition alert);
+
+    /// <summary>The measures every <c>Monitor:MetricsEvery</c> labels.</summary>
+    void OnMetrics(in MetricsRow row);
+}

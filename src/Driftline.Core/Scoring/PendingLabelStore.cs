@@ -1,0 +1,130 @@
+using System.Diagnostics;
+
+namespace Driftline.Core.Scoring;
+
+/// <summary>
+/// Predictions waiting for late labels, bounded by count and by age. A ring of reusable
+/// slots in arrival order: when it is full the oldest slot is recycled, and a prediction
+/// older than the age limit (by event time) is dropped; either way an unlabelled prediction
+/// leaving the store counts as expired. Graded entries stay until recycled so a second label
+/// for the same id is recognised as a duplicate. O(1) per operation, no allocation once
+/// every slot has been used.
+/// </summary>
+internal sealed class PendingLabelStore
+{
+    private readonly PendingPrediction[] _ring;
+    private readonly Dictionary<string, int> _byId;
+    private readonly long _maxAgeTicks;
+    private int _oldest;
+    private int _count;
+
+    /// <summary>Creates a store holding at most <paramref name="capacity"/> predictions for at most <paramref name="maxAge"/> of event time.</summary>
+    public PendingLabelStore(int capacity, TimeSpan maxAge)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(capacity, 1);
+        ArgumentOutOfRangeException.ThrowIfLessThanOrEqual(maxAge, TimeSpan.Zero);
+        _ring = new PendingPrediction[capacity];
+        _byId = new Dictionary<string, int>(Math.Min(capacity, 1 << 16), StringComparer.Ordinal);
+        _maxAgeTicks = maxAge.Ticks;
+    }
+
+    /// <summary>Entries held, graded or not.</summary>
+    public int Count => _count;
+
+    /// <summary>Predictions that left the store without a label.</summary>
+    public long Expired { get; private set; }
+
+    /// <summary>Predictions still waiting for a label.</summary>
+    public int Waiting { get; private set; }
+
+    /// <summary>
+    /// Stores a prediction and returns its slot for the caller to fill (features and
+    /// probabilities). A second prediction with an id already held takes the id over.
+    /// </summary>
+    public PendingPrediction Add(string id, long timeTicks)
+    {
+        if (_count == _ring.Length)
+        {
+            Evict();
+        }
+        int index = (_oldest + _count) % _ring.Length;
+        var slot = _ring[index] ??= new PendingPrediction();
+        if (_byId.TryGetValue(id, out int previous) && !_ring[previous].Labelled)
+        {
+            // The earlier prediction can no longer be graded: its id now names this one.
+            Waiting--;
+            Expired++;
+            _ring[previous].Labelled = true;
+        }
+        slot.Id = id;
+        slot.TimeTicks = timeTicks;
+        slot.Labelled = false;
+        _byId[id] = index;
+        _count++;
+        Waiting++;
+        return slot;
+    }
+
+    /// <summary>Finds the pending prediction for <paramref name="id"/> and marks it graded.</summary>
+    public LabelJoin TryJoin(string id, out PendingPrediction? prediction)
+    {
+        prediction = null;
+        if (!_byId.TryGetValue(id, out int index))
+        {
+            return LabelJoin.UnknownId;
+        }
+        var slot = _ring[index];
+        if (slot.Labelled)
+        {
+            return LabelJoin.Duplicate;
+        }
+        slot.Labelled = true;
+        Waiting--;
+        prediction = slot;
+        return LabelJoin.Joined;
+    }
+
+    /// <summary>Drops predictions older than the age limit relative to <paramref name="nowTicks"/>.</summary>
+    public void ExpireBefore(long nowTicks)
+    {
+        while (_count > 0)
+        {
+            var oldest = _ring[_oldest];
+            if (oldest.TimeTicks == Events.ParsedRecord.NoTime || nowTicks - oldest.TimeTicks <= _maxAgeTicks)
+            {
+                return;
+            }
+            Evict();
+        }
+    }
+
+    /// <summary>Entries in arrival order, oldest first (for snapshots).</summary>
+    public IEnumerable<PendingPrediction> Entries()
+    {
+        for (int i = 0; i < _count; i++)
+        {
+            yield return _ring[(_oldest + i) % _ring.Length];
+        }
+    }
+
+    /// <summary>Restores the counters of a snapshot (entries are re-added with <see cref="Add"/>).</summary>
+    public void RestoreCounters(long expired) => Expired = expired;
+
+    private void Evict()
+    {
+        Debug.Assert(_count > 0, "evicting from an empty store");
+        var slot = _ring[_oldest];
+        if (!slot.Labelled)
+        {
+            Waiting--;
+            Expired++;
+        }
+        if (_byId.TryGetValue(slot.Id!, out int index) && index == _oldest)
+        {
+            _byId.Remove(slot.Id!);
+        }
+        slot.Id = null;
+        _oldest = (_oldest + 1) % _ring.Length;
+        _count--;
+    }
+}

@@ -1,0 +1,241 @@
+using System.Diagnostics;
+using Driftline.Core.Alerts;
+using Driftline.Core.Events;
+using Driftline.Core.Features;
+using Driftline.Core.Metrics;
+using Driftline.Core.Options;
+
+namespace Driftline.Core.Scoring;
+
+/// <summary>
+/// The score/learn step: one record in, its prediction, grading, learning and alerts out.
+/// Single-threaded, no I/O, no clock (time comes with the events), no logging: the same
+/// engine runs under the live worker, replay and the tests, and gives identical results for
+/// identical input.
+/// </summary>
+/// <remarks>
+/// Progressive validation: an event is always scored before its label is used, whether the
+/// label comes with it or later. A late label grades the probability that was emitted, then
+/// trains on the features stored with it, at the current weights.
+/// </remarks>
+internal sealed class ScoringEngine
+{
+    /// <summary>Key of the model used by events that name none.</summary>
+    public const string DefaultKey = "default";
+
+    private readonly DriftlineOptions _options;
+    private readonly IScoringSink _sink;
+    private readonly Dictionary<string, int> _modelIndex = new(StringComparer.Ordinal);
+    private readonly List<KeyedModel> _models = [];
+    private readonly SparseVector _x = new();
+    private readonly SparseVector _lateX = new();
+    private readonly (int Size, CalibrationWindow Model, CalibrationWindow Prior)[] _windows;
+    private readonly int _reportWindow;
+    private readonly (AlertRule Rule, int Window)[] _rules;
+    private long _clockTicks = ParsedRecord.NoTime;
+
+    /// <summary>Creates an engine with no models yet; options must have been validated.</summary>
+    public ScoringEngine(DriftlineOptions options, IScoringSink sink)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        ArgumentNullException.ThrowIfNull(sink);
+        Debug.Assert(options.Validate().Count == 0, "options are validated at start-up");
+        _options = options;
+        _sink = sink;
+        Pending = new PendingLabelStore(options.Labels.MaxPending, options.Labels.MaxAge);
+        var rules = options.EffectiveAlerts;
+        var sizes = rules.Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
+        int bins = options.Monitor.Bins;
+        _windows = sizes.Select(s => (s, new CalibrationWindow(s, bins), new CalibrationWindow(s, bins))).ToArray();
+        _reportWindow = Array.IndexOf(sizes, options.Monitor.Window);
+        _rules = rules.Select(r => (new AlertRule(r), Array.IndexOf(sizes, r.Window))).ToArray();
+        Totals = new CalibrationTotals(bins);
+        PriorTotals = new CalibrationTotals(bins);
+    }
+
+    /// <summary>Whole-run counts.</summary>
+    public ScoringCounters Counters { get; private set; } = new();
+
+    /// <summary>Predictions waiting for late labels.</summary>
+    public PendingLabelStore Pending { get; }
+
+    /// <summary>The model over the whole run.</summary>
+    public CalibrationTotals Totals { get; private set; }
+
+    /// <summary>The class-prior baseline over the whole run.</summary>
+    public CalibrationTotals PriorTotals { get; private set; }
+
+    /// <summary>The models, in the order their keys first appeared.</summary>
+    public IReadOnlyList<KeyedModel> Models => _models;
+
+    /// <summary>The alert rules and their states.</summary>
+    public IEnumerable<AlertRule> Rules => _rules.Select(r => r.Rule);
+
+    /// <summary>The reported rolling window of the model.</summary>
+    public CalibrationWindow Window => _windows[_reportWindow].Model;
+
+    /// <summary>The reported rolling window of the baseline.</summary>
+    public CalibrationWindow PriorWindow => _windows[_reportWindow].Prior;
+
+    /// <summary>The options the engine runs with.</summary>
+    public DriftlineOptions Options => _options;
+
+    /// <summary>Latest event time seen, as UTC ticks (or no time).</summary>
+    public long ClockTicks => _clockTicks;
+
+    /// <summary>Why the last <see cref="StepOutcome.Rejected"/> record was refused.</summary>
+    public string? RejectReason { get; private set; }
+
+    /// <summary>Processes one parsed record.</summary>
+    public StepOutcome Process(ParsedRecord record)
+    {
+        ArgumentNullException.ThrowIfNull(record);
+        if (record.HasTime && record.TimeTicks > _clockTicks)
+        {
+            _clockTicks = record.TimeTicks;
+            Pending.ExpireBefore(_clockTicks);
+        }
+        return record.Kind switch
+        {
+            RecordKind.Event => ScoreEvent(record),
+            RecordKind.Label => JoinLabel(record),
+            RecordKind.Probability => RecordProbability(record),
+            _ => throw new UnreachableException(),
+        };
+    }
+
+    private StepOutcome ScoreEvent(ParsedRecord record)
+    {
+        int index = ModelFor(record.Key ?? DefaultKey);
+        if (index < 0)
+        {
+            return StepOutcome.Rejected;
+        }
+        var model = _models[index];
+        model.Featurizer.Featurize(record, _x);
+        double p = model.Learner.Predict(_x);
+        double priorP = model.Prior.Predict();
+        model.Scored++;
+        Counters.Events++;
+        _sink.OnPrediction(new Prediction(record.Id, model.Key, p, model.Learner.Updates, record.TimeTicks));
+
+        if (record.HasLabel)
+        {
+            Counters.InlineLabels++;
+            Grade(model, p, priorP, record.Label, record.Id, record.TimeTicks);
+            model.Learner.Update(_x, record.Label, p);
+            return StepOutcome.ScoredAndLearned;
+        }
+        var pending = Pending.Add(record.Id, record.TimeTicks);
+        pending.Model = index;
+        pending.P = p;
+        pending.PriorP = priorP;
+        pending.SetFeatures(_x.Slots, _x.Values);
+        return StepOutcome.Scored;
+    }
+
+    private StepOutcome JoinLabel(ParsedRecord record)
+    {
+        switch (Pending.TryJoin(record.Id, out var pending))
+        {
+            case LabelJoin.UnknownId:
+                Counters.UnknownLabels++;
+                return StepOutcome.UnknownLabel;
+            case LabelJoin.Duplicate:
+                Counters.DuplicateLabels++;
+                return StepOutcome.DuplicateLabel;
+        }
+        Debug.Assert(pending is not null, "a joined label has its prediction");
+        Counters.LateLabels++;
+        var model = _models[pending.Model];
+        long time = record.HasTime ? record.TimeTicks : pending.TimeTicks;
+        Grade(model, pending.P, pending.PriorP, record.Label, record.Id, time);
+        if (pending.Count > 0)
+        {
+            _lateX.CopyFrom(pending.Slots, pending.Values);
+            model.Learner.Update(_lateX, record.Label);
+        }
+        return StepOutcome.LateLabelJoined;
+    }
+
+    private StepOutcome RecordProbability(ParsedRecord record)
+    {
+        int index = ModelFor(record.Key ?? DefaultKey);
+        if (index < 0)
+        {
+            return StepOutcome.Rejected;
+        }
+        var model = _models[index];
+        double priorP = model.Prior.Predict();
+        Counters.Probabilities++;
+        if (record.HasLabel)
+        {
+            Counters.InlineLabels++;
+            Grade(model, record.Probability, priorP, record.Label, record.Id, record.TimeTicks);
+            return StepOutcome.ProbabilityRecorded;
+        }
+        var pending = Pending.Add(record.Id, record.TimeTicks);
+        pending.Model = index;
+        pending.P = record.Probability;
+        pending.PriorP = priorP;
+        pending.SetFeatures([], []);
+        return StepOutcome.ProbabilityRecorded;
+    }
+
+    private void Grade(KeyedModel model, double p, double priorP, int y, string id, long timeTicks)
+    {
+        model.Prior.Add(y);
+        Counters.Labels++;
+        Totals.Add(p, y);
+        PriorTotals.Add(priorP, y);
+        foreach (var (_, window, priorWindow) in _windows)
+        {
+            window.Add(p, y);
+            priorWindow.Add(priorP, y);
+        }
+        foreach (var (rule, w) in _rules)
+        {
+            var (_, window, priorWindow) = _windows[w];
+            bool? change = rule.Evaluate(window.Current, priorWindow.Current, out double value);
+            if (change is bool raised)
+            {
+                if (raised)
+                {
+                    Counters.AlertsRaised++;
+                }
+                else
+                {
+                    Counters.AlertsCleared++;
+                }
+                var o = rule.Options;
+                _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, raised ? o.Raise : o.Clear, o.Window, id, timeTicks, Counters.Labels));
+            }
+        }
+        if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
+        {
+            _sink.OnMetrics(CurrentMetrics(timeTicks));
+        }
+    }
+
+    /// <summary>The measures now, as reported every <c>Monitor:MetricsEvery</c> labels.</summary>
+    public MetricsRow CurrentMetrics(long timeTicks) => new(Counters.Events, Counters.Labels, timeTicks,
+        Window.Current, PriorWindow.Current, Totals.Current, PriorTotals.Current, Counters.LateLabels, Pending.Expired);
+
+    private int ModelFor(string key)
+    {
+        if (_modelIndex.TryGetValue(key, out int index))
+        {
+            return index;
+        }
+        if (_models.Count >= _options.Model.MaxModels)
+        {
+            Counters.Rejected++;
+            RejectReason = $"key '{key}' would be model {_models.Count + 1}, beyond Model:MaxModels = {_options.Model.MaxModels}";
+            return -1;
+        }
+        index = _models.Count;
+        _models.Add(new KeyedModel(key, _options.Model));
+        _modelIndex.Add(key, index);
+        return index;
+    }
+}
