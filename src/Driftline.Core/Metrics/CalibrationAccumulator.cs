@@ -1,0 +1,200 @@
+using System.Diagnostics;
+
+namespace Driftline.Core.Metrics;
+
+/// <summary>
+/// Running sums behind every calibration window: count, positives, log-loss, squared error and
+/// probability, overall and per reliability bin, with O(1) add and remove.
+/// </summary>
+/// <remarks>
+/// <para>
+/// Sums are held in <see cref="FixedPoint"/>, so <see cref="Remove"/> undoes <see cref="Add"/>
+/// exactly and the state depends only on the multiset of predictions held, not on the order or
+/// the history of adds and removes. No allocation after construction.
+/// </para>
+/// <para>
+/// Arguments are not validated here: the owning window validates before it stores a prediction,
+/// and <see cref="Remove"/> is only called with what was added.
+/// </para>
+/// </remarks>
+internal sealed class CalibrationAccumulator
+{
+    private readonly BinEdges _edges;
+    private readonly long[] _binCount;
+    private readonly long[] _binPositives;
+    private readonly Int128[] _binProbability;
+    private long _count;
+    private long _positives;
+    private Int128 _logLoss;
+    private Int128 _squaredError;
+    private Int128 _probability;
+
+    /// <summary>Creates an empty accumulator over the given bins.</summary>
+    public CalibrationAccumulator(BinEdges edges)
+    {
+        _edges = edges;
+        _binCount = new long[edges.Bins];
+        _binPositives = new long[edges.Bins];
+        _binProbability = new Int128[edges.Bins];
+    }
+
+    private CalibrationAccumulator(CalibrationAccumulator source)
+    {
+        _edges = source._edges;
+        _binCount = (long[])source._binCount.Clone();
+        _binPositives = (long[])source._binPositives.Clone();
+        _binProbability = (Int128[])source._binProbability.Clone();
+        _count = source._count;
+        _positives = source._positives;
+        _logLoss = source._logLoss;
+        _squaredError = source._squaredError;
+        _probability = source._probability;
+    }
+
+    /// <summary>Bin edges in use.</summary>
+    public BinEdges Edges => _edges;
+
+    /// <summary>Number of predictions held.</summary>
+    public long Count => _count;
+
+    /// <summary>Number of held predictions with outcome 1.</summary>
+    public long Positives => _positives;
+
+    /// <summary>Adds one prediction (already validated).</summary>
+    public void Add(double p, int y) => Apply(p, y, +1);
+
+    /// <summary>Removes one prediction that was added earlier.</summary>
+    public void Remove(double p, int y)
+    {
+        Debug.Assert(_count > 0, "remove from an empty accumulator");
+        Apply(p, y, -1);
+        Debug.Assert(_count >= 0 && _positives >= 0 && _logLoss >= 0 && _squaredError >= 0 && _probability >= 0,
+            "remove of a prediction that was never added");
+    }
+
+    /// <summary>Forgets everything; the bins are kept.</summary>
+    public void Clear()
+    {
+        Array.Clear(_binCount);
+        Array.Clear(_binPositives);
+        Array.Clear(_binProbability);
+        _count = 0;
+        _positives = 0;
+        _logLoss = 0;
+        _squaredError = 0;
+        _probability = 0;
+    }
+
+    /// <summary>An independent copy sharing nothing mutable.</summary>
+    public CalibrationAccumulator Copy() => new(this);
+
+    /// <summary>Current metric values; <see cref="CalibrationSnapshot.Empty"/> when nothing is held. O(bins).</summary>
+    public CalibrationSnapshot Snapshot()
+    {
+        if (_count == 0)
+        {
+            return CalibrationSnapshot.Empty;
+        }
+
+        double n = _count;
+        // Expected calibration error (Naeini, Cooper & Hauskrecht 2015, "Obtaining Well Calibrated
+        // Probabilities Using Bayesian Binning"; Guo, Pleiss, Sun & Weinberger 2017, "On Calibration
+        // of Modern Neural Networks"): sum over bins of (n_b / N) · |mean p_b − mean y_b|, which is
+        // (1 / N) · sum of |sum p_b − positives_b|. Empty bins contribute nothing. The differences
+        // are taken in fixed point, so the only rounding is the final division.
+        Int128 gap = 0;
+        for (int k = 0; k < _binCount.Length; k++)
+        {
+            gap = checked(gap + Int128.Abs(_binProbability[k] - FixedPoint.FromCount(_binPositives[k])));
+        }
+
+        double meanP = FixedPoint.ToDouble(_probability) / n;
+        double meanY = _positives / n;
+        double inTheLarge = FixedPoint.ToDouble(_probability - FixedPoint.FromCount(_positives)) / n;
+        return new CalibrationSnapshot(
+            (int)Math.Min(_count, int.MaxValue),
+            FixedPoint.ToDouble(_logLoss) / n,
+            FixedPoint.ToDouble(_squaredError) / n,
+            FixedPoint.ToDouble(gap) / n,
+            meanP,
+            meanY,
+            inTheLarge);
+    }
+
+    /// <summary>
+    /// Writes one <see cref="ReliabilityBin"/> per bin, in order, into the first
+    /// <see cref="BinEdges.Bins"/> elements of <paramref name="destination"/>. Empty bins have
+    /// count 0 and NaN means.
+    /// </summary>
+    /// <exception cref="ArgumentException"><paramref name="destination"/> is shorter than the number of bins.</exception>
+    public void CopyBins(Span<ReliabilityBin> destination)
+    {
+        if (destination.Length < _binCount.Length)
+        {
+            throw new ArgumentException($"Needs room for {_binCount.Length} bins, got {destination.Length}.", nameof(destination));
+        }
+
+        for (int k = 0; k < _binCount.Length; k++)
+        {
+            long n = _binCount[k];
+            destination[k] = n == 0
+                ? new ReliabilityBin(k, _edges.Lower(k), _edges.Upper(k), 0, double.NaN, double.NaN)
+                : new ReliabilityBin(k, _edges.Lower(k), _edges.Upper(k), n,
+                    FixedPoint.ToDouble(_binProbability[k]) / n, _binPositives[k] / (double)n);
+        }
+    }
+
+    /// <summary>The raw sums, for snapshotting; see <see cref="CalibrationTotalsState"/>.</summary>
+    public CalibrationTotalsState ToState() => new(
+        _edges.Bins, _count, _positives, _logLoss, _squaredError, _probability,
+        (long[])_binCount.Clone(), (long[])_binPositives.Clone(), (Int128[])_binProbability.Clone());
+
+    /// <summary>Rebuilds an accumulator from raw sums after checking they are consistent.</summary>
+    /// <exception cref="ArgumentException">The state is inconsistent; the message says how.</exception>
+    public static CalibrationAccumulator FromState(CalibrationTotalsState state)
+    {
+        ArgumentNullException.ThrowIfNull(state);
+        string? problem = state.FindInconsistency();
+        if (problem is not null)
+        {
+            throw new ArgumentException($"Calibration totals state is inconsistent: {problem}.", nameof(state));
+        }
+
+        var result = new CalibrationAccumulator(new BinEdges(state.Bins));
+        state.BinCounts.CopyTo(result._binCount, 0);
+        state.BinPositives.CopyTo(result._binPositives, 0);
+        state.BinProbabilitySums.CopyTo(result._binProbability, 0);
+        result._count = state.Count;
+        result._positives = state.Positives;
+        result._logLoss = state.LogLossSum;
+        result._squaredError = state.SquaredErrorSum;
+        result._probability = state.ProbabilitySum;
+        return result;
+    }
+
+    private void Apply(double p, int y, int sign)
+    {
+        int bin = _edges.LeftClosedIndex(p);
+        Int128 rawP = FixedPoint.FromDouble(p);
+        Int128 rawLoss = FixedPoint.FromDouble(PredictionScores.LogLoss(p, y));
+        Int128 rawSquared = FixedPoint.FromDouble(PredictionScores.SquaredError(p, y));
+        if (sign < 0)
+        {
+            rawP = -rawP;
+            rawLoss = -rawLoss;
+            rawSquared = -rawSquared;
+        }
+
+        checked
+        {
+            _count += sign;
+            _positives += sign * y;
+            _logLoss += rawLoss;
+            _squaredError += rawSquared;
+            _probability += rawP;
+            _binCount[bin] += sign;
+            _binPositives[bin] += sign * y;
+            _binProbability[bin] += rawP;
+        }
+    }
+}
