@@ -4,6 +4,7 @@ using Driftline.Core.Events;
 using Driftline.Core.Features;
 using Driftline.Core.Metrics;
 using Driftline.Core.Options;
+using Driftline.Core.Snapshots;
 
 namespace Driftline.Core.Scoring;
 
@@ -220,6 +221,108 @@ internal sealed class ScoringEngine
     /// <summary>The measures now, as reported every <c>Monitor:MetricsEvery</c> labels.</summary>
     public MetricsRow CurrentMetrics(long timeTicks) => new(Counters.Events, Counters.Labels, timeTicks,
         Window.Current, PriorWindow.Current, Totals.Current, PriorTotals.Current, Counters.LateLabels, Pending.Expired);
+
+    /// <summary>The engine's whole state, for a checkpoint or a saved model.</summary>
+    public EngineSnapshot Snapshot() => new()
+    {
+        Options = _options,
+        Models = _models.Select(m => new ModelSnapshot
+        {
+            Key = m.Key,
+            Learner = m.Learner.Export(),
+            Scaling = m.Featurizer.Scaler.Export().ToList(),
+            PriorCount = m.Prior.Count,
+            PriorPositives = m.Prior.Positives,
+            Scored = m.Scored,
+        }).ToList(),
+        Pending = Pending.Entries().Select(e => new PendingSnapshot
+        {
+            Id = e.Id!,
+            Model = e.Model,
+            TimeTicks = e.TimeTicks,
+            P = e.P,
+            PriorP = e.PriorP,
+            Labelled = e.Labelled,
+            Slots = e.Slots.ToArray(),
+            Values = e.Values.ToArray(),
+        }).ToList(),
+        ExpiredLabels = Pending.Expired,
+        Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
+        Totals = Totals.ToState(),
+        PriorTotals = PriorTotals.ToState(),
+        Rules = _rules.Select(r => new RuleSnapshot { Name = r.Rule.Options.Name, Raised = r.Rule.Raised, RaisedCount = r.Rule.RaisedCount }).ToList(),
+        Counters = Counters.Copy(),
+        ClockTicks = _clockTicks,
+    };
+
+    /// <summary>
+    /// Creates an engine that continues from <paramref name="snapshot"/>, with the snapshot's
+    /// options. Windows of sizes the snapshot lacks start empty.
+    /// </summary>
+    public static ScoringEngine Restore(EngineSnapshot snapshot, IScoringSink sink)
+    {
+        ArgumentNullException.ThrowIfNull(snapshot);
+        var engine = new ScoringEngine(snapshot.Options, sink);
+        engine.Load(snapshot);
+        return engine;
+    }
+
+    private void Load(EngineSnapshot snapshot)
+    {
+        foreach (var m in snapshot.Models)
+        {
+            int index = ModelFor(m.Key);
+            var model = _models[index];
+            model.Learner.Import(m.Learner);
+            foreach (var stats in m.Scaling)
+            {
+                model.Featurizer.Scaler.Import(stats);
+            }
+            model.Prior = PriorBaseline.Restore(m.PriorCount, m.PriorPositives);
+            model.Scored = m.Scored;
+        }
+        foreach (var e in snapshot.Pending)
+        {
+            var slot = Pending.Add(e.Id, e.TimeTicks);
+            slot.Model = e.Model;
+            slot.P = e.P;
+            slot.PriorP = e.PriorP;
+            slot.SetFeatures(e.Slots, e.Values);
+            if (e.Labelled)
+            {
+                Pending.TryJoin(e.Id, out _);
+            }
+        }
+        Pending.RestoreCounters(snapshot.ExpiredLabels);
+        int bins = _options.Monitor.Bins;
+        for (int i = 0; i < _windows.Length; i++)
+        {
+            var saved = snapshot.Windows.FirstOrDefault(w => w.Size == _windows[i].Size);
+            if (saved is not null)
+            {
+                _windows[i] = (saved.Size, CalibrationWindow.Restore(saved.Size, bins, saved.Model), CalibrationWindow.Restore(saved.Size, bins, saved.Prior));
+            }
+        }
+        if (snapshot.Totals is not null)
+        {
+            Totals = CalibrationTotals.Restore(snapshot.Totals);
+        }
+        if (snapshot.PriorTotals is not null)
+        {
+            PriorTotals = CalibrationTotals.Restore(snapshot.PriorTotals);
+        }
+        foreach (var (rule, _) in _rules)
+        {
+            var saved = snapshot.Rules.FirstOrDefault(r => r.Name == rule.Options.Name);
+            if (saved is not null)
+            {
+                rule.Raised = saved.Raised;
+                rule.RaisedCount = saved.RaisedCount;
+            }
+        }
+        Counters = snapshot.Counters.Copy();
+        _clockTicks = snapshot.ClockTicks;
+    }
 
     private int ModelFor(string key)
     {

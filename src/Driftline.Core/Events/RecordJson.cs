@@ -1,0 +1,86 @@
+using System.Text.Json;
+using Driftline.Core.Alerts;
+using Driftline.Core.Scoring;
+
+namespace Driftline.Core.Events;
+
+/// <summary>
+/// The JSON shapes Driftline emits (the output half of the data contracts): predictions and
+/// alerts. Writes into a caller's <see cref="Utf8JsonWriter"/>; no I/O here.
+/// </summary>
+internal static class RecordJson
+{
+    /// <summary>Writes <c>{"id","key","p","model_version","time"}</c>; <c>time</c> only when the event had one.</summary>
+    public static void WritePrediction(Utf8JsonWriter w, in Prediction p)
+    {
+        w.WriteStartObject();
+        w.WriteString("id"u8, p.Id);
+        w.WriteString("key"u8, p.Key);
+        w.WriteNumber("p"u8, p.P);
+        w.WriteNumber("model_version"u8, p.ModelVersion);
+        if (p.TimeTicks != ParsedRecord.NoTime)
+        {
+            w.WriteString("time"u8, new DateTime(p.TimeTicks, DateTimeKind.Utc));
+        }
+        w.WriteEndObject();
+    }
+
+    /// <summary>
+    /// Writes an alert: <c>rule</c>, <c>state</c> (raised/cleared), <c>metric</c>, <c>value</c>,
+    /// <c>threshold</c>, <c>window</c>, <c>event_id</c>, <c>time</c> (null when the label had none),
+    /// <c>labels</c> and a one-sentence <c>message</c>.
+    /// </summary>
+    public static void WriteAlert(Utf8JsonWriter w, AlertTransition a)
+    {
+        w.WriteStartObject();
+        w.WriteString("rule"u8, a.Rule);
+        w.WriteString("state"u8, a.Raised ? "raised" : "cleared");
+        w.WriteString("metric"u8, MetricName(a.Metric));
+        w.WriteNumber("value"u8, a.Value);
+        w.WriteNumber("threshold"u8, a.Threshold);
+        w.WriteNumber("window"u8, a.Window);
+        w.WriteString("event_id"u8, a.EventId);
+        if (a.TimeTicks != ParsedRecord.NoTime)
+        {
+            w.WriteString("time"u8, new DateTime(a.TimeTicks, DateTimeKind.Utc));
+        }
+        else
+        {
+            w.WriteNull("time"u8);
+        }
+        w.WriteNumber("labels"u8, a.Labels);
+        w.WriteString("message"u8, Describe(a));
+        w.WriteEndObject();
+    }
+
+    /// <summary>The snake_case name of a measure, as in outputs and configuration docs.</summary>
+    public static string MetricName(AlertMetric metric) => metric switch
+    {
+        AlertMetric.LogLoss => "log_loss",
+        AlertMetric.Brier => "brier",
+        AlertMetric.Ece => "ece",
+        AlertMetric.CalibrationInTheLarge => "calibration_in_the_large",
+        AlertMetric.CalibrationGap => "calibration_gap",
+        AlertMetric.LogLossOverPrior => "log_loss_over_prior",
+        _ => metric.ToString(),
+    };
+
+    /// <summary>One sentence a practitioner can read without the manual.</summary>
+    public static string Describe(AlertTransition a)
+    {
+        string measure = a.Metric switch
+        {
+            AlertMetric.CalibrationGap => "the gap between mean predicted probability and observed rate",
+            AlertMetric.CalibrationInTheLarge => "mean predicted probability minus observed rate",
+            AlertMetric.LogLossOverPrior => "the model's log-loss relative to the class-prior baseline",
+            AlertMetric.Ece => "the expected calibration error",
+            AlertMetric.LogLoss => "the log-loss",
+            AlertMetric.Brier => "the Brier score",
+            _ => MetricName(a.Metric),
+        };
+        string over = $"over the last {a.Window:N0} labels";
+        return a.Raised
+            ? $"Raised: {measure} {over} is {a.Value:0.####}, past the raise threshold {a.Threshold:0.####}."
+            : $"Cleared: {measure} {over} is back to {a.Value:0.####}, past the clear threshold {a.Threshold:0.####}.";
+    }
+}

@@ -1,0 +1,133 @@
+using Driftline.Core.Features;
+using Driftline.Core.Learning;
+using Driftline.Core.Metrics;
+using Driftline.Core.Options;
+using Driftline.Core.Scoring;
+
+namespace Driftline.Core.Snapshots;
+
+/// <summary>
+/// Everything the core holds, in a plain form that serialises to JSON: the models, the
+/// predictions still waiting for labels, the windows, the alert states and the counts. A
+/// snapshot restored into a new engine continues exactly as the saved one would have.
+/// </summary>
+internal sealed class EngineSnapshot
+{
+    /// <summary>Marks the file as a Driftline snapshot.</summary>
+    public string Format { get; set; } = FormatName;
+
+    /// <summary>Version of this layout; readers refuse versions they do not know.</summary>
+    public int FormatVersion { get; set; } = CurrentVersion;
+
+    /// <summary>The options the engine ran with.</summary>
+    public DriftlineOptions Options { get; set; } = new();
+
+    /// <summary>One entry per key.</summary>
+    public List<ModelSnapshot> Models { get; set; } = [];
+
+    /// <summary>Predictions held for late labels, oldest first.</summary>
+    public List<PendingSnapshot> Pending { get; set; } = [];
+
+    /// <summary>Predictions that left the store unlabelled.</summary>
+    public long ExpiredLabels { get; set; }
+
+    /// <summary>Window contents per window size: the model's and the baseline's graded predictions, oldest first.</summary>
+    public List<WindowSnapshot> Windows { get; set; } = [];
+
+    /// <summary>Whole-run totals of the model.</summary>
+    public CalibrationTotalsState? Totals { get; set; }
+
+    /// <summary>Whole-run totals of the baseline.</summary>
+    public CalibrationTotalsState? PriorTotals { get; set; }
+
+    /// <summary>Alert rule states by name.</summary>
+    public List<RuleSnapshot> Rules { get; set; } = [];
+
+    /// <summary>Whole-run counts.</summary>
+    public ScoringCounters Counters { get; set; } = new();
+
+    /// <summary>Latest event time seen (UTC ticks), or no time.</summary>
+    public long ClockTicks { get; set; }
+
+    /// <summary>Value of <see cref="Format"/>.</summary>
+    public const string FormatName = "driftline-state";
+
+    /// <summary>Value of <see cref="FormatVersion"/> written by this build.</summary>
+    public const int CurrentVersion = 1;
+}
+
+/// <summary>One key's model.</summary>
+internal sealed class ModelSnapshot
+{
+    /// <summary>The key.</summary>
+    public string Key { get; set; } = "";
+
+    /// <summary>The learner's statistics.</summary>
+    public LearnerState Learner { get; set; } = new();
+
+    /// <summary>Scaling statistics of numeric features.</summary>
+    public List<NumericStats> Scaling { get; set; } = [];
+
+    /// <summary>Labels the prior has seen.</summary>
+    public long PriorCount { get; set; }
+
+    /// <summary>Positive labels the prior has seen.</summary>
+    public long PriorPositives { get; set; }
+
+    /// <summary>Events scored.</summary>
+    public long Scored { get; set; }
+}
+
+/// <summary>A prediction waiting for its label.</summary>
+internal sealed class PendingSnapshot
+{
+    /// <summary>Event id.</summary>
+    public string Id { get; set; } = "";
+
+    /// <summary>Index into <see cref="EngineSnapshot.Models"/>.</summary>
+    public int Model { get; set; }
+
+    /// <summary>Event time (UTC ticks).</summary>
+    public long TimeTicks { get; set; }
+
+    /// <summary>Probability emitted.</summary>
+    public double P { get; set; }
+
+    /// <summary>Baseline probability at the same moment.</summary>
+    public double PriorP { get; set; }
+
+    /// <summary>Already graded (kept to recognise duplicates).</summary>
+    public bool Labelled { get; set; }
+
+    /// <summary>Feature slots.</summary>
+    public int[] Slots { get; set; } = [];
+
+    /// <summary>Feature values.</summary>
+    public double[] Values { get; set; } = [];
+}
+
+/// <summary>The contents of one window size.</summary>
+internal sealed class WindowSnapshot
+{
+    /// <summary>Window size in labels.</summary>
+    public int Size { get; set; }
+
+    /// <summary>The model's graded predictions, oldest first.</summary>
+    public GradedPrediction[] Model { get; set; } = [];
+
+    /// <summary>The baseline's graded predictions, oldest first.</summary>
+    public GradedPrediction[] Prior { get; set; } = [];
+}
+
+/// <summary>One alert rule's state.</summary>
+internal sealed class RuleSnapshot
+{
+    /// <summary>Rule name.</summary>
+    public string Name { get; set; } = "";
+
+    /// <summary>Raised now.</summary>
+    public bool Raised { get; set; }
+
+    /// <summary>Times raised.</summary>
+    public long RaisedCount { get; set; }
+}

@@ -1,0 +1,48 @@
+using System.Text.Json;
+using System.Text.Json.Serialization;
+
+namespace Driftline.Core.Snapshots;
+
+/// <summary>
+/// Reads and writes <see cref="EngineSnapshot"/> as JSON. Doubles are written in their
+/// shortest round-trip form, so a snapshot restores bit for bit.
+/// </summary>
+internal static class SnapshotCodec
+{
+    private static readonly JsonSerializerOptions Json = new()
+    {
+        PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower,
+        WriteIndented = false,
+        Converters = { new JsonStringEnumConverter() },
+        NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
+    };
+
+    /// <summary>Writes <paramref name="snapshot"/> to <paramref name="stream"/>.</summary>
+    public static void Write(EngineSnapshot snapshot, Stream stream) => JsonSerializer.Serialize(stream, snapshot, Json);
+
+    /// <summary>
+    /// Reads a snapshot. Throws <see cref="InvalidDataException"/> with a plain reason when
+    /// the content is not a Driftline snapshot or is of an unknown version.
+    /// </summary>
+    public static EngineSnapshot Read(Stream stream)
+    {
+        EngineSnapshot? snapshot;
+        try
+        {
+            snapshot = JsonSerializer.Deserialize<EngineSnapshot>(stream, Json);
+        }
+        catch (JsonException ex)
+        {
+            throw new InvalidDataException("not a Driftline model snapshot: " + ex.Message, ex);
+        }
+        if (snapshot is null || snapshot.Format != EngineSnapshot.FormatName)
+        {
+            throw new InvalidDataException($"not a Driftline model snapshot (format is not '{EngineSnapshot.FormatName}')");
+        }
+        if (snapshot.FormatVersion != EngineSnapshot.CurrentVersion)
+        {
+            throw new InvalidDataException($"snapshot format version {snapshot.FormatVersion} is not supported by this build (it reads version {EngineSnapshot.CurrentVersion})");
+        }
+        return snapshot;
+    }
+}

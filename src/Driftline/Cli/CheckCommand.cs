@@ -1,0 +1,60 @@
+using System.CommandLine;
+using Driftline.Configuration;
+using Driftline.Core.Events;
+using Driftline.Core.Options;
+
+namespace Driftline.Cli;
+
+/// <summary><c>driftline check CONFIG</c>: validates a configuration and says what the worker would do with it.</summary>
+internal sealed class CheckCommand(CommandContext context)
+{
+    /// <summary>The command-line definition.</summary>
+    public Command Build()
+    {
+        var config = new Argument<string>("CONFIG") { Description = "JSON configuration file" };
+        var command = new Command("check", "Validate a configuration and print what would run") { config };
+        command.SetAction(result => Run(result.GetValue(config)!));
+        return command;
+    }
+
+    /// <summary>Validates <paramref name="path"/>; returns the exit code.</summary>
+    public int Run(string path)
+    {
+        var options = ConfigLoader.Load(path, context.Environment, out var errors);
+        if (options is null)
+        {
+            return ConfigErrors.Report(context.Error, path, errors);
+        }
+        Describe(options, context.Out);
+        context.Out.WriteLine($"{path}: valid.");
+        return ExitCode.Ok;
+    }
+
+    /// <summary>Writes a plain description of what <paramref name="options"/> configures.</summary>
+    public static void Describe(DriftlineOptions options, TextWriter o)
+    {
+        var m = options.Model;
+        o.WriteLine($"Model: {(m.Learner == LearnerKind.Ftrl ? "FTRL-Proximal" : "AdaGrad")} logistic regression, 2^{m.HashBits} = {1 << m.HashBits:N0} hashed weights per key (at most {m.MaxModels} keys).");
+        o.WriteLine($"  learning rate {m.LearningRate}, rate smoothing {m.RateSmoothing}, L1 {m.L1}, L2 {m.L2}.");
+        o.WriteLine(m.HalfLifeLabels > 0
+            ? $"  forgetting: evidence counts half after {m.HalfLifeLabels:N0} labels."
+            : "  forgetting: off (the model's rates shrink as it learns).");
+        o.WriteLine(m.Scaling == ScalingMode.Online
+            ? $"  numbers standardised online (running mean and variance), clipped at ±{m.StandardisedLimit} sd."
+            : "  numbers used as given.");
+        foreach (var (name, scale) in m.FixedScales)
+        {
+            o.WriteLine($"  {name} divided by {scale}.");
+        }
+        o.WriteLine(m.Interactions.Count == 0 ? "  no interactions." : $"  interactions: {string.Join(", ", m.Interactions)}.");
+        o.WriteLine($"Late labels: up to {options.Labels.MaxPending:N0} predictions wait, each for at most {options.Labels.MaxAge} of event time.");
+        o.WriteLine($"Monitor: rolling window of {options.Monitor.Window:N0} labels, {options.Monitor.Bins} reliability bins, a metrics row every {options.Monitor.MetricsEvery:N0} labels.");
+        var rules = options.EffectiveAlerts;
+        o.WriteLine(rules.Count == 0 ? "Alerts: none." : $"Alerts{(options.Alerts is null ? " (defaults)" : "")}:");
+        foreach (var r in rules)
+        {
+            string side = r.Direction == Core.Alerts.AlertDirection.Above ? "rises to" : "falls to";
+            o.WriteLine($"  {r.Name}: raise when {RecordJson.MetricName(r.Metric)} over the last {r.Window:N0} labels {side} {r.Raise}, clear at {r.Clear}; needs {r.MinLabels:N0} labels first.");
+        }
+    }
+}

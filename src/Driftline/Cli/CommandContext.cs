@@ -1,0 +1,8 @@
+namespace Driftline.Cli;
+
+/// <summary>What every command gets from its host: where to write and the environment to read overrides from.</summary>
+/// <param name="Out">Results and human-readable summaries.</param>
+/// <param name="Error">Error messages and progress.</param>
+/// <param name="Environment">Environment variables (for <c>DRIFTLINE_</c> overrides).</param>
+/// <param name="StandardInput">Opens standard input, for the FILE argument <c>-</c>.</param>
+internal sealed record CommandContext(TextWriter Out, TextWriter Error, IDictionary<string, string?> Environment, Func<Stream> StandardInput);

@@ -1,0 +1,59 @@
+using System.Text.Json;
+using Driftline.Core.Scoring;
+
+namespace Driftline.Output;
+
+/// <summary>Writes <c>summary.json</c>: the run's figures in one small object.</summary>
+internal static class SummaryWriter
+{
+    /// <summary>Writes the summary of <paramref name="engine"/>'s run to <paramref name="path"/>.</summary>
+    public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed)
+    {
+        using var file = File.Create(path);
+        using var w = new Utf8JsonWriter(file, new JsonWriterOptions { Indented = true });
+        var c = engine.Counters;
+        var total = engine.Totals.Current;
+        var prior = engine.PriorTotals.Current;
+        w.WriteStartObject();
+        w.WriteNumber("events", c.Events);
+        w.WriteNumber("labels", c.Labels);
+        w.WriteNumber("inline_labels", c.InlineLabels);
+        w.WriteNumber("late_labels", c.LateLabels);
+        w.WriteNumber("expired_labels", engine.Pending.Expired);
+        w.WriteNumber("waiting_labels", engine.Pending.Waiting);
+        w.WriteNumber("unknown_labels", c.UnknownLabels);
+        w.WriteNumber("duplicate_labels", c.DuplicateLabels);
+        w.WriteNumber("dead_letters", deadLetters);
+        Number(w, "log_loss", total.LogLoss);
+        Number(w, "prior_log_loss", prior.LogLoss);
+        Number(w, "log_loss_skill", prior.LogLoss > 0 ? 1 - total.LogLoss / prior.LogLoss : double.NaN);
+        Number(w, "brier", total.Brier);
+        Number(w, "prior_brier", prior.Brier);
+        Number(w, "ece", total.Ece);
+        Number(w, "calibration_in_the_large", total.CalibrationInTheLarge);
+        w.WriteNumber("alerts_raised", c.AlertsRaised);
+        w.WriteNumber("alerts_cleared", c.AlertsCleared);
+        w.WriteStartArray("alerts_open");
+        foreach (var rule in engine.Rules.Where(r => r.Raised))
+        {
+            w.WriteStringValue(rule.Options.Name);
+        }
+        w.WriteEndArray();
+        w.WriteNumber("models", engine.Models.Count);
+        w.WriteNumber("refused_updates", engine.Models.Sum(m => m.Learner.RefusedUpdates));
+        w.WriteNumber("seconds", Math.Round(elapsed.TotalSeconds, 3));
+        w.WriteEndObject();
+    }
+
+    private static void Number(Utf8JsonWriter w, string name, double value)
+    {
+        if (double.IsFinite(value))
+        {
+            w.WriteNumber(name, value);
+        }
+        else
+        {
+            w.WriteNull(name);
+        }
+    }
+}

@@ -1,0 +1,21 @@
+using Driftline.Cli;
+using Driftline.Configuration;
+using Serilog;
+
+Log.Logger = new LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
+try
+{
+    using var stop = new CancellationTokenSource();
+    Console.CancelKeyPress += (_, e) => { e.Cancel = true; stop.Cancel(); };
+    var context = new CommandContext(Console.Out, Console.Error, ConfigLoader.ProcessEnvironment(), Console.OpenStandardInput);
+    return await DriftlineCli.RunAsync(args, context, stop.Token);
+}
+catch (Exception ex)
+{
+    Log.Fatal(ex, "Driftline stopped on an unexpected error");
+    return ExitCode.Failure;
+}
+finally
+{
+    await Log.CloseAndFlushAsync();
+}
