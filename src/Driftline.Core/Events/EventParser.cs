@@ -40,6 +40,12 @@ internal sealed class EventParser
     public bool TryParse(ReadOnlySpan<byte> utf8, ParsedRecord record, out string? error)
     {
         record.Reset();
+        if (!System.Text.Unicode.Utf8.IsValid(utf8))
+        {
+            // The reader checks structure, not the bytes inside strings; JSON text must be UTF-8 (RFC 8259).
+            error = "not valid JSON: the text is not valid UTF-8";
+            return false;
+        }
         try
         {
             error = ParseObject(utf8, record);

@@ -1,0 +1,101 @@
+using System.Text;
+using Driftline.Core.Events;
+using Driftline.Core.Features;
+using Xunit;
+
+namespace Driftline.Core.Tests.Events;
+
+public sealed class EventParserTests
+{
+    private readonly EventParser _parser = new();
+    private readonly ParsedRecord _record = new();
+
+    private bool Parse(string json, out string? error) => _parser.TryParse(Encoding.UTF8.GetBytes(json), _record, out error);
+
+    [Fact]
+    public void TryParse_FullEvent_ReadsEveryField()
+    {
+        Assert.True(Parse("""{"id":"o-1","time":"2026-03-04T18:22:05.120Z","key":"city-north","features":{"zone":"riverside","distance_km":3.4,"items":5,"raining":true,"tags":["dessert","large-order"],"note":null},"label":1}""", out var error), error);
+        Assert.Equal(RecordKind.Event, _record.Kind);
+        Assert.Equal("o-1", _record.Id);
+        Assert.Equal("city-north", _record.Key);
+        Assert.Equal(new DateTimeOffset(2026, 3, 4, 18, 22, 5, 120, TimeSpan.Zero).UtcTicks, _record.TimeTicks);
+        Assert.Equal(1, _record.Label);
+        // zone, distance_km, items, raining, two tags; null skipped.
+        Assert.Equal(6, _record.FeatureCount);
+        var f = _record.Features;
+        Assert.Equal(RawFeatureKind.Categorical, f[0].Kind);
+        Assert.Equal(FeatureHash.Value(FeatureHash.Name("zone"u8), "riverside"u8), f[0].Hash);
+        Assert.Equal((RawFeatureKind.Numeric, 3.4), (f[1].Kind, f[1].Value));
+        Assert.Equal((RawFeatureKind.Boolean, 1.0), (f[3].Kind, f[3].Value));
+        Assert.Equal(f[4].NameHash, f[5].NameHash);
+        Assert.NotEqual(f[4].Hash, f[5].Hash);
+    }
+
+    [Fact]
+    public void TryParse_EscapedText_HashesLikeTheUnescapedBytes()
+    {
+        Assert.True(Parse("""{"id":"a","features":{"zo\u006ee":"river\u0073ide"}}""", out _));
+        Assert.Equal(FeatureHash.Value(FeatureHash.Name("zone"u8), "riverside"u8), _record.Features[0].Hash);
+    }
+
+    [Theory]
+    [InlineData("""{"id":"a","label":0}""", nameof(RecordKind.Label))]
+    [InlineData("""{"id":"a","label":true}""", nameof(RecordKind.Label))]
+    [InlineData("""{"id":"a","p":0.3}""", nameof(RecordKind.Probability))]
+    [InlineData("""{"id":"a","p":0.3,"label":1}""", nameof(RecordKind.Probability))]
+    [InlineData("""{"id":"a","features":{}}""", nameof(RecordKind.Event))]
+    public void TryParse_Shapes_AreClassified(string json, string kind)
+    {
+        Assert.True(Parse(json, out var error), error);
+        Assert.Equal(kind, _record.Kind.ToString());
+    }
+
+    [Theory]
+    [InlineData("not json", "not valid JSON")]
+    [InlineData("""{"id":"a","features":{"x":1""", "not valid JSON")]
+    [InlineData("[1,2]", "not a JSON object")]
+    [InlineData("""{"features":{"x":1}}""", "id must be a non-empty string")]
+    [InlineData("""{"id":"","features":{"x":1}}""", "id must be a non-empty string")]
+    [InlineData("""{"id":7,"features":{"x":1}}""", "id must be a non-empty string")]
+    [InlineData("""{"id":"a","features":[1]}""", "features must be a JSON object")]
+    [InlineData("""{"id":"a","features":"x"}""", "features must be a JSON object")]
+    [InlineData("""{"id":"a","features":{"x":{"y":1}}}""", "feature 'x' must be")]
+    [InlineData("""{"id":"a","features":{"tags":["a",2]}}""", "feature 'tags' is an array")]
+    [InlineData("""{"id":"a","features":{"x":1e999}}""", "feature 'x' is not a finite number")]
+    [InlineData("""{"id":"a","features":{"x":1},"label":2}""", "label must be 0, 1, true or false")]
+    [InlineData("""{"id":"a","features":{"x":1},"label":"1"}""", "label must be 0, 1, true or false")]
+    [InlineData("""{"id":"a","p":1.5}""", "p must be a finite number between 0 and 1")]
+    [InlineData("""{"id":"a","time":"yesterday","label":1}""", "time must be an ISO 8601 timestamp")]
+    [InlineData("""{"id":"a"}""", "neither features")]
+    [InlineData("""{"id":"a","label":1} {"id":"b"}""", "not valid JSON")]
+    public void TryParse_BadRecord_IsRejectedWithReason(string json, string reason)
+    {
+        Assert.False(Parse(json, out var error));
+        Assert.Contains(reason, error, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void TryParse_InvalidUtf8_IsRejected()
+    {
+        byte[] bytes = [.. "{\"id\":\"a\",\"features\":{\"z\":\""u8, 0xFF, 0xFE, .. "\"}}"u8];
+        Assert.False(_parser.TryParse(bytes, _record, out var error));
+        Assert.StartsWith("not valid JSON", error, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void TryParse_UnknownTopLevelField_IsIgnored()
+    {
+        Assert.True(Parse("""{"id":"a","source":{"deep":[1,2,{"x":3}]},"features":{"x":1}}""", out var error), error);
+        Assert.Equal(1, _record.FeatureCount);
+    }
+
+    [Fact]
+    public void TryParse_SameKeyTwice_ReturnsTheSameString()
+    {
+        Assert.True(Parse("""{"id":"a","key":"north","features":{}}""", out _));
+        string first = _record.Key!;
+        Assert.True(Parse("""{"id":"b","key":"north","features":{}}""", out _));
+        Assert.Same(first, _record.Key);
+    }
+}

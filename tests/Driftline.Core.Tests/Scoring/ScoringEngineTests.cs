@@ -1,0 +1,124 @@
+using Driftline.Core.Options;
+using Driftline.Core.Scoring;
+using Driftline.Core.Snapshots;
+using Xunit;
+
+namespace Driftline.Core.Tests.Scoring;
+
+public sealed class ScoringEngineTests
+{
+    private static DriftlineOptions Options(int bits = 12) => new()
+    {
+        Model = new ModelOptions { HashBits = bits },
+        Monitor = new MonitorOptions { Window = 100, MetricsEvery = 50 },
+        Alerts = [],
+    };
+
+    [Fact]
+    public void Process_InlineLabel_ScoresBeforeLearning()
+    {
+        // Progressive validation: the label of an event never influences its own score.
+        var withLabel = new RecordingSink();
+        var withoutLabel = new RecordingSink();
+        var a = new ScoringEngine(Options(), withLabel);
+        var b = new ScoringEngine(Options(), withoutLabel);
+        var stream = new KnownModelStream(1);
+        for (int i = 0; i < 200; i++)
+        {
+            var e = stream.Next(i);
+            EngineDriver.Feed(a, [e.Json]);
+            EngineDriver.Feed(b, [e.Json.Replace($",\"label\":{e.Label}", "", StringComparison.Ordinal), $"{{\"id\":\"e{i}\",\"label\":{e.Label}}}"]);
+        }
+        Assert.Equal(0.5, withLabel.Predictions[0].P);
+        Assert.Equal(withLabel.Predictions.Select(p => p.P), withoutLabel.Predictions.Select(p => p.P));
+        Assert.Equal(a.Totals.Current, b.Totals.Current);
+        Assert.Equal(200, a.Counters.InlineLabels);
+        Assert.Equal(200, b.Counters.LateLabels);
+    }
+
+    [Fact]
+    public void Process_LateLabel_GradesTheProbabilityThatWasEmitted()
+    {
+        var sink = new RecordingSink();
+        var engine = new ScoringEngine(Options(), sink);
+        var stream = new KnownModelStream(2);
+        var lines = Enumerable.Range(0, 50).Select(i => stream.Next(i).Json).ToList();
+        EngineDriver.Feed(engine, lines);
+        var outcomes = EngineDriver.Feed(engine,
+            ["""{"id":"late-1","features":{"level":"a"}}""", """{"id":"e0","label":1}""", """{"id":"late-1","label":0}""", """{"id":"late-1","label":0}""", """{"id":"nobody","label":0}"""]);
+        Assert.Equal([StepOutcome.Scored, StepOutcome.UnknownLabel, StepOutcome.LateLabelJoined, StepOutcome.DuplicateLabel, StepOutcome.UnknownLabel], outcomes);
+        // e0 was labelled inline already, so its id is not pending; late-1 is graded at the p it was given.
+        double emitted = sink.Predictions[^1].P;
+        var window = engine.Window.ToArray();
+        Assert.Equal(emitted, window[^1].P);
+        Assert.Equal(0, window[^1].Y);
+        Assert.Equal(1, engine.Counters.DuplicateLabels);
+        Assert.Equal(2, engine.Counters.UnknownLabels);
+    }
+
+    [Fact]
+    public void Restore_FromSnapshotMidStream_ContinuesExactlyAsAnUninterruptedRun()
+    {
+        var stream = new KnownModelStream(3);
+        var lines = new List<string>();
+        var late = new Queue<string>();
+        for (int i = 0; i < 3000; i++)
+        {
+            var e = stream.Next(i, withLabel: i % 3 != 0);
+            lines.Add(e.Json);
+            if (i % 3 == 0)
+            {
+                late.Enqueue($"{{\"id\":\"e{i}\",\"label\":{e.Label}}}");
+            }
+            if (late.Count > 20)
+            {
+                lines.Add(late.Dequeue());
+            }
+        }
+        var options = Options();
+        options.Model.HalfLifeLabels = 500;
+        options.Alerts = null;
+
+        var whole = new RecordingSink();
+        var uninterrupted = new ScoringEngine(options, whole);
+        EngineDriver.Feed(uninterrupted, lines);
+
+        var first = new RecordingSink();
+        var before = new ScoringEngine(options, first);
+        EngineDriver.Feed(before, lines.Take(1700));
+        using var saved = new MemoryStream();
+        SnapshotCodec.Write(before.Snapshot(), saved);
+        saved.Position = 0;
+        var second = new RecordingSink();
+        var after = ScoringEngine.Restore(SnapshotCodec.Read(saved), second);
+        EngineDriver.Feed(after, lines.Skip(1700));
+
+        Assert.Equal(whole.Predictions, first.Predictions.Concat(second.Predictions));
+        Assert.Equal(uninterrupted.Totals.Current, after.Totals.Current);
+        Assert.Equal(uninterrupted.Counters.LateLabels, after.Counters.LateLabels);
+        Assert.Equal(uninterrupted.Models[0].Learner.Export().First, after.Models[0].Learner.Export().First);
+    }
+
+    [Fact]
+    public void Process_KeysBeyondMaxModels_AreRejectedWithTheOptionNamed()
+    {
+        var options = Options();
+        options.Model.MaxModels = 2;
+        var engine = new ScoringEngine(options, new RecordingSink());
+        var outcomes = EngineDriver.Feed(engine, ["""{"id":"1","key":"a","features":{}}""", """{"id":"2","key":"b","features":{}}""", """{"id":"3","key":"c","features":{}}"""]);
+        Assert.Equal(StepOutcome.Rejected, outcomes[2]);
+        Assert.Contains("Model:MaxModels", engine.RejectReason, StringComparison.Ordinal);
+        Assert.Equal(2, engine.Models.Count);
+    }
+
+    [Fact]
+    public void Process_ExternalProbabilities_AreGradedWithoutAModelUpdate()
+    {
+        var engine = new ScoringEngine(Options(), new RecordingSink());
+        EngineDriver.Feed(engine, ["""{"id":"1","p":0.2,"label":0}""", """{"id":"2","p":0.9}""", """{"id":"2","label":1}"""]);
+        Assert.Equal(2, engine.Totals.Current.Count);
+        // Mean of (0.2 - 0)^2 and (0.9 - 1)^2: Brier = 0.025.
+        Assert.Equal(0.025, engine.Totals.Current.Brier, 12);
+        Assert.Equal(0, engine.Models[0].Learner.Updates);
+    }
+}
