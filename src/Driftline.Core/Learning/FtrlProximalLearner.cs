@@ -6,9 +6,17 @@ namespace Driftline.Core.Learning;
 /// FTRL-Proximal with per-coordinate rates, L1 and L2: McMahan et al. 2013, "Ad Click
 /// Prediction: a View from the Trenches", Algorithm 1. The weight of a slot is computed from
 /// its statistics z and n when read, so L1 gives exact zeros and an untouched slot costs
-/// nothing. With forgetting, z and n are both discounted (see <see cref="OnlineLearner"/>),
-/// which makes the learner follow the discounted cumulative loss.
+/// nothing.
 /// </summary>
+/// <remarks>
+/// Forgetting discounts every term of the FTRL objective alike: the linearised losses and the
+/// proximal terms ½σ_s‖w − w_s‖² of past steps count γ^(t−s), only the β/α smoothing does not.
+/// The closed form is then w = −(z − sgn(z)λ1) / (β/α + S + λ2), with z = Σγ(g − σw) as usual
+/// and S = Σγσ kept per slot. Without forgetting S = √n/α and this is McMahan's formula; with
+/// it, using √n/α in place of S would pull every weight towards zero (the centring mass in z
+/// is discounted but √n is not a discounted sum of σ), which shows as under-confident
+/// probabilities.
+/// </remarks>
 internal sealed class FtrlProximalLearner : OnlineLearner
 {
     private readonly double _alpha;
@@ -17,6 +25,7 @@ internal sealed class FtrlProximalLearner : OnlineLearner
     private readonly double _l2;
     private readonly double[] _z;
     private readonly double[] _n;
+    private readonly double[] _sigma;
 
     /// <summary>Creates an untrained learner.</summary>
     public FtrlProximalLearner(ModelOptions options) : base(options)
@@ -27,6 +36,7 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         _l2 = options.L2;
         _z = new double[Size];
         _n = new double[Size];
+        _sigma = new double[Size];
     }
 
     /// <inheritdoc />
@@ -38,8 +48,8 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         {
             return 0;
         }
-        double n = _n[slot] / inflation;
-        return -(z - Math.Sign(z) * _l1) / ((_beta + Math.Sqrt(n)) / _alpha + _l2);
+        double sigma = _sigma[slot] / inflation;
+        return -(z - Math.Sign(z) * _l1) / (_beta / _alpha + sigma + _l2);
     }
 
     /// <inheritdoc />
@@ -51,6 +61,7 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         double sigma = (Math.Sqrt(n + g * g) - Math.Sqrt(n)) / _alpha;
         _z[slot] += (g - sigma * w) * inflation;
         _n[slot] += g * g * inflation;
+        _sigma[slot] += sigma * inflation;
     }
 
     /// <inheritdoc />
@@ -60,6 +71,7 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         {
             _z[i] *= factor;
             _n[i] *= factor;
+            _sigma[i] *= factor;
         }
     }
 
@@ -79,6 +91,7 @@ internal sealed class FtrlProximalLearner : OnlineLearner
             Slots = [.. slots],
             First = slots.Select(i => _z[i]).ToArray(),
             Second = slots.Select(i => _n[i]).ToArray(),
+            Third = slots.Select(i => _sigma[i]).ToArray(),
             Inflation = Inflation,
             Updates = Updates,
             RefusedUpdates = RefusedUpdates,
@@ -91,10 +104,12 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         RestoreCounters(state);
         Array.Clear(_z);
         Array.Clear(_n);
+        Array.Clear(_sigma);
         for (int i = 0; i < state.Slots.Length; i++)
         {
             _z[state.Slots[i]] = state.First[i];
             _n[state.Slots[i]] = state.Second[i];
+            _sigma[state.Slots[i]] = state.Third[i];
         }
     }
 }
