@@ -20,6 +20,7 @@ public sealed class LogisticNewtonFitTests
         Assert.NotNull(fit.Problem);
         Assert.Contains("perfectly separated by the features", fit.Problem, StringComparison.Ordinal);
         Assert.Contains("add ridge (L2) or more data", fit.Problem, StringComparison.Ordinal);
+        Assert.DoesNotContain("quasi", fit.Problem, StringComparison.Ordinal);
     }
 
     [Fact]
