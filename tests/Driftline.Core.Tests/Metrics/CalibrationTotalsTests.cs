@@ -7,28 +7,6 @@ namespace Driftline.Core.Tests.Metrics;
 public sealed class CalibrationTotalsTests
 {
     [Fact]
-    public void Current_Empty_IsNotReady()
-    {
-        var totals = new CalibrationTotals();
-
-        Assert.False(totals.Current.IsReady);
-        Assert.True(double.IsNaN(totals.Current.LogLoss));
-        Assert.Equal(10, totals.Bins);
-        Assert.Equal(0, totals.Count);
-    }
-
-    [Fact]
-    public void Add_InvalidProbability_ThrowsNamingIt()
-    {
-        var totals = new CalibrationTotals();
-
-        var e = Assert.Throws<ArgumentOutOfRangeException>(() => totals.Add(1.5, 1));
-
-        Assert.Equal("p", e.ParamName);
-        Assert.Equal(0, totals.Count);
-    }
-
-    [Fact]
     public void Add_RandomSequences_MatchesRecomputationAndRestoresExactly()
     {
         (from bins in CalibrationProperties.Bins

@@ -20,19 +20,21 @@ public sealed class CalibrationWindowPropertyTests
         {
             var window = new CalibrationWindow(run.Capacity, run.Bins);
             var bins = new ReliabilityBin[run.Bins];
+            NaiveCalibration.Term[] terms = NaiveCalibration.Terms(run.Items, run.Bins);
             for (int i = 0; i < run.Items.Length; i++)
             {
                 window.Add(run.Items[i].P, run.Items[i].Y);
 
                 int start = Math.Max(0, i + 1 - run.Capacity);
                 ReadOnlySpan<GradedPrediction> held = run.Items.AsSpan(start, i + 1 - start);
+                ReadOnlySpan<NaiveCalibration.Term> heldTerms = terms.AsSpan(start, i + 1 - start);
                 string where = $"after add {i}";
                 Assert.Equal(held.Length, window.Count);
-                CalibrationProperties.AssertMatches(NaiveCalibration.Snapshot(held, run.Bins), window.Current, where);
+                CalibrationProperties.AssertMatches(NaiveCalibration.Snapshot(held, heldTerms, run.Bins), window.Current, where);
                 window.CopyBins(bins);
-                CalibrationProperties.AssertMatches(NaiveCalibration.Bins(held, run.Bins), bins, where);
+                CalibrationProperties.AssertMatches(NaiveCalibration.Bins(held, heldTerms, run.Bins), bins, where);
             }
-        }, iter: 60);
+        }, iter: 100);
     }
 
     [Fact]

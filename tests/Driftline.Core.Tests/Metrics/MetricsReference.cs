@@ -1,5 +1,6 @@
 using System.Reflection;
 using System.Text.Json;
+using Driftline.Core.Metrics;
 using Xunit;
 
 namespace Driftline.Core.Tests.Metrics;
@@ -49,6 +50,37 @@ internal static class MetricsReference
         if (!(Math.Abs(expected - actual) <= tolerance))
         {
             Assert.Fail($"{what}: expected {expected:R} ({Source}), got {actual:R}, tolerance {tolerance:R}.");
+        }
+    }
+
+    /// <summary>Checks count, log-loss, Brier, left-closed ECE and the means of a snapshot over the whole vector, to 1e-12.</summary>
+    public static void AssertSnapshot(MetricsCase c, CalibrationSnapshot s)
+    {
+        const double tolerance = 1e-12;
+        Assert.True(s.IsReady);
+        Assert.Equal(c.Probabilities.Length, s.Count);
+        AssertClose(c.LogLoss, s.LogLoss, tolerance, "log_loss");
+        AssertClose(c.Brier, s.Brier, tolerance, "brier_score_loss");
+        AssertClose(c.EceLeftClosed, s.Ece, tolerance, "ece_10_bins_left_closed");
+        // The means are not in the file; they follow from its vectors directly.
+        AssertClose(c.Probabilities.Average(), s.MeanP, tolerance, "mean of probabilities");
+        AssertClose(c.Labels.Average(), s.MeanY, tolerance, "mean of labels");
+        AssertClose(c.Probabilities.Average() - c.Labels.Average(), s.CalibrationInTheLarge, tolerance, "mean p - mean y");
+    }
+
+    /// <summary>Checks edges and counts exactly and the per-bin means to 1e-12 against a reference table.</summary>
+    public static void AssertBins(ReferenceBin[] expected, ReadOnlySpan<ReliabilityBin> actual, string what)
+    {
+        const double tolerance = 1e-12;
+        Assert.Equal(expected.Length, actual.Length);
+        for (int k = 0; k < expected.Length; k++)
+        {
+            Assert.Equal(expected[k].Index, actual[k].Index);
+            Assert.Equal(expected[k].Lower, actual[k].Lower);
+            Assert.Equal(expected[k].Upper, actual[k].Upper);
+            Assert.Equal(expected[k].Count, actual[k].Count);
+            AssertClose(expected[k].MeanP, actual[k].MeanP, tolerance, $"{what} {k} mean_p");
+            AssertClose(expected[k].MeanY, actual[k].MeanY, tolerance, $"{what} {k} mean_y");
         }
     }
 

@@ -8,28 +8,56 @@ namespace Driftline.Core.Tests.Metrics;
 /// </summary>
 internal static class NaiveCalibration
 {
+    /// <summary>Per-prediction terms, computed once so a test can re-sum many overlapping windows cheaply.</summary>
+    public readonly record struct Term(double Loss, double Squared, int Bin);
+
+    /// <summary>Log-loss term (sklearn eps='auto' clipping), squared error and left-closed bin of each prediction.</summary>
+    public static Term[] Terms(ReadOnlySpan<GradedPrediction> items, int bins)
+    {
+        const double eps = 2.220446049250313e-16;
+        double[] edges = Linspace(bins);
+        var terms = new Term[items.Length];
+        for (int i = 0; i < items.Length; i++)
+        {
+            GradedPrediction g = items[i];
+            double p = Math.Min(Math.Max(g.P, eps), 1 - eps);
+            // Left-closed bin: the number of interior edges at or below p (numpy searchsorted, side='right').
+            int k = 0;
+            for (int e = 1; e < bins; e++)
+            {
+                k += edges[e] <= g.P ? 1 : 0;
+            }
+
+            terms[i] = new Term(-(g.Y * Math.Log(p) + (1 - g.Y) * Math.Log(1 - p)), (g.P - g.Y) * (g.P - g.Y), k);
+        }
+
+        return terms;
+    }
+
     /// <summary>Metric values over <paramref name="items"/>, as CalibrationSnapshot defines them.</summary>
-    public static CalibrationSnapshot Snapshot(ReadOnlySpan<GradedPrediction> items, int bins)
+    public static CalibrationSnapshot Snapshot(ReadOnlySpan<GradedPrediction> items, int bins) =>
+        Snapshot(items, Terms(items, bins), bins);
+
+    /// <summary>Metric values over <paramref name="items"/> with their precomputed <paramref name="terms"/>.</summary>
+    public static CalibrationSnapshot Snapshot(ReadOnlySpan<GradedPrediction> items, ReadOnlySpan<Term> terms, int bins)
     {
         if (items.Length == 0)
         {
             return CalibrationSnapshot.Empty;
         }
 
-        const double eps = 2.220446049250313e-16;
         double loss = 0, squared = 0, sumP = 0, sumY = 0;
-        foreach (GradedPrediction g in items)
+        for (int i = 0; i < items.Length; i++)
         {
-            double p = Math.Min(Math.Max(g.P, eps), 1 - eps);
-            loss -= g.Y * Math.Log(p) + (1 - g.Y) * Math.Log(1 - p);
-            squared += (g.P - g.Y) * (g.P - g.Y);
-            sumP += g.P;
-            sumY += g.Y;
+            loss += terms[i].Loss;
+            squared += terms[i].Squared;
+            sumP += items[i].P;
+            sumY += items[i].Y;
         }
 
         double n = items.Length;
         double ece = 0;
-        foreach (ReliabilityBin b in Bins(items, bins))
+        foreach (ReliabilityBin b in Bins(items, terms, bins))
         {
             if (b.Count > 0)
             {
@@ -40,27 +68,22 @@ internal static class NaiveCalibration
         return new CalibrationSnapshot(items.Length, loss / n, squared / n, ece, sumP / n, sumY / n, sumP / n - sumY / n);
     }
 
-    /// <summary>Left-closed bins by counting the interior linspace edges at or below p (numpy searchsorted, side='right').</summary>
-    public static ReliabilityBin[] Bins(ReadOnlySpan<GradedPrediction> items, int bins)
+    /// <summary>Left-closed reliability bins over <paramref name="items"/>.</summary>
+    public static ReliabilityBin[] Bins(ReadOnlySpan<GradedPrediction> items, int bins) => Bins(items, Terms(items, bins), bins);
+
+    /// <summary>Left-closed reliability bins over <paramref name="items"/> with their precomputed <paramref name="terms"/>.</summary>
+    public static ReliabilityBin[] Bins(ReadOnlySpan<GradedPrediction> items, ReadOnlySpan<Term> terms, int bins)
     {
         double[] edges = Linspace(bins);
         var count = new long[bins];
         var sumP = new double[bins];
         var sumY = new double[bins];
-        foreach (GradedPrediction g in items)
+        for (int i = 0; i < items.Length; i++)
         {
-            int k = 0;
-            for (int e = 1; e < bins; e++)
-            {
-                if (edges[e] <= g.P)
-                {
-                    k++;
-                }
-            }
-
+            int k = terms[i].Bin;
             count[k]++;
-            sumP[k] += g.P;
-            sumY[k] += g.Y;
+            sumP[k] += items[i].P;
+            sumY[k] += items[i].Y;
         }
 
         var result = new ReliabilityBin[bins];
