@@ -20,6 +20,12 @@ internal sealed class NumericScaler
     /// <summary>Creates a scaler whose standardised values are clipped to ±<paramref name="limit"/>.</summary>
     public NumericScaler(double limit) => _limit = limit;
 
+    /// <summary>
+    /// When true, values are standardised with the statistics so far and not folded in (a
+    /// batch fit's second pass); a feature never seen maps to 0. Default false.
+    /// </summary>
+    public bool Frozen { get; set; }
+
     /// <summary>Number of numeric features seen.</summary>
     public int Count => _index.Count;
 
@@ -32,6 +38,10 @@ internal sealed class NumericScaler
     {
         if (!_index.TryGetValue(nameHash, out int i))
         {
+            if (Frozen)
+            {
+                return 0;
+            }
             if (_index.Count >= MaxFeatures)
             {
                 return Math.Clamp(x, -_limit, _limit);
@@ -45,10 +55,14 @@ internal sealed class NumericScaler
                 Array.Resize(ref _m2, i * 2);
             }
         }
-        long n = ++_count[i];
-        double delta = x - _mean[i];
-        _mean[i] += delta / n;
-        _m2[i] += delta * (x - _mean[i]);
+        long n = _count[i];
+        if (!Frozen)
+        {
+            n = ++_count[i];
+            double delta = x - _mean[i];
+            _mean[i] += delta / n;
+            _m2[i] += delta * (x - _mean[i]);
+        }
         if (n < 2 || _m2[i] <= 0)
         {
             return 0;

@@ -267,8 +267,18 @@ internal sealed class ScoringEngine
         return engine;
     }
 
-    private void Load(EngineSnapshot snapshot)
+    /// <summary>
+    /// Loads the models of <paramref name="snapshot"/> (weights, scaling statistics and prior
+    /// counts) into this engine, which must not have scored yet: a warm start from a batch fit
+    /// or a saved run. Pending labels, windows and counts are not taken over.
+    /// </summary>
+    public void LoadModels(EngineSnapshot snapshot)
     {
+        ArgumentNullException.ThrowIfNull(snapshot);
+        if (Counters.Events > 0 || _models.Count > 0)
+        {
+            throw new InvalidOperationException("models can be loaded only before the first event");
+        }
         foreach (var m in snapshot.Models)
         {
             int index = ModelFor(m.Key);
@@ -281,6 +291,11 @@ internal sealed class ScoringEngine
             model.Prior = PriorBaseline.Restore(m.PriorCount, m.PriorPositives);
             model.Scored = m.Scored;
         }
+    }
+
+    private void Load(EngineSnapshot snapshot)
+    {
+        LoadModels(snapshot);
         foreach (var e in snapshot.Pending)
         {
             var slot = Pending.Add(e.Id, e.TimeTicks);

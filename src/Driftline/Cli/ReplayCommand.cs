@@ -24,18 +24,35 @@ internal sealed class ReplayCommand(CommandContext context)
         var file = new Argument<string>("FILE") { Description = "Recorded events, one JSON object per line; - reads standard input" };
         var output = new Option<string>("--out") { Description = "Folder for predictions, alerts, dead letters, metrics, summary and model", Required = true };
         var config = new Option<string?>("--config") { Description = "JSON configuration file (defaults apply to anything it leaves out)" };
-        var command = new Command("replay", "Replay a recorded file through the scoring pipeline") { file, output, config };
-        command.SetAction((result, token) => RunAsync(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), token));
+        var warm = new Option<string?>("--warm-start") { Description = "Model file (from fit or an earlier replay) whose weights the run starts from" };
+        var command = new Command("replay", "Replay a recorded file through the scoring pipeline") { file, output, config, warm };
+        command.SetAction((result, token) => RunAsync(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), token, result.GetValue(warm)));
         return command;
     }
 
     /// <summary>Runs a replay; returns the exit code.</summary>
-    public async Task<int> RunAsync(string file, string outDir, string? configPath, CancellationToken cancellation)
+    public async Task<int> RunAsync(string file, string outDir, string? configPath, CancellationToken cancellation, string? warmStart = null)
     {
         var options = ConfigLoader.Load(configPath, context.Environment, out var errors);
         if (options is null)
         {
             return ConfigErrors.Report(context.Error, configPath, errors);
+        }
+        EngineSnapshot? start = null;
+        if (warmStart is not null)
+        {
+            start = ReadModel(warmStart);
+            if (start is null)
+            {
+                return ExitCode.Input;
+            }
+            var m = start.Options.Model;
+            if (m.HashBits != options.Model.HashBits || m.Learner != options.Model.Learner)
+            {
+                return ConfigErrors.Report(context.Error, configPath,
+                    [new("Model:HashBits", $"the warm-start model has HashBits {m.HashBits} and Learner {m.Learner}, the configuration {options.Model.HashBits} and {options.Model.Learner}",
+                        "Use the configuration the model was fitted with")]);
+            }
         }
         using var input = InputFiles.Open(file, context);
         if (input is null)
@@ -55,6 +72,10 @@ internal sealed class ReplayCommand(CommandContext context)
 
         var clock = Stopwatch.StartNew();
         var pipeline = new ReplayPipeline(options);
+        if (start is not null)
+        {
+            pipeline.Engine.LoadModels(start);
+        }
         using (outputs)
         {
             try
@@ -95,5 +116,19 @@ internal sealed class ReplayCommand(CommandContext context)
         }
         o.WriteLine($"Outputs in {Path.GetFullPath(outDir)}: predictions.jsonl, alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ModelFile}");
         return ExitCode.Ok;
+    }
+
+    private EngineSnapshot? ReadModel(string path)
+    {
+        try
+        {
+            using var stream = File.OpenRead(path);
+            return SnapshotCodec.Read(stream);
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException or InvalidDataException)
+        {
+            context.Error.WriteLine($"driftline: cannot load model '{path}': {ex.Message}");
+            return null;
+        }
     }
 }

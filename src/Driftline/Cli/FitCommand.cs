@@ -1,0 +1,237 @@
+using System.CommandLine;
+using Driftline.Configuration;
+using Driftline.Core.Events;
+using Driftline.Core.Features;
+using Driftline.Core.Fitting;
+using Driftline.Core.Learning;
+using Driftline.Core.Options;
+using Driftline.Core.Scoring;
+using Driftline.Core.Snapshots;
+
+namespace Driftline.Cli;
+
+/// <summary>
+/// <c>driftline fit FILE --out MODEL [--config FILE] [--ridge L2]</c>: a batch
+/// maximum-likelihood logistic fit (Newton/IRLS) on a labelled file, with the online model's
+/// own features, saved as a model that <c>replay --warm-start</c> continues from.
+/// </summary>
+internal sealed class FitCommand(CommandContext context)
+{
+    /// <summary>Most distinct features a batch fit takes (the Hessian is dense).</summary>
+    public const int MaxColumns = 2_000;
+
+    /// <summary>The command-line definition.</summary>
+    public Command Build()
+    {
+        var file = new Argument<string>("FILE") { Description = "Labelled events (inline labels or label-only records), one JSON object per line" };
+        var output = new Option<string>("--out") { Description = "Model file to write", Required = true };
+        var config = new Option<string?>("--config") { Description = "Configuration whose Model section sets hashing, scaling and interactions" };
+        var ridge = new Option<double>("--ridge") { Description = "L2 penalty on the coefficients (not the intercept); 0 is plain maximum likelihood", DefaultValueFactory = _ => 0 };
+        var command = new Command("fit", "Fit a batch logistic model on a labelled file, to warm-start the online model") { file, output, config, ridge };
+        command.SetAction(result => Run(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), result.GetValue(ridge)));
+        return command;
+    }
+
+    /// <summary>Runs the fit; returns the exit code.</summary>
+    public int Run(string file, string outPath, string? configPath, double ridge)
+    {
+        var options = ConfigLoader.Load(configPath, context.Environment, out var errors);
+        if (options is null)
+        {
+            return ConfigErrors.Report(context.Error, configPath, errors);
+        }
+        if (!(ridge >= 0) || !double.IsFinite(ridge))
+        {
+            context.Error.WriteLine("driftline: --ridge must be 0 or a positive number");
+            return ExitCode.Usage;
+        }
+        var lines = ReadLines(file);
+        if (lines is null)
+        {
+            return ExitCode.Input;
+        }
+
+        var parser = new EventParser();
+        var record = new ParsedRecord();
+        var featurizer = new Featurizer(options.Model);
+        var x = new SparseVector();
+        var lateLabels = new Dictionary<string, int>(StringComparer.Ordinal);
+        int rejected = 0;
+        // Pass 1: scaling statistics over every event, and the late labels by id.
+        foreach (var line in lines)
+        {
+            if (!parser.TryParse(line, record, out _))
+            {
+                rejected += line.AsSpan().Trim(" \t"u8).IsEmpty ? 0 : 1;
+                continue;
+            }
+            if (record.Kind == RecordKind.Event)
+            {
+                featurizer.Featurize(record, x);
+            }
+            else if (record.Kind == RecordKind.Label)
+            {
+                lateLabels[record.Id] = record.Label;
+            }
+        }
+        featurizer.Scaler.Frozen = true;
+
+        // Pass 2: the design, one column per hashed slot other than the bias.
+        int mask = (1 << options.Model.HashBits) - 1;
+        int biasSlot = FeatureHash.Slot(FeatureHash.Bias, mask);
+        var columns = new Dictionary<int, int>();
+        var names = new Dictionary<int, (string Name, double Sign)>();
+        var rows = new List<(int[] Columns, double[] Values)>();
+        var labels = new List<double>();
+        foreach (var line in lines)
+        {
+            if (!parser.TryParse(line, record, out _) || record.Kind != RecordKind.Event)
+            {
+                continue;
+            }
+            int label = record.HasLabel ? record.Label : lateLabels.GetValueOrDefault(record.Id, -1);
+            if (label < 0)
+            {
+                continue;
+            }
+            featurizer.Featurize(record, x);
+            bool fresh = false;
+            var cols = new List<int>();
+            var vals = new List<double>();
+            for (int i = 0; i < x.Count; i++)
+            {
+                if (x.Slots[i] == biasSlot)
+                {
+                    continue;
+                }
+                if (!columns.TryGetValue(x.Slots[i], out int c))
+                {
+                    c = columns.Count;
+                    columns.Add(x.Slots[i], c);
+                    fresh = true;
+                }
+                cols.Add(c);
+                vals.Add(x.Values[i]);
+            }
+            if (fresh)
+            {
+                FeatureNameScan.Scan(line, mask, names);
+            }
+            rows.Add(([.. cols], [.. vals]));
+            labels.Add(label);
+        }
+        if (rows.Count == 0)
+        {
+            context.Error.WriteLine($"driftline: '{file}' has no labelled events to fit");
+            return ExitCode.Input;
+        }
+        if (columns.Count > MaxColumns)
+        {
+            context.Error.WriteLine($"driftline: {columns.Count:N0} distinct features is more than a batch fit takes ({MaxColumns:N0}); fit on fewer features or let the online model learn them");
+            return ExitCode.Input;
+        }
+
+        var design = rows.Select(r =>
+        {
+            var dense = new double[columns.Count];
+            for (int i = 0; i < r.Columns.Length; i++)
+            {
+                dense[r.Columns[i]] += r.Values[i];
+            }
+            return dense;
+        }).ToList();
+        var fit = LogisticNewtonFit.Fit(design, labels, ridge);
+        var slotOf = columns.OrderBy(kv => kv.Value).Select(kv => kv.Key).ToArray();
+        var columnNames = slotOf.Select(s => names.TryGetValue(s, out var n) ? n.Name : $"slot {s}").ToArray();
+        // Report coefficients in the features' own direction: hashed columns carry a sign.
+        var signs = slotOf.Select(s => names.TryGetValue(s, out var n) ? n.Sign : 1.0).ToArray();
+        var natural = fit with
+        {
+            Coefficients = fit.Coefficients.Select((c, i) => c * signs[i]).ToArray(),
+            ZValues = fit.ZValues.Select((z, i) => z * signs[i]).ToArray(),
+        };
+        context.Out.WriteLine(new FitReport(natural, columnNames).Format());
+        if (!fit.Converged)
+        {
+            context.Error.WriteLine($"driftline: the fit did not converge: {fit.Problem}");
+            return ExitCode.Input;
+        }
+
+        WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot);
+        context.Out.WriteLine($"Fitted {rows.Count:N0} labelled events ({rejected:N0} lines rejected) on {columns.Count:N0} features; model written to {outPath}.");
+        return ExitCode.Ok;
+    }
+
+    private static void WriteModel(string path, DriftlineOptions options, Featurizer featurizer, LogisticFitResult fit,
+        int[] slotOf, List<double[]> design, List<double> labels, int biasSlot)
+    {
+        var weights = new Dictionary<int, double> { [biasSlot] = fit.Intercept };
+        var squares = new Dictionary<int, double> { [biasSlot] = 0 };
+        for (int c = 0; c < slotOf.Length; c++)
+        {
+            weights[slotOf[c]] = fit.Coefficients[c];
+            squares[slotOf[c]] = 0;
+        }
+        for (int r = 0; r < design.Count; r++)
+        {
+            double eta = fit.Intercept;
+            for (int c = 0; c < slotOf.Length; c++)
+            {
+                eta += fit.Coefficients[c] * design[r][c];
+            }
+            double g = LogisticMath.Probability(eta) - labels[r];
+            squares[biasSlot] += g * g;
+            for (int c = 0; c < slotOf.Length; c++)
+            {
+                squares[slotOf[c]] += g * g * design[r][c] * design[r][c];
+            }
+        }
+        var snapshot = new EngineSnapshot
+        {
+            Options = options,
+            Models =
+            [
+                new ModelSnapshot
+                {
+                    Key = ScoringEngine.DefaultKey,
+                    Learner = WarmStart.FromWeights(options.Model, weights, squares, design.Count),
+                    Scaling = featurizer.Scaler.Export().ToList(),
+                    PriorCount = labels.Count,
+                    PriorPositives = (long)labels.Sum(),
+                },
+            ],
+        };
+        string? folder = Path.GetDirectoryName(Path.GetFullPath(path));
+        if (folder is not null)
+        {
+            Directory.CreateDirectory(folder);
+        }
+        using var file = File.Create(path);
+        SnapshotCodec.Write(snapshot, file);
+    }
+
+    private List<byte[]>? ReadLines(string file)
+    {
+        using var input = InputFiles.Open(file, context);
+        if (input is null)
+        {
+            return null;
+        }
+        var lines = new List<byte[]>();
+        using var buffered = new MemoryStream();
+        input.CopyTo(buffered);
+        var all = buffered.GetBuffer().AsSpan(0, (int)buffered.Length);
+        while (!all.IsEmpty)
+        {
+            int nl = all.IndexOf((byte)'\n');
+            var line = nl < 0 ? all : all[..nl];
+            if (line.Length > 0 && line[^1] == (byte)'\r')
+            {
+                line = line[..^1];
+            }
+            lines.Add(line.ToArray());
+            all = nl < 0 ? [] : all[(nl + 1)..];
+        }
+        return lines;
+    }
+}
