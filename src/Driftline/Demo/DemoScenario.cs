@@ -102,7 +102,7 @@ internal sealed class DemoScenario
                 + (raining ? 0.5 : 0)
                 + (rush ? 0.45 : 0)
                 + (tags.Contains("fragile") ? 0.25 : 0)
-                + (storm ? 0.9 : 0);
+                + (storm ? 1.3 : 0);
             int label = _random.NextDouble() < 1 / (1 + Math.Exp(-logOdds)) ? 1 : 0;
 
             double fate = _random.NextDouble();
