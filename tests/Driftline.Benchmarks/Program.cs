@@ -1,0 +1,25 @@
+using BenchmarkDotNet.Running;
+using Driftline.Benchmarks;
+
+// replay: whole-process replay against the bare loop, same file, same run.
+// micro:  BenchmarkDotNet over the hot path (parse, score/learn) with allocations.
+return args.FirstOrDefault() switch
+{
+    "replay" => ReplayBenchmark.Run(args.Skip(1).ToArray()),
+    "micro" => RunMicro(args.Skip(1).ToArray()),
+    "split" => StageSplit.Run(args[1]),
+    "winprobe" => WinProbe.Run(),
+    _ => Usage(),
+};
+
+static int RunMicro(string[] rest)
+{
+    BenchmarkSwitcher.FromAssembly(typeof(HotPathBenchmarks).Assembly).Run(rest.Length == 0 ? ["--filter", "*"] : rest);
+    return 0;
+}
+
+static int Usage()
+{
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--events N] [--repeats K] | micro [BenchmarkDotNet options]");
+    return 2;
+}

@@ -1,0 +1,73 @@
+using System.Diagnostics;
+using System.Globalization;
+using Driftline.Demo;
+
+namespace Driftline.Benchmarks;
+
+/// <summary>
+/// Whole-process replay benchmark: generates the demo stream at the requested size, then
+/// alternates runs of the bare loop (in this process) and of <c>driftline replay</c> (a child
+/// process, start-up included) over the same file, and reports each as events per second and
+/// the replay's median as a ratio to the bare loop's median. Alternating keeps both exposed
+/// to the same background load on a shared machine.
+/// </summary>
+internal static class ReplayBenchmark
+{
+    public static int Run(string[] args)
+    {
+        int events = Option(args, "--events", 1_000_000);
+        int repeats = Option(args, "--repeats", 3);
+        string dir = Path.Combine(Path.GetTempPath(), "driftline-bench");
+        Directory.CreateDirectory(dir);
+        string file = Path.Combine(dir, $"demo-{events}.jsonl");
+        if (!File.Exists(file))
+        {
+            using var output = File.Create(file);
+            new DemoScenario(7) { Orders = events }.Write(output);
+        }
+        string exe = Path.Combine(AppContext.BaseDirectory, "driftline");
+        if (!File.Exists(exe))
+        {
+            Console.Error.WriteLine($"driftline executable not found next to the benchmark at {exe}");
+            return 1;
+        }
+        Console.WriteLine($"file: {file} ({new FileInfo(file).Length / 1e6:0.0} MB, {events:N0} events)");
+
+        BareLoop.Run(file); // warm the file cache and the JIT for the baseline
+        var bare = new List<double>();
+        var replay = new List<double>();
+        for (int i = 0; i < repeats; i++)
+        {
+            var clock = Stopwatch.StartNew();
+            long scored = BareLoop.Run(file);
+            bare.Add(scored / clock.Elapsed.TotalSeconds);
+
+            clock.Restart();
+            using var process = Process.Start(new ProcessStartInfo(exe, ["replay", file, "--out", Path.Combine(dir, "out")]) { RedirectStandardOutput = true })!;
+            process.StandardOutput.ReadToEnd();
+            process.WaitForExit();
+            if (process.ExitCode != 0)
+            {
+                Console.Error.WriteLine($"replay exited with {process.ExitCode}");
+                return 1;
+            }
+            replay.Add(events / clock.Elapsed.TotalSeconds);
+            Console.WriteLine($"run {i + 1}: bare loop {bare[^1]:N0} events/s, replay (whole process) {replay[^1]:N0} events/s");
+        }
+        double b = Median(bare), r = Median(replay);
+        Console.WriteLine($"median: bare loop {b:N0} events/s, replay {r:N0} events/s, ratio replay/bare = {r / b:0.00} (target >= 0.5)");
+        return 0;
+    }
+
+    private static double Median(List<double> values)
+    {
+        var sorted = values.Order().ToArray();
+        return sorted.Length % 2 == 1 ? sorted[sorted.Length / 2] : (sorted[sorted.Length / 2 - 1] + sorted[sorted.Length / 2]) / 2;
+    }
+
+    private static int Option(string[] args, string name, int fallback)
+    {
+        int i = Array.IndexOf(args, name);
+        return i >= 0 && i + 1 < args.Length ? int.Parse(args[i + 1], CultureInfo.InvariantCulture) : fallback;
+    }
+}

@@ -1,0 +1,62 @@
+using System.Diagnostics;
+using Driftline.Core.Alerts;
+using Driftline.Core.Events;
+using Driftline.Core.Options;
+using Driftline.Core.Scoring;
+using Driftline.Output;
+using Driftline.Pipeline;
+
+namespace Driftline.Benchmarks;
+
+/// <summary>
+/// Where replay time goes: the bare loop, then parse + the whole score/learn step with a sink
+/// that drops results, then the full in-process pipeline with outputs. Same file, same run.
+/// </summary>
+internal static class StageSplit
+{
+    private sealed class NullSink : IScoringSink
+    {
+        public void OnPrediction(in Prediction prediction) { }
+
+        public void OnAlert(AlertTransition alert) { }
+
+        public void OnMetrics(in MetricsRow row) { }
+    }
+
+    public static int Run(string file)
+    {
+        var lines = File.ReadAllLines(file).Select(System.Text.Encoding.UTF8.GetBytes).ToArray();
+        for (int round = 0; round < 2; round++)
+        {
+            var clock = Stopwatch.StartNew();
+            long n = BareLoop.Run(file);
+            Report("bare loop (read, parse, update)", n, clock.Elapsed);
+
+            clock.Restart();
+            var parser = new EventParser();
+            var record = new ParsedRecord();
+            var engine = new ScoringEngine(new DriftlineOptions(), new NullSink());
+            foreach (var line in lines)
+            {
+                if (parser.TryParse(line, record, out _))
+                {
+                    engine.Process(record);
+                }
+            }
+            Report("parse + score/learn step (in memory, no outputs)", engine.Counters.Events, clock.Elapsed);
+
+            clock.Restart();
+            var pipeline = new ReplayPipeline(new DriftlineOptions());
+            using (var outputs = new ReplayOutputs(Path.Combine(Path.GetTempPath(), "driftline-bench", "split")))
+            using (var input = File.OpenRead(file))
+            {
+                pipeline.RunAsync(input, outputs, CancellationToken.None).GetAwaiter().GetResult();
+            }
+            Report("replay pipeline in process (with outputs)", pipeline.Engine.Counters.Events, clock.Elapsed);
+        }
+        return 0;
+    }
+
+    private static void Report(string what, long events, TimeSpan elapsed) =>
+        Console.WriteLine($"{what,-52} {events / elapsed.TotalSeconds,12:N0} events/s");
+}
