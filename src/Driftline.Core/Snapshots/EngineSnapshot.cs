@@ -49,6 +49,12 @@ internal sealed class EngineSnapshot
     /// <summary>Latest event time seen (UTC ticks), or no time.</summary>
     public long ClockTicks { get; set; }
 
+    /// <summary>
+    /// Text behind feature hashes (hash as a decimal string → <c>name</c> or <c>name=value</c>),
+    /// for display only; null when none were recorded. Restoring ignores it.
+    /// </summary>
+    public Dictionary<string, string>? FeatureNames { get; set; }
+
     /// <summary>Value of <see cref="Format"/>.</summary>
     public const string FormatName = "driftline-state";
 
