@@ -24,7 +24,8 @@ internal sealed class HtmlPage
         figcaption { font-size: 14px; color: #444; margin-top: 6px; max-width: 860px; }
         .row { display: flex; flex-wrap: wrap; gap: 12px; }
         .row figure { flex: 1 1 280px; max-width: 300px; }
-        table { border-collapse: collapse; margin: 8px 0 16px; font-size: 14px; }
+        table { border-collapse: collapse; margin: 8px 0 16px; font-size: 14px; display: block; max-width: 100%; overflow-x: auto; }
+        p.key a { color: inherit; margin-right: 18px; }
         th, td { padding: 5px 10px; border-bottom: 1px solid #e6e6e6; text-align: left; vertical-align: top; }
         th { background: #f2f2ee; font-weight: 600; }
         table.alerts td:not(:last-child) { white-space: nowrap; }

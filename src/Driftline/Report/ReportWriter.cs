@@ -76,7 +76,7 @@ internal static class ReportWriter
             .Paragraph($"{input} replayed once through {runs.Count} configurations, each with its own model over the same parsed events: {string.Join(", ", runs.Select(r => r.Name))}.", "lead");
 
         page.Heading(2, "Final figures", "figures")
-            .Table(["configuration", "learner", "half-life", "log-loss", "prior", "skill", "Brier", "ECE", "mean p − rate", "alerts", "open at end", "report"],
+            .Table(["configuration", "learner", "half-life", "log-loss", "prior", "skill", "Brier", "ECE", "mean p − rate", "alerts", "open at end"],
                 runs.Select((r, i) => (IReadOnlyList<string>)
                 [
                     r.Name,
@@ -85,12 +85,12 @@ internal static class ReportWriter
                     Num(r.Total.LogLoss), Num(r.PriorTotal.LogLoss), Pct(r.Skill), Num(r.Total.Brier), Num(r.Total.Ece),
                     Num(r.Total.CalibrationInTheLarge), $"#num {r.Counters.AlertsRaised:N0}",
                     r.OpenAlerts.Count == 0 ? "none" : string.Join(", ", r.OpenAlerts),
-                    $"{r.Name}/{FileName}",
                 ]))
-            .Paragraph("Skill is 1 − model log-loss / prior log-loss over the whole run: the share of the baseline's loss the model removes. Each configuration's own report, with its alert windows, is in its folder.");
+            .Paragraph("Skill is 1 − model log-loss / prior log-loss over the whole run: the share of the baseline's loss the model removes. Each configuration's own report, with its alert windows, is in its folder: follow its name below.");
 
-        page.Raw("<p>" + string.Join(" ", runs.Select((r, i) =>
-            $"<span class=\"swatch\" style=\"background:{ReportCharts.ColourHex(i)}\"></span>{HtmlPage.Encode(r.Name)}")) + "</p>");
+        // The key doubles as the way into each configuration's own report (relative links work offline).
+        page.Raw("<p class=\"key\">" + string.Join(" ", runs.Select((r, i) =>
+            $"<a href=\"{Uri.EscapeDataString(r.Name)}/{FileName}\"><span class=\"swatch\" style=\"background:{ReportCharts.ColourHex(i)}\"></span>{HtmlPage.Encode(r.Name)}</a>")) + "</p>");
         page.Heading(2, "Loss over time", "loss")
             .Raw(HtmlPage.Figure(ReportCharts.LogLoss(runs, alertMarks: false),
                 "Rolling log-loss of each configuration over its own window, with the class-prior baseline of the first dashed. The configuration that stays lowest through the hard stretches, and comes back down fastest after them, forgets at the right pace."));
