@@ -1,7 +1,5 @@
 using System.CommandLine;
 using System.Globalization;
-using System.Text;
-using Driftline.Core.Features;
 using Driftline.Core.Learning;
 using Driftline.Core.Options;
 using Driftline.Core.Snapshots;

@@ -75,10 +75,10 @@ internal sealed class ReplayProgress
         double seconds = Math.Max(elapsed.TotalSeconds, 1e-3);
         double fraction = _totalBytes is long total ? Math.Clamp((double)bytes / total, 0, 1) : double.NaN;
         string rate = (events / seconds).ToString("N0", C);
-        string counts = $"{events.ToString("N0", C)} events ({rate}/s), {labels.ToString("N0", C)} labels ({lateLabels.ToString("N0", C)} late joined), {alerts.ToString("N0", C)} alerts";
+        string counts = $"{events.ToString("N0", C)} events, {rate}/s, {labels.ToString("N0", C)} labels ({lateLabels.ToString("N0", C)} late joined), {alerts.ToString("N0", C)} {(alerts == 1 ? "alert" : "alerts")}";
         string left = done ? $"done in {Duration(elapsed)}"
             : double.IsNaN(fraction) || fraction <= 0 ? $"{Duration(elapsed)} so far"
-            : $"about {Duration(TimeSpan.FromSeconds(seconds * (1 - fraction) / fraction))} left";
+            : Left(TimeSpan.FromSeconds(seconds * (1 - fraction) / fraction));
         if (_terminal)
         {
             string bar = double.IsNaN(fraction) ? "" : Bar(done ? 1 : fraction) + " ";
@@ -113,6 +113,8 @@ internal sealed class ReplayProgress
         int filled = (int)Math.Round(fraction * BarWidth);
         return "[" + new string('#', filled) + new string('-', BarWidth - filled) + "] " + (100 * fraction).ToString("0", C).PadLeft(3) + "%";
     }
+
+    private static string Left(TimeSpan t) => t < TimeSpan.FromSeconds(1) ? "under 1 s left" : $"about {Duration(t)} left";
 
     private static string Duration(TimeSpan t) => t.TotalHours >= 1
         ? $"{(int)t.TotalHours} h {t.Minutes:00} min"

@@ -33,7 +33,7 @@ internal sealed class HtmlPage
         .raised { color: #b03a2e; font-weight: 600; }
         .cleared { color: #1e8449; font-weight: 600; }
         .swatch { display: inline-block; width: 12px; height: 12px; border-radius: 2px; margin-right: 6px; vertical-align: -1px; }
-        pre { background: #f5f5f2; padding: 10px 12px; font-size: 13px; overflow-x: auto; }
+        pre { background: #f5f5f2; padding: 10px 12px; font-size: 13px; white-space: pre-wrap; }
         """;
 
     private readonly StringBuilder _html = new();

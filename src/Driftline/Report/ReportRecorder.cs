@@ -20,6 +20,9 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
     /// <summary>Most points kept in the series before it is thinned.</summary>
     public const int MaxPoints = 1_200;
 
+    /// <summary>Most alert transitions kept with their windows (the report shows far fewer; this only bounds memory).</summary>
+    public const int MaxAlerts = 10_000;
+
     private readonly Queue<BinsCapture> _recent = new();
     private readonly List<AlertCapture> _awaitingAfter = [];
     private ScoringEngine? _engine;
@@ -49,6 +52,10 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
     public void OnAlert(AlertTransition alert)
     {
         inner.OnAlert(alert);
+        if (data.Alerts.Count >= MaxAlerts)
+        {
+            return;
+        }
         var engine = Engine;
         data.Alerts.Add(new AlertCapture(alert, alert.Raised ? _windowBefore : null, Capture(engine)));
         if (alert.Raised)
@@ -100,7 +107,7 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
             window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired));
         if (points.Count >= MaxPoints)
         {
-            // Keep every other point (and always the latest), then sample half as often.
+            // Keep every other point, then sample half as often.
             int kept = 0;
             for (int i = 0; i < points.Count; i += 2)
             {

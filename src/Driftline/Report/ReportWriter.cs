@@ -16,6 +16,12 @@ internal static class ReportWriter
     /// <summary>File name of the report in an output folder.</summary>
     public const string FileName = "report.html";
 
+    /// <summary>Most alert rows in a table; a rule that flaps thousands of times would otherwise bury the page.</summary>
+    public const int MaxAlertRows = 200;
+
+    /// <summary>Most raises that get their before/when/after diagrams.</summary>
+    public const int MaxAlertWindows = 20;
+
     private static readonly CultureInfo C = CultureInfo.InvariantCulture;
 
     /// <summary>Writes the report of one run to <paramref name="path"/>.</summary>
@@ -61,7 +67,7 @@ internal static class ReportWriter
 
         page.Heading(2, "Late and expired labels", "labels")
             .Raw(HtmlPage.Figure(ReportCharts.LabelShares(run),
-                $"Of the labels graded in each stretch of the run, the share that arrived after their event (late); and of the predictions resolved, the share dropped unlabelled after {run.Options.Labels.MaxAge} or when more than {run.Options.Labels.MaxPending:N0} were waiting (expired). A rising expired share means the windows judge the model on a biased subset of outcomes."));
+                $"Of the labels graded in each stretch of the run, the share that arrived after their event (late); and of the predictions resolved, the share dropped unlabelled after {Words(run.Options.Labels.MaxAge)} of event time or when more than {run.Options.Labels.MaxPending:N0} were waiting (expired). A rising expired share means the windows judge the model on a biased subset of outcomes."));
 
         page.Heading(2, "Settings", "settings").Raw("<pre>" + HtmlPage.Encode(Describe(run.Options)) + "</pre>");
         return page.ToString();
@@ -121,13 +127,18 @@ internal static class ReportWriter
 
     private static void AlertWindows(HtmlPage page, ReportData run)
     {
-        int n = 0;
+        int n = 0, drawn = 0;
         foreach (var capture in run.Alerts)
         {
             n++;
             if (!capture.Alert.Raised)
             {
                 continue;
+            }
+            if (++drawn > MaxAlertWindows)
+            {
+                page.Paragraph($"Diagrams are drawn for the first {MaxAlertWindows} raises only; alerts.jsonl lists every one.");
+                break;
             }
             var a = capture.Alert;
             page.Heading(3, $"Alert {n}: {a.Rule} raised at label {a.Labels:N0}");
@@ -161,7 +172,13 @@ internal static class ReportWriter
             foreach (var capture in run.Alerts)
             {
                 var a = capture.Alert;
-                n++;
+                if (++n > MaxAlertRows)
+                {
+                    yield return withConfig
+                        ? ["", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; each configuration's alerts.jsonl lists every one."]
+                        : ["", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; alerts.jsonl lists every one."];
+                    yield break;
+                }
                 var row = new List<string> { $"#num {n}" };
                 if (withConfig)
                 {
@@ -205,6 +222,11 @@ internal static class ReportWriter
         CheckCommand.Describe(options, text);
         return text.ToString();
     }
+
+    private static string Words(TimeSpan t) =>
+        t.TotalDays >= 1 && t.TotalDays == Math.Floor(t.TotalDays) ? $"{t.TotalDays:0} day{(t.TotalDays == 1 ? "" : "s")}"
+        : t.TotalHours >= 1 ? $"{t.TotalHours.ToString("0.#", C)} hours"
+        : $"{t.TotalMinutes.ToString("0.#", C)} minutes";
 
     private static string Num(double v) => "#num " + (double.IsFinite(v) ? v.ToString("0.0000", C) : "–");
 
