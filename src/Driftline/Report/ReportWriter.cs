@@ -38,7 +38,7 @@ internal static class ReportWriter
         ArgumentNullException.ThrowIfNull(run);
         var page = new HtmlPage($"Driftline replay: {Path.GetFileName(input)}");
         page.Heading(1, "Replay report")
-            .Paragraph($"{input} replayed with configuration '{run.Name}': {run.Counters.Events:N0} events scored, {run.Counters.Labels:N0} labels graded, {run.Counters.AlertsRaised:N0} alerts raised.", "lead");
+            .Paragraph($"{input} replayed with configuration '{run.Name}': {run.Counters.Events:N0} events scored, {run.Counters.Labels:N0} labels graded, {run.Counters.AlertsRaised:N0} {(run.Counters.AlertsRaised == 1 ? "alert" : "alerts")} raised.", "lead");
 
         page.Heading(2, "Summary", "summary").Table(["measure", "value"], SummaryRows(run));
 
