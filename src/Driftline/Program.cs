@@ -7,7 +7,10 @@ try
 {
     using var stop = new CancellationTokenSource();
     Console.CancelKeyPress += (_, e) => { e.Cancel = true; stop.Cancel(); };
-    var context = new CommandContext(Console.Out, Console.Error, ConfigLoader.ProcessEnvironment(), Console.OpenStandardInput);
+    var context = new CommandContext(Console.Out, Console.Error, ConfigLoader.ProcessEnvironment(), Console.OpenStandardInput)
+    {
+        ErrorIsTerminal = !Console.IsErrorRedirected,
+    };
     return await DriftlineCli.RunAsync(args, context, stop.Token);
 }
 catch (Exception ex)

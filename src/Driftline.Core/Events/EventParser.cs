@@ -29,6 +29,9 @@ internal sealed class EventParser
     private byte[] _nameScratch = new byte[256];
     private byte[] _valueScratch = new byte[256];
 
+    /// <summary>Where the text of feature names and values is recorded for later display; null records nothing.</summary>
+    public FeatureNames? Names { get; set; }
+
     /// <summary>Creates a parser.</summary>
     public EventParser() => _keyLookup = _keys.GetAlternateLookup<ReadOnlySpan<char>>();
 
@@ -210,7 +213,7 @@ internal sealed class EventParser
                 case JsonTokenType.Null:
                     break;
                 case JsonTokenType.String:
-                    record.AddFeature(new RawFeature(nameHash, FeatureHash.Value(nameHash, Unescaped(ref reader, ref _valueScratch)), 1.0, RawFeatureKind.Categorical));
+                    AddCategorical(ref reader, record, name, nameHash);
                     break;
                 case JsonTokenType.Number:
                     if (!reader.TryGetDouble(out double x) || !double.IsFinite(x))
@@ -218,10 +221,12 @@ internal sealed class EventParser
                         return "feature '" + Encoding.UTF8.GetString(name) + "' is not a finite number";
                     }
                     record.AddFeature(new RawFeature(nameHash, nameHash, x, RawFeatureKind.Numeric));
+                    Names?.RecordName(nameHash, name);
                     break;
                 case JsonTokenType.True:
                 case JsonTokenType.False:
                     record.AddFeature(new RawFeature(nameHash, nameHash, reader.TokenType == JsonTokenType.True ? 1.0 : 0.0, RawFeatureKind.Boolean));
+                    Names?.RecordName(nameHash, name);
                     break;
                 case JsonTokenType.StartArray:
                     while (reader.Read() && reader.TokenType != JsonTokenType.EndArray)
@@ -230,7 +235,7 @@ internal sealed class EventParser
                         {
                             return "feature '" + Encoding.UTF8.GetString(name) + "' is an array with a value that is not a string";
                         }
-                        record.AddFeature(new RawFeature(nameHash, FeatureHash.Value(nameHash, Unescaped(ref reader, ref _valueScratch)), 1.0, RawFeatureKind.Categorical));
+                        AddCategorical(ref reader, record, name, nameHash);
                     }
                     break;
                 default:
@@ -242,6 +247,14 @@ internal sealed class EventParser
             }
         }
         return null;
+    }
+
+    private void AddCategorical(ref Utf8JsonReader reader, ParsedRecord record, scoped ReadOnlySpan<byte> name, ulong nameHash)
+    {
+        ReadOnlySpan<byte> value = Unescaped(ref reader, ref _valueScratch);
+        ulong hash = FeatureHash.Value(nameHash, value);
+        record.AddFeature(new RawFeature(nameHash, hash, 1.0, RawFeatureKind.Categorical));
+        Names?.RecordValue(hash, name, value);
     }
 
     // The token's bytes with JSON escapes resolved; points into the input when there are none.

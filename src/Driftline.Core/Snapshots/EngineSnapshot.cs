@@ -13,11 +13,11 @@ namespace Driftline.Core.Snapshots;
 /// </summary>
 internal sealed class EngineSnapshot
 {
-    /// <summary>Marks the file as a Driftline snapshot.</summary>
-    public string Format { get; set; } = FormatName;
+    /// <summary>Marks the file as a Driftline snapshot; set by <see cref="SnapshotCodec.Write"/>, checked on read.</summary>
+    public string? Format { get; set; }
 
     /// <summary>Version of this layout; readers refuse versions they do not know.</summary>
-    public int FormatVersion { get; set; } = CurrentVersion;
+    public int FormatVersion { get; set; }
 
     /// <summary>The options the engine ran with.</summary>
     public DriftlineOptions Options { get; set; } = new();
@@ -48,6 +48,12 @@ internal sealed class EngineSnapshot
 
     /// <summary>Latest event time seen (UTC ticks), or no time.</summary>
     public long ClockTicks { get; set; }
+
+    /// <summary>
+    /// Text behind feature hashes (hash as a decimal string → <c>name</c> or <c>name=value</c>),
+    /// for display only; null when none were recorded. Restoring ignores it.
+    /// </summary>
+    public Dictionary<string, string>? FeatureNames { get; set; }
 
     /// <summary>Value of <see cref="Format"/>.</summary>
     public const string FormatName = "driftline-state";

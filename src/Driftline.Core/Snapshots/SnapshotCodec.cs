@@ -18,7 +18,13 @@ internal static class SnapshotCodec
     };
 
     /// <summary>Writes <paramref name="snapshot"/> to <paramref name="stream"/>.</summary>
-    public static void Write(EngineSnapshot snapshot, Stream stream) => JsonSerializer.Serialize(stream, snapshot, Json);
+    public static void Write(EngineSnapshot snapshot, Stream stream)
+    {
+        ArgumentNullException.ThrowIfNull(snapshot);
+        snapshot.Format = EngineSnapshot.FormatName;
+        snapshot.FormatVersion = EngineSnapshot.CurrentVersion;
+        JsonSerializer.Serialize(stream, snapshot, Json);
+    }
 
     /// <summary>
     /// Reads a snapshot. Throws <see cref="InvalidDataException"/> with a plain reason when

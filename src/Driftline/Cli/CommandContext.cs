@@ -5,4 +5,8 @@ namespace Driftline.Cli;
 /// <param name="Error">Error messages and progress.</param>
 /// <param name="Environment">Environment variables (for <c>DRIFTLINE_</c> overrides).</param>
 /// <param name="StandardInput">Opens standard input, for the FILE argument <c>-</c>.</param>
-internal sealed record CommandContext(TextWriter Out, TextWriter Error, IDictionary<string, string?> Environment, Func<Stream> StandardInput);
+internal sealed record CommandContext(TextWriter Out, TextWriter Error, IDictionary<string, string?> Environment, Func<Stream> StandardInput)
+{
+    /// <summary>True when <see cref="Error"/> is a terminal, so progress can redraw one line in place; default false (plain lines).</summary>
+    public bool ErrorIsTerminal { get; init; }
+}

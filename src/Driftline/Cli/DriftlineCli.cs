@@ -14,6 +14,7 @@ internal static class DriftlineCli
             new DemoCommand(context).Build(),
             new CheckCommand(context).Build(),
             new FitCommand(context).Build(),
+            new InspectCommand(context).Build(),
         };
         var parsed = root.Parse(args);
         if (parsed.Errors.Count > 0)

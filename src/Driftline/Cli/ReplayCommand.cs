@@ -1,17 +1,23 @@
 using System.CommandLine;
 using System.Diagnostics;
+using System.Globalization;
 using Driftline.Configuration;
 using Driftline.Core.Events;
+using Driftline.Core.Features;
+using Driftline.Core.Options;
 using Driftline.Core.Snapshots;
 using Driftline.Output;
 using Driftline.Pipeline;
+using Driftline.Report;
 
 namespace Driftline.Cli;
 
 /// <summary>
-/// <c>driftline replay FILE --out DIR [--config FILE]</c>: the worker's pipeline over a
+/// <c>driftline replay FILE --out DIR [--config FILE]...</c>: the worker's pipeline over a
 /// recorded file (or stdin with <c>-</c>), as fast as it goes, writing predictions, alerts,
-/// dead letters, metrics, a summary and the final model into DIR.
+/// dead letters, metrics, a summary, the final model and <c>report.html</c> into DIR. With
+/// several <c>--config</c> files, every configuration runs over the same parsed events in one
+/// pass; each writes into DIR/&lt;config name&gt;/ and DIR/report.html compares them.
 /// </summary>
 internal sealed class ReplayCommand(CommandContext context)
 {
@@ -22,21 +28,39 @@ internal sealed class ReplayCommand(CommandContext context)
     public Command Build()
     {
         var file = new Argument<string>("FILE") { Description = "Recorded events, one JSON object per line; - reads standard input" };
-        var output = new Option<string>("--out") { Description = "Folder for predictions, alerts, dead letters, metrics, summary and model", Required = true };
-        var config = new Option<string?>("--config") { Description = "JSON configuration file (defaults apply to anything it leaves out)" };
-        var warm = new Option<string?>("--warm-start") { Description = "Model file (from fit or an earlier replay) whose weights the run starts from" };
+        var output = new Option<string>("--out") { Description = "Folder for predictions, alerts, dead letters, metrics, summary, model and report", Required = true };
+        var config = new Option<string[]>("--config")
+        {
+            Description = "JSON configuration file (defaults apply to anything it leaves out); repeat it to compare configurations in one pass",
+            Arity = ArgumentArity.ZeroOrMore,
+        };
+        var warm = new Option<string?>("--warm-start") { Description = "Model file (from fit or an earlier replay) whose weights every configuration starts from" };
         var command = new Command("replay", "Replay a recorded file through the scoring pipeline") { file, output, config, warm };
-        command.SetAction((result, token) => RunAsync(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), token, result.GetValue(warm)));
+        command.SetAction((result, token) => RunAsync(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config) ?? [], token, result.GetValue(warm)));
         return command;
     }
 
-    /// <summary>Runs a replay; returns the exit code.</summary>
-    public async Task<int> RunAsync(string file, string outDir, string? configPath, CancellationToken cancellation, string? warmStart = null)
+    /// <summary>Runs a replay with one configuration (or the defaults when null); returns the exit code.</summary>
+    public Task<int> RunAsync(string file, string outDir, string? configPath, CancellationToken cancellation) =>
+        RunAsync(file, outDir, configPath is null ? [] : [configPath], cancellation, null);
+
+    /// <summary>Runs a replay with every configuration in <paramref name="configPaths"/> (the defaults when empty); returns the exit code.</summary>
+    public async Task<int> RunAsync(string file, string outDir, IReadOnlyList<string> configPaths, CancellationToken cancellation, string? warmStart)
     {
-        var options = ConfigLoader.Load(configPath, context.Environment, out var errors);
-        if (options is null)
+        var configs = new List<(string Name, DriftlineOptions Options)>();
+        foreach (var path in configPaths.Count == 0 ? [null] : configPaths.Cast<string?>())
         {
-            return ConfigErrors.Report(context.Error, configPath, errors);
+            var options = ConfigLoader.Load(path, context.Environment, out var errors);
+            if (options is null)
+            {
+                return ConfigErrors.Report(context.Error, path, errors);
+            }
+            configs.Add((path is null ? "default" : Path.GetFileNameWithoutExtension(path), options));
+        }
+        if (configs.GroupBy(c => c.Name, StringComparer.OrdinalIgnoreCase).FirstOrDefault(g => g.Count() > 1) is { } clash)
+        {
+            await context.Error.WriteLineAsync($"driftline: two configurations are named '{clash.Key}'; each writes into a folder of its file name, so rename one of the files.").ConfigureAwait(false);
+            return ExitCode.Usage;
         }
         EngineSnapshot? start = null;
         if (warmStart is not null)
@@ -47,61 +71,129 @@ internal sealed class ReplayCommand(CommandContext context)
                 return ExitCode.Input;
             }
             var m = start.Options.Model;
-            if (m.HashBits != options.Model.HashBits || m.Learner != options.Model.Learner)
+            foreach (var (name, options) in configs.Where(c => c.Options.Model.HashBits != m.HashBits || c.Options.Model.Learner != m.Learner))
             {
-                return ConfigErrors.Report(context.Error, configPath,
+                return ConfigErrors.Report(context.Error, name,
                     [new("Model:HashBits", $"the warm-start model has HashBits {m.HashBits} and Learner {m.Learner}, the configuration {options.Model.HashBits} and {options.Model.Learner}",
                         "Use the configuration the model was fitted with")]);
             }
         }
+        bool compare = configs.Count > 1;
+        var folders = configs.Select(c => compare ? Path.Combine(outDir, c.Name) : outDir).ToArray();
+
         using var input = InputFiles.Open(file, context);
         if (input is null)
         {
             return ExitCode.Input;
         }
-        ReplayOutputs outputs;
+        var outputs = new List<ReplayOutputs>();
         try
         {
-            outputs = new ReplayOutputs(outDir);
+            foreach (var folder in folders)
+            {
+                outputs.Add(new ReplayOutputs(folder));
+            }
         }
         catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
         {
+            outputs.ForEach(o => o.Dispose());
             await context.Error.WriteLineAsync($"driftline: cannot write to '{outDir}': {ex.Message}").ConfigureAwait(false);
             return ExitCode.Input;
         }
 
-        var clock = Stopwatch.StartNew();
-        var pipeline = new ReplayPipeline(options);
-        if (start is not null)
+        var recorders = new List<ReportRecorder>();
+        var lanes = configs.Select(c => new ReplayLane(c.Options, sink =>
         {
-            pipeline.Engine.LoadModels(start);
+            var recorder = new ReportRecorder(sink, new ReportData(c.Name, c.Options));
+            recorders.Add(recorder);
+            return recorder;
+        })).ToList();
+        for (int i = 0; i < lanes.Count; i++)
+        {
+            if (start is not null)
+            {
+                lanes[i].Engine.LoadModels(start);
+            }
+            recorders[i].Attach(lanes[i].Engine);
         }
-        using (outputs)
+        var names = new FeatureNames();
+        var progress = new ReplayProgress(context.Error, context.ErrorIsTerminal, input.CanSeek ? input.Length : null);
+        ReplayPipeline? pipeline = null;
+        pipeline = new ReplayPipeline(lanes)
         {
-            try
-            {
-                await pipeline.RunAsync(input, outputs, cancellation).ConfigureAwait(false);
-            }
-            catch (IOException ex)
-            {
-                await context.Error.WriteLineAsync($"driftline: reading '{file}' failed: {ex.Message}").ConfigureAwait(false);
-                return ExitCode.Input;
-            }
+            Names = names,
+            AfterBatch = engine => Report(progress, pipeline!, done: false),
+        };
+
+        var clock = Stopwatch.StartNew();
+        try
+        {
+            await pipeline.RunAsync(input, outputs, cancellation).ConfigureAwait(false);
+        }
+        catch (IOException ex)
+        {
+            await context.Error.WriteLineAsync($"driftline: reading '{file}' failed: {ex.Message}").ConfigureAwait(false);
+            return ExitCode.Input;
+        }
+        finally
+        {
+            outputs.ForEach(o => o.Dispose());
         }
         clock.Stop();
-
-        var engine = pipeline.Engine;
-        SummaryWriter.Write(Path.Combine(outDir, "summary.json"), engine, pipeline.DeadLetters, clock.Elapsed);
-        using (var model = File.Create(Path.Combine(outDir, ModelFile)))
-        {
-            SnapshotCodec.Write(engine.Snapshot(), model);
-        }
+        Report(progress, pipeline, done: true);
 
         var o = context.Out;
+        for (int i = 0; i < lanes.Count; i++)
+        {
+            var engine = lanes[i].Engine;
+            var folder = folders[i];
+            SummaryWriter.Write(Path.Combine(folder, "summary.json"), engine, lanes[i].DeadLetters, clock.Elapsed);
+            var snapshot = engine.Snapshot();
+            snapshot.FeatureNames = names.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
+            using (var model = File.Create(Path.Combine(folder, ModelFile)))
+            {
+                SnapshotCodec.Write(snapshot, model);
+            }
+            var recorder = recorders[i];
+            recorder.Finish();
+            recorder.Data.DeadLetters = lanes[i].DeadLetters;
+            recorder.Data.Elapsed = clock.Elapsed;
+            ReportWriter.WriteSingle(Path.Combine(folder, ReportWriter.FileName), file, recorder.Data);
+
+            if (compare)
+            {
+                o.WriteLine($"[{configs[i].Name}]");
+            }
+            WriteResult(o, pipeline, lanes[i], outputs[i], clock.Elapsed, folder);
+        }
+        if (compare)
+        {
+            ReportWriter.WriteComparison(Path.Combine(outDir, ReportWriter.FileName), file, recorders.Select(r => r.Data).ToList());
+            o.WriteLine($"Comparison of {configs.Count} configurations in {Path.GetFullPath(Path.Combine(outDir, ReportWriter.FileName))}");
+        }
+        return ExitCode.Ok;
+    }
+
+    private static void Report(ReplayProgress progress, ReplayPipeline pipeline, bool done)
+    {
+        var c = pipeline.Engine.Counters;
+        if (done)
+        {
+            progress.Done(pipeline.BytesRead, c.Events, c.Labels, c.LateLabels, c.AlertsRaised);
+        }
+        else
+        {
+            progress.Report(pipeline.BytesRead, c.Events, c.Labels, c.LateLabels, c.AlertsRaised);
+        }
+    }
+
+    private static void WriteResult(TextWriter o, ReplayPipeline pipeline, ReplayLane lane, ReplayOutputs outputs, TimeSpan elapsed, string folder)
+    {
+        var engine = lane.Engine;
         var c = engine.Counters;
         var total = engine.Totals.Current;
         var prior = engine.PriorTotals.Current;
-        o.WriteLine($"Replayed {pipeline.Lines:N0} lines in {clock.Elapsed.TotalSeconds:0.0} s: {c.Events:N0} events scored, {c.Labels:N0} labels ({c.LateLabels:N0} late), {engine.Pending.Expired:N0} expired, {pipeline.DeadLetters:N0} dead letters.");
+        o.WriteLine($"Replayed {pipeline.Lines:N0} lines in {elapsed.TotalSeconds:0.0} s: {c.Events:N0} events scored, {c.Labels:N0} labels ({c.LateLabels:N0} late), {engine.Pending.Expired:N0} expired, {lane.DeadLetters:N0} dead letters.");
         if (total.IsReady)
         {
             o.WriteLine($"Log-loss {total.LogLoss:0.0000} against {prior.LogLoss:0.0000} for the class prior; Brier {total.Brier:0.0000}; ECE {total.Ece:0.0000}.");
@@ -114,8 +206,7 @@ internal sealed class ReplayCommand(CommandContext context)
         {
             o.WriteLine("No alerts.");
         }
-        o.WriteLine($"Outputs in {Path.GetFullPath(outDir)}: predictions.jsonl, alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ModelFile}");
-        return ExitCode.Ok;
+        o.WriteLine($"Outputs in {Path.GetFullPath(folder)}: predictions.jsonl, alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ModelFile}, {ReportWriter.FileName}");
     }
 
     private EngineSnapshot? ReadModel(string path)

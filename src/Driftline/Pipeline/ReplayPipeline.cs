@@ -1,6 +1,7 @@
 using System.Text;
 using System.Threading.Channels;
 using Driftline.Core.Events;
+using Driftline.Core.Features;
 using Driftline.Core.Options;
 using Driftline.Core.Scoring;
 using Driftline.Output;
@@ -11,43 +12,82 @@ namespace Driftline.Pipeline;
 /// source → parse + score/learn → write, three stages joined by bounded channels. Batches
 /// circulate through pools, so memory is fixed whatever the input size, and a slow disk
 /// slows the reader instead of filling memory. A failing stage completes its downstream
-/// channel with the exception, which surfaces from <see cref="RunAsync"/>.
+/// channel with the exception, which surfaces from
+/// <see cref="RunAsync(Stream, IReadOnlyList{ReplayOutputs}, CancellationToken)"/>. Several
+/// configurations run as lanes of one pipeline: each record is parsed once and handed to every
+/// lane's engine, so they are compared on identical input at the cost of one parse.
 /// </summary>
 internal sealed class ReplayPipeline
 {
     private const int BatchesInFlight = 4;
 
-    private readonly ScoringEngine _engine;
-    private readonly BatchSink _sink;
+    private readonly ReplayLane[] _lanes;
     private readonly EventParser _parser = new();
     private readonly ParsedRecord _record = new();
 
     /// <summary>Creates a pipeline around a fresh engine for <paramref name="options"/>.</summary>
     public ReplayPipeline(DriftlineOptions options)
+        : this([new ReplayLane(options)])
     {
-        _sink = new BatchSink();
-        _engine = new ScoringEngine(options, _sink);
     }
 
-    /// <summary>The engine, for the summary and the saved model once the run is over.</summary>
-    public ScoringEngine Engine => _engine;
+    /// <summary>
+    /// Creates a pipeline that parses each record once and hands it to every lane in turn
+    /// (one engine per configuration).
+    /// </summary>
+    /// <exception cref="ArgumentException"><paramref name="lanes"/> is empty.</exception>
+    public ReplayPipeline(IReadOnlyList<ReplayLane> lanes)
+    {
+        ArgumentNullException.ThrowIfNull(lanes);
+        ArgumentOutOfRangeException.ThrowIfZero(lanes.Count, nameof(lanes));
+        _lanes = [.. lanes];
+    }
 
-    /// <summary>Records rejected (malformed, refused, or labels that graded nothing).</summary>
-    public long DeadLetters { get; private set; }
+    /// <summary>The lanes, in the order given.</summary>
+    public IReadOnlyList<ReplayLane> Lanes => _lanes;
+
+    /// <summary>The first lane's engine, for the summary and the saved model once the run is over.</summary>
+    public ScoringEngine Engine => _lanes[0].Engine;
+
+    /// <summary>Records the first lane rejected (malformed, refused, or labels that graded nothing).</summary>
+    public long DeadLetters => _lanes[0].DeadLetters;
 
     /// <summary>Lines read, blank ones included.</summary>
     public long Lines { get; private set; }
+
+    /// <summary>Input bytes scored so far (line breaks counted as one byte), for progress against the file length.</summary>
+    public long BytesRead { get; private set; }
+
+    /// <summary>Records the text of feature names the parser meets, for <c>inspect</c>; null records nothing.</summary>
+    public FeatureNames? Names
+    {
+        get => _parser.Names;
+        init => _parser.Names = value;
+    }
 
     /// <summary>Called on the scoring thread after each batch (progress reporting); may be null.</summary>
     public Action<ScoringEngine>? AfterBatch { get; init; }
 
     /// <summary>Runs the whole input through the engine into <paramref name="outputs"/>.</summary>
-    public async Task RunAsync(Stream input, ReplayOutputs outputs, CancellationToken cancellation)
+    public Task RunAsync(Stream input, ReplayOutputs outputs, CancellationToken cancellation) => RunAsync(input, [outputs], cancellation);
+
+    /// <summary>Runs the whole input through every lane, lane i writing into <paramref name="outputs"/>[i].</summary>
+    /// <exception cref="ArgumentException">There is not one output per lane.</exception>
+    public async Task RunAsync(Stream input, IReadOnlyList<ReplayOutputs> outputs, CancellationToken cancellation)
     {
+        ArgumentNullException.ThrowIfNull(outputs);
+        if (outputs.Count != _lanes.Length)
+        {
+            throw new ArgumentException($"{outputs.Count} outputs for {_lanes.Length} lanes", nameof(outputs));
+        }
         var linePool = Pool<LineBatch>();
-        var outputPool = Pool<OutputBatch>();
+        var outputPool = Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight + 2) { SingleReader = true, SingleWriter = false, FullMode = BoundedChannelFullMode.Wait });
+        for (int i = 0; i < BatchesInFlight + 2; i++)
+        {
+            outputPool.Writer.TryWrite([.. _lanes.Select(_ => new OutputBatch())]);
+        }
         var lines = Channel.CreateBounded<LineBatch>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
-        var results = Channel.CreateBounded<OutputBatch>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
+        var results = Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
 
         // One stage failing stops the others, and its exception (not their cancellation) surfaces.
         using var stop = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
@@ -83,7 +123,7 @@ internal sealed class ReplayPipeline
         });
 
     private async Task ScoreAsync(ChannelReader<LineBatch> input, ChannelWriter<LineBatch> linePool,
-        ChannelReader<OutputBatch> outputPool, ChannelWriter<OutputBatch> output, CancellationToken cancellation)
+        ChannelReader<OutputBatch[]> outputPool, ChannelWriter<OutputBatch[]> output, CancellationToken cancellation)
     {
         try
         {
@@ -92,15 +132,19 @@ internal sealed class ReplayPipeline
                 while (input.TryRead(out var batch))
                 {
                     var result = await outputPool.ReadAsync(cancellation).ConfigureAwait(false);
-                    result.Clear();
-                    _sink.Current = result;
+                    for (int l = 0; l < _lanes.Length; l++)
+                    {
+                        result[l].Clear();
+                        _lanes[l].Sink.Current = result[l];
+                    }
                     for (int i = 0; i < batch.Count; i++)
                     {
                         ProcessLine(batch.Line(i), batch.FirstLine + i, result);
                     }
                     Lines += batch.Count;
+                    BytesRead += batch.Bytes + batch.Count;
                     await linePool.WriteAsync(batch, cancellation).ConfigureAwait(false);
-                    AfterBatch?.Invoke(_engine);
+                    AfterBatch?.Invoke(Engine);
                     await output.WriteAsync(result, cancellation).ConfigureAwait(false);
                 }
             }
@@ -113,7 +157,7 @@ internal sealed class ReplayPipeline
         }
     }
 
-    private void ProcessLine(ReadOnlySpan<byte> line, long lineNumber, OutputBatch result)
+    private void ProcessLine(ReadOnlySpan<byte> line, long lineNumber, OutputBatch[] results)
     {
         if (line.Trim(" \t"u8).IsEmpty)
         {
@@ -121,26 +165,34 @@ internal sealed class ReplayPipeline
         }
         if (!_parser.TryParse(line, _record, out string? error))
         {
-            Reject(lineNumber, error!, line, result);
+            for (int l = 0; l < _lanes.Length; l++)
+            {
+                Reject(_lanes[l], lineNumber, error!, line, results[l]);
+            }
             return;
         }
-        switch (_engine.Process(_record))
+        // Every lane sees the same parsed record; engines only read it.
+        for (int l = 0; l < _lanes.Length; l++)
         {
-            case StepOutcome.Rejected:
-                Reject(lineNumber, _engine.RejectReason!, line, result);
-                break;
-            case StepOutcome.UnknownLabel:
-                Reject(lineNumber, "label for an id with no pending prediction (never scored, or dropped after Labels:MaxAge or Labels:MaxPending)", line, result);
-                break;
-            case StepOutcome.DuplicateLabel:
-                Reject(lineNumber, "second label for a prediction that was already graded", line, result);
-                break;
+            var lane = _lanes[l];
+            switch (lane.Engine.Process(_record))
+            {
+                case StepOutcome.Rejected:
+                    Reject(lane, lineNumber, lane.Engine.RejectReason!, line, results[l]);
+                    break;
+                case StepOutcome.UnknownLabel:
+                    Reject(lane, lineNumber, "label for an id with no pending prediction (never scored, or dropped after Labels:MaxAge or Labels:MaxPending)", line, results[l]);
+                    break;
+                case StepOutcome.DuplicateLabel:
+                    Reject(lane, lineNumber, "second label for a prediction that was already graded", line, results[l]);
+                    break;
+            }
         }
     }
 
-    private void Reject(long lineNumber, string reason, ReadOnlySpan<byte> line, OutputBatch result)
+    private static void Reject(ReplayLane lane, long lineNumber, string reason, ReadOnlySpan<byte> line, OutputBatch result)
     {
-        DeadLetters++;
+        lane.DeadLetters++;
         string raw = Encoding.UTF8.GetString(line.Length > DeadLetter.MaxRawChars * 4 ? line[..(DeadLetter.MaxRawChars * 4)] : line);
         if (raw.Length > DeadLetter.MaxRawChars)
         {
@@ -149,13 +201,16 @@ internal sealed class ReplayPipeline
         result.DeadLetters.Add(new DeadLetter(lineNumber, reason, raw));
     }
 
-    private static async Task WriteAsync(ChannelReader<OutputBatch> input, ChannelWriter<OutputBatch> pool, ReplayOutputs outputs, CancellationToken cancellation)
+    private static async Task WriteAsync(ChannelReader<OutputBatch[]> input, ChannelWriter<OutputBatch[]> pool, IReadOnlyList<ReplayOutputs> outputs, CancellationToken cancellation)
     {
         while (await input.WaitToReadAsync(cancellation).ConfigureAwait(false))
         {
             while (input.TryRead(out var batch))
             {
-                outputs.Write(batch);
+                for (int l = 0; l < batch.Length; l++)
+                {
+                    outputs[l].Write(batch[l]);
+                }
                 await pool.WriteAsync(batch, cancellation).ConfigureAwait(false);
             }
         }

@@ -121,4 +121,16 @@ public sealed class ScoringEngineTests
         Assert.Equal(0.025, engine.Totals.Current.Brier, 12);
         Assert.Equal(0, engine.Models[0].Learner.Updates);
     }
+
+    [Theory]
+    [InlineData("{}")]
+    [InlineData("""{"format":"something-else","format_version":1}""")]
+    [InlineData("""{"format":"driftline-state","format_version":99}""")]
+    [InlineData("[1,2,3]")]
+    public void Read_NotASnapshot_IsRefusedWithAReason(string json)
+    {
+        using var stream = new MemoryStream(System.Text.Encoding.UTF8.GetBytes(json));
+        var error = Assert.Throws<InvalidDataException>(() => SnapshotCodec.Read(stream));
+        Assert.Contains("snapshot", error.Message, StringComparison.Ordinal);
+    }
 }

@@ -18,7 +18,7 @@ internal sealed class CliRun
         var output = new StringWriter();
         var error = new StringWriter();
         var context = new CommandContext(output, error, environment ?? [], () => new MemoryStream(stdin ?? []));
-        int code = await DriftlineCli.RunAsync(args, context);
+        int code = await DriftlineCli.RunAsync(args, context, Xunit.TestContext.Current.CancellationToken);
         return new CliRun { ExitCode = code, Out = output.ToString(), Error = error.ToString() };
     }
 }

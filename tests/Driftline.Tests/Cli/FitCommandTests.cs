@@ -1,6 +1,7 @@
 using System.Globalization;
 using System.Reflection;
 using System.Text.Json;
+using Driftline.Tests.Support;
 using Xunit;
 
 namespace Driftline.Tests.Cli;

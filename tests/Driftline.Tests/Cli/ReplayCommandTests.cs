@@ -1,6 +1,7 @@
 using System.Text;
 using System.Text.Json;
 using Driftline.Core.Snapshots;
+using Driftline.Tests.Support;
 using Xunit;
 
 namespace Driftline.Tests.Cli;

@@ -1,0 +1,91 @@
+using System.Text;
+
+namespace Driftline.Core.Features;
+
+/// <summary>
+/// A bounded record of the text behind feature hashes, so a saved model can show
+/// <c>zone=riverside</c> instead of a slot number. Keyed by the full 64-bit hash rather than a
+/// slot, so the same record serves every <c>Model:HashBits</c> and two names that share a slot
+/// are both kept (a reader of the model sees the collision instead of a wrong name).
+/// </summary>
+/// <remarks>
+/// The first <see cref="Capacity"/> distinct hashes are kept, later ones are counted in
+/// <see cref="Dropped"/>; the record never grows past that. A hash already known costs one
+/// dictionary probe and allocates nothing, so the parser's hot path stays allocation-free
+/// once the vocabulary has been seen. Not thread-safe: one parser writes it.
+/// </remarks>
+internal sealed class FeatureNames
+{
+    /// <summary>Default most hashes kept.</summary>
+    public const int DefaultCapacity = 100_000;
+
+    private readonly Dictionary<ulong, string> _names = new();
+
+    /// <summary>Creates an empty record holding at most <paramref name="capacity"/> names.</summary>
+    /// <exception cref="ArgumentOutOfRangeException"><paramref name="capacity"/> is less than 1.</exception>
+    public FeatureNames(int capacity = DefaultCapacity)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(capacity, 1);
+        Capacity = capacity;
+        _names[FeatureHash.Bias] = "(bias)";
+    }
+
+    /// <summary>Most names kept.</summary>
+    public int Capacity { get; }
+
+    /// <summary>Names kept.</summary>
+    public int Count => _names.Count;
+
+    /// <summary>Times a new name was not kept because the record was full (a name seen again counts again).</summary>
+    public long Dropped { get; private set; }
+
+    /// <summary>Records a numeric or boolean feature: the hash is the name's own.</summary>
+    public void RecordName(ulong hash, ReadOnlySpan<byte> utf8Name)
+    {
+        if (!_names.ContainsKey(hash) && HasRoom())
+        {
+            _names[hash] = Encoding.UTF8.GetString(utf8Name);
+        }
+    }
+
+    /// <summary>Records a categorical feature as <c>name=value</c>.</summary>
+    public void RecordValue(ulong hash, ReadOnlySpan<byte> utf8Name, ReadOnlySpan<byte> utf8Value)
+    {
+        if (!_names.ContainsKey(hash) && HasRoom())
+        {
+            _names[hash] = string.Concat(Encoding.UTF8.GetString(utf8Name), "=", Encoding.UTF8.GetString(utf8Value));
+        }
+    }
+
+    /// <summary>The text recorded for <paramref name="hash"/>, or null.</summary>
+    public string? Find(ulong hash) => _names.GetValueOrDefault(hash);
+
+    /// <summary>Every (hash, text) pair, for a snapshot.</summary>
+    public IEnumerable<KeyValuePair<ulong, string>> Entries => _names;
+
+    /// <summary>Rebuilds a record from saved pairs.</summary>
+    public static FeatureNames Restore(IEnumerable<KeyValuePair<ulong, string>> entries, int capacity = DefaultCapacity)
+    {
+        ArgumentNullException.ThrowIfNull(entries);
+        var names = new FeatureNames(capacity);
+        foreach (var (hash, text) in entries)
+        {
+            if (names.HasRoom())
+            {
+                names._names[hash] = text;
+            }
+        }
+        return names;
+    }
+
+    // Checked before any text is built, so a full record allocates nothing either.
+    private bool HasRoom()
+    {
+        if (_names.Count < Capacity)
+        {
+            return true;
+        }
+        Dropped++;
+        return false;
+    }
+}

@@ -1,0 +1,115 @@
+using System.CommandLine;
+using System.Globalization;
+using Driftline.Core.Learning;
+using Driftline.Core.Options;
+using Driftline.Core.Snapshots;
+using Driftline.Output;
+
+namespace Driftline.Cli;
+
+/// <summary>
+/// <c>driftline inspect MODEL</c>: what a saved model is: its version and training counts,
+/// the weights that move its probabilities most, with the feature names behind their hashed
+/// slots where the replay recorded them, and the settings it was trained with.
+/// </summary>
+internal sealed class InspectCommand(CommandContext context)
+{
+    private static readonly CultureInfo C = CultureInfo.InvariantCulture;
+
+    /// <summary>The command-line definition.</summary>
+    public Command Build()
+    {
+        var model = new Argument<string>("MODEL") { Description = "A saved model (model.json from replay)" };
+        var top = new Option<int>("--top") { Description = "How many weights to list per key", DefaultValueFactory = _ => 20 };
+        var command = new Command("inspect", "Show a saved model: version, training counts, the weights that matter most, settings") { model, top };
+        command.SetAction(result => Run(result.GetValue(model)!, result.GetValue(top)));
+        return command;
+    }
+
+    /// <summary>Describes the model in <paramref name="path"/>; returns the exit code.</summary>
+    public int Run(string path, int top = 20)
+    {
+        if (top < 1)
+        {
+            context.Error.WriteLine("driftline: --top must be at least 1.");
+            return ExitCode.Usage;
+        }
+        EngineSnapshot snapshot;
+        try
+        {
+            using var file = File.OpenRead(path);
+            snapshot = SnapshotCodec.Read(file);
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException or InvalidDataException)
+        {
+            context.Error.WriteLine($"driftline: cannot read model '{path}': {ex.Message}");
+            return ExitCode.Input;
+        }
+
+        var o = context.Out;
+        var options = snapshot.Options;
+        var c = snapshot.Counters;
+        o.WriteLine($"Model {path}");
+        o.WriteLine($"  {snapshot.Models.Count:N0} key(s); {c.Events:N0} events scored, {c.Labels:N0} labels graded ({c.InlineLabels:N0} with their event, {c.LateLabels:N0} late), {snapshot.ExpiredLabels:N0} expired, {snapshot.Pending.Count(p => !p.Labelled):N0} still waiting.");
+        o.WriteLine($"  alerts raised {c.AlertsRaised:N0}, cleared {c.AlertsCleared:N0}; open now: {Open(snapshot)}.");
+        o.WriteLine();
+
+        var keys = new TextTable("key", ">version", ">events scored", ">labels seen", ">positive rate", ">weights set");
+        foreach (var m in snapshot.Models)
+        {
+            double rate = m.PriorCount > 0 ? (double)m.PriorPositives / m.PriorCount : double.NaN;
+            keys.Add(m.Key, m.Learner.Updates.ToString("N0", C), m.Scored.ToString("N0", C), m.PriorCount.ToString("N0", C),
+                double.IsNaN(rate) ? "–" : rate.ToString("0.0000", C), m.Learner.Slots.Length.ToString("N0", C));
+        }
+        keys.Write(o);
+
+        var names = SlotNames.Build(snapshot.FeatureNames, options.Model);
+        foreach (var m in snapshot.Models)
+        {
+            o.WriteLine();
+            o.WriteLine($"Weights that matter most for key '{m.Key}' (numbers are per standard deviation when scaled online):");
+            var learner = OnlineLearner.Create(options.Model);
+            learner.Import(m.Learner);
+            var ranked = m.Learner.Slots
+                .Select(slot => (Slot: slot, Weight: learner.Weight(slot)))
+                .Where(w => w.Weight != 0 && double.IsFinite(w.Weight))
+                .OrderByDescending(w => Math.Abs(w.Weight)).ThenBy(w => w.Slot)
+                .Take(top)
+                .ToList();
+            if (ranked.Count == 0)
+            {
+                o.WriteLine("  none: the model has not learned yet.");
+                continue;
+            }
+            var table = new TextTable("feature", ">weight", ">slot");
+            foreach (var (slot, weight) in ranked)
+            {
+                table.Add(names.Describe(slot, weight, out double shown), Signed(shown), slot.ToString(C));
+            }
+            table.Write(o, "  ");
+        }
+        if (snapshot.FeatureNames is null)
+        {
+            o.WriteLine();
+            o.WriteLine("This model carries no feature names (it was saved without them); slots are shown instead.");
+        }
+
+        o.WriteLine();
+        o.WriteLine("Settings it was trained with:");
+        var settings = new StringWriter(C);
+        CheckCommand.Describe(options, settings);
+        foreach (var line in settings.ToString().Split('\n', StringSplitOptions.RemoveEmptyEntries))
+        {
+            o.WriteLine("  " + line.TrimEnd('\r'));
+        }
+        return ExitCode.Ok;
+    }
+
+    private static string Open(EngineSnapshot s)
+    {
+        var open = s.Rules.Where(r => r.Raised).Select(r => r.Name).ToList();
+        return open.Count == 0 ? "none" : string.Join(", ", open);
+    }
+
+    private static string Signed(double w) => (w >= 0 ? "+" : "") + w.ToString("0.0000", C);
+}

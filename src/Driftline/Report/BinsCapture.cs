@@ -1,0 +1,13 @@
+using Driftline.Core.Metrics;
+
+namespace Driftline.Report;
+
+/// <summary>The reliability bins of the rolling window at one moment.</summary>
+/// <param name="Labels">Labels graded when the bins were copied: the window ends at this label.</param>
+/// <param name="Count">Labels in the window then, so it covers labels <c>Labels − Count + 1</c> to <c>Labels</c>.</param>
+/// <param name="Bins">The bins, in order.</param>
+internal sealed record BinsCapture(long Labels, int Count, ReliabilityBin[] Bins)
+{
+    /// <summary>First label the window covers.</summary>
+    public long FirstLabel => Labels - Count + 1;
+}

@@ -1,0 +1,232 @@
+using System.Globalization;
+using Driftline.Core.Metrics;
+using ScottPlot;
+
+namespace Driftline.Report;
+
+/// <summary>
+/// The report's charts, drawn with ScottPlot and exported as SVG. Every chart over time has
+/// labels graded on its x axis, the unit the rolling windows and the alerts count in.
+/// </summary>
+internal static class ReportCharts
+{
+    /// <summary>Width of a chart in CSS pixels.</summary>
+    public const int Width = 880;
+
+    /// <summary>Height of a chart over time.</summary>
+    public const int Height = 330;
+
+    /// <summary>Series colours, chosen to stay distinct for colour-blind readers (Okabe–Ito).</summary>
+    private static readonly Color[] Palette =
+        [Color.FromHex("#0072B2"), Color.FromHex("#D55E00"), Color.FromHex("#009E73"), Color.FromHex("#CC79A7"), Color.FromHex("#E69F00"), Color.FromHex("#56B4E9")];
+
+    private static readonly Color Ink = Color.FromHex("#333333");
+    private static readonly Color Faint = Color.FromHex("#888888");
+    private static readonly Color RaiseColour = Color.FromHex("#C0392B");
+    private static readonly Color ClearColour = Color.FromHex("#1E8449");
+
+    private static readonly Lazy<string?> SansFont = new(() =>
+        SkiaSharp.SKFontManager.Default.GetFontFamilies().FirstOrDefault(f => f is "DejaVu Sans" or "Liberation Sans" or "Noto Sans"));
+
+    /// <summary>The colour of series <paramref name="i"/>.</summary>
+    public static string ColourHex(int i) => Palette[i % Palette.Length].ToHex();
+
+    /// <summary>Rolling log-loss of each run's model, the class-prior baseline of the first, and the alert marks of the first.</summary>
+    public static string LogLoss(IReadOnlyList<ReportData> runs, bool alertMarks)
+    {
+        using var plot = NewPlot("Rolling log-loss", "log-loss over the window (lower is better)");
+        for (int r = 0; r < runs.Count; r++)
+        {
+            var line = Line(plot, runs[r].Points, p => p.LogLoss, Palette[r % Palette.Length]);
+            line.LegendText = runs.Count == 1 ? "model" : runs[r].Name;
+        }
+        if (runs.Count > 0)
+        {
+            var prior = Line(plot, runs[0].Points, p => p.PriorLogLoss, Faint);
+            prior.LinePattern = LinePattern.Dashed;
+            prior.LegendText = "class-prior baseline";
+        }
+        if (alertMarks && runs.Count == 1)
+        {
+            AlertMarks(plot, runs[0]);
+        }
+        plot.ShowLegend(Alignment.UpperLeft);
+        return Export(plot, "log-loss");
+    }
+
+    /// <summary>Rolling calibration-in-the-large (mean p − mean y) of each run, with a zero line.</summary>
+    public static string CalibrationInTheLarge(IReadOnlyList<ReportData> runs, bool alertMarks)
+    {
+        using var plot = NewPlot("Calibration-in-the-large", "mean p − observed rate over the window");
+        var zero = plot.Add.HorizontalLine(0, 1, Faint, LinePattern.Dotted);
+        zero.ExcludeFromLegend = true;
+        for (int r = 0; r < runs.Count; r++)
+        {
+            var line = Line(plot, runs[r].Points, p => p.CalibrationInTheLarge, Palette[r % Palette.Length]);
+            line.LegendText = runs.Count == 1 ? "model" : runs[r].Name;
+        }
+        if (alertMarks && runs.Count == 1)
+        {
+            AlertMarks(plot, runs[0]);
+        }
+        plot.ShowLegend(Alignment.UpperLeft);
+        return Export(plot, "citl");
+    }
+
+    /// <summary>Share of labels that arrived late, and of predictions that expired unlabelled, per stretch of the run.</summary>
+    public static string LabelShares(ReportData run)
+    {
+        using var plot = NewPlot("Late and expired labels", "share per stretch of the run");
+        var (xs, late, expired) = Shares(run.Points, 60);
+        var lateLine = plot.Add.ScatterLine(xs, late, Palette[0]);
+        lateLine.LegendText = "late: labels that came after their event";
+        lateLine.LineWidth = 2;
+        lateLine.MarkerSize = 0;
+        var expiredLine = plot.Add.ScatterLine(xs, expired, Palette[1]);
+        expiredLine.LegendText = "expired: predictions that never got a label";
+        expiredLine.LineWidth = 2;
+        expiredLine.MarkerSize = 0;
+        plot.Axes.SetLimitsY(0, 1);
+        plot.ShowLegend(Alignment.UpperLeft);
+        return Export(plot, "shares");
+    }
+
+    /// <summary>
+    /// A reliability diagram: mean predicted probability against observed rate per bin, with
+    /// 95% Wilson intervals, the diagonal of perfect calibration, and (for a single series) the
+    /// number of labels beside each point (diagrams under 400 px leave legend and counts to the caption).
+    /// </summary>
+    public static string Reliability(string title, IReadOnlyList<(string Name, ReliabilityBin[] Bins)> series, int size = 420)
+    {
+        using var plot = NewPlot(title, "observed rate of positives");
+        plot.XLabel("mean predicted probability");
+        var diagonal = plot.Add.Line(0, 0, 1, 1);
+        diagonal.LineColor = Faint;
+        diagonal.LinePattern = LinePattern.Dashed;
+        diagonal.LegendText = "perfectly calibrated";
+        for (int s = 0; s < series.Count; s++)
+        {
+            var colour = Palette[s % Palette.Length];
+            var used = series[s].Bins.Where(b => b.Count > 0).ToArray();
+            if (used.Length == 0)
+            {
+                continue;
+            }
+            double[] xs = used.Select(b => b.MeanP).ToArray();
+            double[] ys = used.Select(b => b.MeanY).ToArray();
+            var intervals = used.Select(b => WilsonInterval.Of(b.MeanY * b.Count, b.Count)).ToArray();
+            var bars = plot.Add.ErrorBar(xs, ys, new double[xs.Length]);
+            bars.YErrorNegative = ys.Select((y, i) => y - intervals[i].Lower).ToArray();
+            bars.YErrorPositive = ys.Select((y, i) => intervals[i].Upper - y).ToArray();
+            bars.Color = colour;
+            bars.LineWidth = 1.5f;
+            var points = plot.Add.ScatterPoints(xs, ys, colour);
+            points.MarkerSize = 8;
+            points.LegendText = series.Count == 1 ? "bin (95% Wilson interval)" : series[s].Name;
+            if (series.Count == 1 && size >= 400)
+            {
+                for (int i = 0; i < used.Length; i++)
+                {
+                    var label = plot.Add.Text("n=" + used[i].Count.ToString("N0", CultureInfo.InvariantCulture), xs[i], ys[i]);
+                    label.LabelFontSize = size < 400 ? 9 : 11;
+                    label.LabelFontColor = Ink;
+                    // Labels sit right of their point, except near the right edge where they would be cut off.
+                    bool right = xs[i] > 0.8;
+                    label.LabelAlignment = right ? Alignment.UpperRight : Alignment.LowerLeft;
+                    label.OffsetX = right ? -8 : 6;
+                    label.OffsetY = right ? 4 : 0;
+                }
+            }
+        }
+        plot.Axes.SetLimits(0, 1, 0, 1);
+        if (size >= 400 || series.Count > 1)
+        {
+            plot.ShowLegend(Alignment.UpperLeft);
+        }
+        else
+        {
+            // Small diagrams sit in a row under one explanation, with their counts in the
+            // caption: a legend or count labels would cover their points.
+            plot.HideLegend();
+        }
+        return Export(plot, "reliability", size, size);
+    }
+
+    private static Plot NewPlot(string title, string yLabel)
+    {
+        var plot = new Plot();
+        // ScottPlot's generic "sans" resolves to a serif face on some Linux boxes; ask for DejaVu Sans by name when it is there.
+        if (SansFont.Value is { } sans)
+        {
+            plot.Font.Set(sans);
+        }
+        plot.Title(title);
+        plot.Axes.Title.Label.FontSize = 15;
+        plot.XLabel("labels graded");
+        plot.YLabel(yLabel);
+        plot.Axes.Bottom.Label.FontSize = 12;
+        plot.Axes.Left.Label.FontSize = 12;
+        return plot;
+    }
+
+    private static ScottPlot.Plottables.Scatter Line(Plot plot, IReadOnlyList<ReportPoint> points, Func<ReportPoint, double> value, Color colour)
+    {
+        // NaN values (an empty window) are left out rather than drawn as gaps ScottPlot cannot place.
+        var kept = points.Where(p => double.IsFinite(value(p))).ToArray();
+        var line = plot.Add.ScatterLine(kept.Select(p => (double)p.Labels).ToArray(), kept.Select(value).ToArray(), colour);
+        line.LineWidth = 2;
+        line.MarkerSize = 0;
+        return line;
+    }
+
+    private static void AlertMarks(Plot plot, ReportData run)
+    {
+        bool raisedInLegend = false, clearedInLegend = false;
+        foreach (var capture in run.Alerts)
+        {
+            var a = capture.Alert;
+            var mark = plot.Add.VerticalLine(a.Labels, 1.5f, a.Raised ? RaiseColour : ClearColour, a.Raised ? LinePattern.Solid : LinePattern.Dashed);
+            ref bool shown = ref a.Raised ? ref raisedInLegend : ref clearedInLegend;
+            if (!shown)
+            {
+                mark.LegendText = a.Raised ? "alert raised" : "alert cleared";
+                shown = true;
+            }
+        }
+    }
+
+    private static (double[] X, double[] Late, double[] Expired) Shares(IReadOnlyList<ReportPoint> points, int stretches)
+    {
+        var xs = new List<double>();
+        var late = new List<double>();
+        var expired = new List<double>();
+        if (points.Count < 2)
+        {
+            return ([], [], []);
+        }
+        int step = Math.Max(1, points.Count / stretches);
+        var previous = new ReportPoint(0, 0, 0, 0, 0, 0, 0, 0, 0);
+        for (int i = step - 1; i < points.Count; i += step)
+        {
+            var p = points[i];
+            long labels = p.Labels - previous.Labels;
+            long dropped = p.ExpiredLabels - previous.ExpiredLabels;
+            if (labels + dropped > 0)
+            {
+                xs.Add(p.Labels);
+                late.Add(labels > 0 ? (double)(p.LateLabels - previous.LateLabels) / labels : 0);
+                expired.Add((double)dropped / (labels + dropped));
+            }
+            previous = p;
+        }
+        return ([.. xs], [.. late], [.. expired]);
+    }
+
+    private static int _charts;
+
+    private static string Export(Plot plot, string kind, int width = Width, int height = Height)
+    {
+        int n = Interlocked.Increment(ref _charts);
+        return SvgFragment.Inline(plot.GetSvgXml(width, height), $"{kind}{n}-", plot.Axes.Title.Label.Text);
+    }
+}

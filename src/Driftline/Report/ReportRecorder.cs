@@ -1,0 +1,146 @@
+using Driftline.Core.Alerts;
+using Driftline.Core.Metrics;
+using Driftline.Core.Scoring;
+
+namespace Driftline.Report;
+
+/// <summary>
+/// A sink in front of the pipeline's own that samples what the report draws, on the scoring
+/// thread while the engine's state is current: the rolling measures every few events, and
+/// the window's reliability bins around each alert (which cannot be rebuilt afterwards from
+/// the output files).
+/// </summary>
+/// <remarks>
+/// Memory is bounded whatever the run's length: when the series reaches
+/// <see cref="MaxPoints"/> it keeps every other point and samples half as often. Bins are
+/// copied only at samples and alerts, never per event.
+/// </remarks>
+internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sampleEvery = 100) : IScoringSink
+{
+    /// <summary>Most points kept in the series before it is thinned.</summary>
+    public const int MaxPoints = 1_200;
+
+    /// <summary>Most alert transitions kept with their windows (the report shows far fewer; this only bounds memory).</summary>
+    public const int MaxAlerts = 10_000;
+
+    private readonly Queue<BinsCapture> _recent = new();
+    private readonly List<AlertCapture> _awaitingAfter = [];
+    private ScoringEngine? _engine;
+    private BinsCapture? _windowBefore;
+    private int _every = Math.Max(1, sampleEvery);
+    private int _sinceSample;
+    private long _lastLabels = -1;
+
+    /// <summary>The data being filled.</summary>
+    public ReportData Data => data;
+
+    /// <summary>Connects the recorder to the engine it listens to (the engine is built around the sink, so this comes after).</summary>
+    public void Attach(ScoringEngine engine) => _engine = engine;
+
+    /// <inheritdoc />
+    public void OnPrediction(in Prediction prediction)
+    {
+        inner.OnPrediction(prediction);
+        if (++_sinceSample >= _every)
+        {
+            _sinceSample = 0;
+            Sample();
+        }
+    }
+
+    /// <inheritdoc />
+    public void OnAlert(AlertTransition alert)
+    {
+        inner.OnAlert(alert);
+        if (data.Alerts.Count >= MaxAlerts)
+        {
+            return;
+        }
+        var engine = Engine;
+        data.Alerts.Add(new AlertCapture(alert, alert.Raised ? _windowBefore : null, Capture(engine)));
+        if (alert.Raised)
+        {
+            _awaitingAfter.Add(data.Alerts[^1]);
+        }
+    }
+
+    /// <inheritdoc />
+    public void OnMetrics(in MetricsRow row) => inner.OnMetrics(row);
+
+    /// <summary>Takes the final sample and the whole-run figures once the input is done.</summary>
+    public void Finish()
+    {
+        var engine = Engine;
+        _lastLabels = -1;
+        Sample();
+        foreach (var waiting in _awaitingAfter)
+        {
+            waiting.After = Capture(engine);
+        }
+        _awaitingAfter.Clear();
+        var bins = new ReliabilityBin[engine.Totals.Bins];
+        engine.Totals.CopyBins(bins);
+        data.WholeRun = bins;
+        data.Total = engine.Totals.Current;
+        data.PriorTotal = engine.PriorTotals.Current;
+        data.Counters = engine.Counters.Copy();
+        data.ExpiredLabels = engine.Pending.Expired;
+        data.WaitingLabels = engine.Pending.Waiting;
+        data.OpenAlerts.AddRange(engine.Rules.Where(r => r.Raised).Select(r => r.Options.Name));
+    }
+
+    private ScoringEngine Engine => _engine ?? throw new InvalidOperationException("Attach the engine before the run");
+
+    private void Sample()
+    {
+        var engine = Engine;
+        long labels = engine.Counters.Labels;
+        if (labels == _lastLabels || labels == 0)
+        {
+            return;
+        }
+        _lastLabels = labels;
+        var window = engine.Window.Current;
+        var prior = engine.PriorWindow.Current;
+        var points = data.Points;
+        points.Add(new ReportPoint(labels, engine.Counters.Events, window.Count, window.LogLoss, prior.LogLoss,
+            window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired));
+        if (points.Count >= MaxPoints)
+        {
+            // Keep every other point, then sample half as often.
+            int kept = 0;
+            for (int i = 0; i < points.Count; i += 2)
+            {
+                points[kept++] = points[i];
+            }
+            points.RemoveRange(kept, points.Count - kept);
+            _every *= 2;
+        }
+
+        // The window before an alert is the one ending where the alerting window starts:
+        // the latest capture at least one window-length old.
+        int size = engine.Window.Capacity;
+        var capture = Capture(engine);
+        _recent.Enqueue(capture);
+        while (_recent.Count > 0 && _recent.Peek().Labels <= labels - size)
+        {
+            _windowBefore = _recent.Dequeue();
+        }
+        for (int i = _awaitingAfter.Count - 1; i >= 0; i--)
+        {
+            if (labels >= _awaitingAfter[i].At.Labels + size)
+            {
+                _awaitingAfter[i].After = capture;
+                _awaitingAfter.RemoveAt(i);
+            }
+        }
+    }
+
+    private static BinsCapture Capture(ScoringEngine engine)
+    {
+        var window = engine.Window;
+        var bins = new ReliabilityBin[window.Bins];
+        window.CopyBins(bins);
+        return new BinsCapture(engine.Counters.Labels, window.Count, bins);
+    }
+}

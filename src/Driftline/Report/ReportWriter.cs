@@ -1,0 +1,234 @@
+using System.Globalization;
+using System.Text;
+using Driftline.Cli;
+using Driftline.Core.Events;
+using Driftline.Core.Options;
+
+namespace Driftline.Report;
+
+/// <summary>
+/// Writes <c>report.html</c>: for one configuration, its run in charts and tables; for
+/// several, the same measures side by side so a half-life or a learner can be chosen on
+/// evidence. Readable without JavaScript and without a network.
+/// </summary>
+internal static class ReportWriter
+{
+    /// <summary>File name of the report in an output folder.</summary>
+    public const string FileName = "report.html";
+
+    /// <summary>Most alert rows in a table; a rule that flaps thousands of times would otherwise bury the page.</summary>
+    public const int MaxAlertRows = 200;
+
+    /// <summary>Most raises that get their before/when/after diagrams.</summary>
+    public const int MaxAlertWindows = 20;
+
+    private static readonly CultureInfo C = CultureInfo.InvariantCulture;
+
+    /// <summary>Writes the report of one run to <paramref name="path"/>.</summary>
+    public static void WriteSingle(string path, string input, ReportData run) =>
+        File.WriteAllText(path, Single(input, run), new UTF8Encoding(false));
+
+    /// <summary>Writes the comparison of several runs over the same input to <paramref name="path"/>.</summary>
+    public static void WriteComparison(string path, string input, IReadOnlyList<ReportData> runs) =>
+        File.WriteAllText(path, Comparison(input, runs), new UTF8Encoding(false));
+
+    /// <summary>The report of one run, as HTML.</summary>
+    public static string Single(string input, ReportData run)
+    {
+        ArgumentNullException.ThrowIfNull(run);
+        var page = new HtmlPage($"Driftline replay: {Path.GetFileName(input)}");
+        page.Heading(1, "Replay report")
+            .Paragraph($"{input} replayed with configuration '{run.Name}': {run.Counters.Events:N0} events scored, {run.Counters.Labels:N0} labels graded, {run.Counters.AlertsRaised:N0} {(run.Counters.AlertsRaised == 1 ? "alert" : "alerts")} raised.", "lead");
+
+        page.Heading(2, "Summary", "summary").Table(["measure", "value"], SummaryRows(run));
+
+        int window = run.Options.Monitor.Window;
+        page.Heading(2, "Loss over time", "loss")
+            .Raw(HtmlPage.Figure(ReportCharts.LogLoss([run], alertMarks: true),
+                $"Log-loss of the model and of the class-prior baseline over the last {window:N0} labels. The model earns its keep while its line stays below the dashed baseline; where they meet or cross, it predicts no better than the base rate. Red lines mark alerts raised, green dashed lines alerts cleared."));
+        page.Heading(2, "Calibration over time", "calibration")
+            .Raw(HtmlPage.Figure(ReportCharts.CalibrationInTheLarge([run], alertMarks: true),
+                $"Mean predicted probability minus the observed rate over the last {window:N0} labels. Zero means the probabilities are right on average; above zero the model over-predicts, below it under-predicts. A drift away from zero is the first sign that a probability no longer means what it says."));
+        page.Heading(2, "Reliability over the whole run", "reliability")
+            .Raw(HtmlPage.Figure(ReportCharts.Reliability("Whole run", [("model", run.WholeRun)], 520),
+                "Each point is one probability bin: mean predicted probability across, observed rate of positives up, with its 95% Wilson interval and the number of labels in it. Points on the dashed diagonal are calibrated; an interval that misses the diagonal is a bin the model gets wrong beyond chance."));
+
+        page.Heading(2, "Alerts", "alerts");
+        if (run.Alerts.Count == 0)
+        {
+            page.Paragraph("No alert was raised.");
+        }
+        else
+        {
+            page.Paragraph("Every raise and clear, in order. Below the table, the reliability of the rolling window before, when and after each raise.");
+            page.Table(["#", "rule", "state", "at label", "event time", "event", "why"], AlertRows([run], withConfig: false), "alerts");
+            AlertWindows(page, run);
+        }
+
+        page.Heading(2, "Late and expired labels", "labels")
+            .Raw(HtmlPage.Figure(ReportCharts.LabelShares(run),
+                $"Of the labels graded in each stretch of the run, the share that arrived after their event (late); and of the predictions resolved, the share dropped unlabelled after {Words(run.Options.Labels.MaxAge)} of event time or when more than {run.Options.Labels.MaxPending:N0} were waiting (expired). A rising expired share means the windows judge the model on a biased subset of outcomes."));
+
+        page.Heading(2, "Settings", "settings").Raw("<pre>" + HtmlPage.Encode(Describe(run.Options)) + "</pre>");
+        return page.ToString();
+    }
+
+    /// <summary>The comparison of several runs, as HTML.</summary>
+    public static string Comparison(string input, IReadOnlyList<ReportData> runs)
+    {
+        ArgumentNullException.ThrowIfNull(runs);
+        var page = new HtmlPage($"Driftline comparison: {Path.GetFileName(input)}");
+        page.Heading(1, "Configurations side by side")
+            .Paragraph($"{input} replayed once through {runs.Count} configurations, each with its own model over the same parsed events: {string.Join(", ", runs.Select(r => r.Name))}.", "lead");
+
+        page.Heading(2, "Final figures", "figures")
+            .Table(["configuration", "learner", "half-life", "log-loss", "prior", "skill", "Brier", "ECE", "mean p − rate", "alerts", "open at end"],
+                runs.Select((r, i) => (IReadOnlyList<string>)
+                [
+                    r.Name,
+                    r.Options.Model.Learner == LearnerKind.Ftrl ? "FTRL-Proximal" : "AdaGrad",
+                    r.Options.Model.HalfLifeLabels > 0 ? $"#num {r.Options.Model.HalfLifeLabels:N0} labels" : "off",
+                    Num(r.Total.LogLoss), Num(r.PriorTotal.LogLoss), Pct(r.Skill), Num(r.Total.Brier), Num(r.Total.Ece),
+                    Num(r.Total.CalibrationInTheLarge), $"#num {r.Counters.AlertsRaised:N0}",
+                    r.OpenAlerts.Count == 0 ? "none" : string.Join(", ", r.OpenAlerts),
+                ]))
+            .Paragraph("Skill is 1 − model log-loss / prior log-loss over the whole run: the share of the baseline's loss the model removes. Each configuration's own report, with its alert windows, is in its folder: follow its name below.");
+
+        // The key doubles as the way into each configuration's own report (relative links work offline).
+        page.Raw("<p class=\"key\">" + string.Join(" ", runs.Select((r, i) =>
+            $"<a href=\"{Uri.EscapeDataString(r.Name)}/{FileName}\"><span class=\"swatch\" style=\"background:{ReportCharts.ColourHex(i)}\"></span>{HtmlPage.Encode(r.Name)}</a>")) + "</p>");
+        page.Heading(2, "Loss over time", "loss")
+            .Raw(HtmlPage.Figure(ReportCharts.LogLoss(runs, alertMarks: false),
+                "Rolling log-loss of each configuration over its own window, with the class-prior baseline of the first dashed. The configuration that stays lowest through the hard stretches, and comes back down fastest after them, forgets at the right pace."));
+        page.Heading(2, "Calibration over time", "calibration")
+            .Raw(HtmlPage.Figure(ReportCharts.CalibrationInTheLarge(runs, alertMarks: false),
+                "Mean predicted probability minus observed rate over each configuration's window. The closer a line keeps to zero, the more its probabilities can be taken at face value."));
+        page.Heading(2, "Reliability over the whole run", "reliability")
+            .Raw(HtmlPage.Figure(ReportCharts.Reliability("Whole run", runs.Select(r => (r.Name, r.WholeRun)).ToList(), 520),
+                "Mean predicted probability against observed rate per bin for each configuration, with 95% Wilson intervals. Points nearer the dashed diagonal are better calibrated."));
+
+        page.Heading(2, "Alerts", "alerts");
+        if (runs.All(r => r.Alerts.Count == 0))
+        {
+            page.Paragraph("No configuration raised an alert.");
+        }
+        else
+        {
+            page.Table(["#", "configuration", "rule", "state", "at label", "event time", "event", "why"], AlertRows(runs, withConfig: true), "alerts");
+        }
+
+        page.Heading(2, "Settings", "settings");
+        foreach (var run in runs)
+        {
+            page.Heading(3, run.Name).Raw("<pre>" + HtmlPage.Encode(Describe(run.Options)) + "</pre>");
+        }
+        return page.ToString();
+    }
+
+    private static void AlertWindows(HtmlPage page, ReportData run)
+    {
+        int n = 0, drawn = 0;
+        foreach (var capture in run.Alerts)
+        {
+            n++;
+            if (!capture.Alert.Raised)
+            {
+                continue;
+            }
+            if (++drawn > MaxAlertWindows)
+            {
+                page.Paragraph($"Diagrams are drawn for the first {MaxAlertWindows} raises only; alerts.jsonl lists every one.");
+                break;
+            }
+            var a = capture.Alert;
+            page.Heading(3, $"Alert {n}: {a.Rule} raised at label {a.Labels:N0}");
+            var figures = new List<string>();
+            if (capture.Before is { } before)
+            {
+                figures.Add(SmallDiagram("Before", before, "the window that ended as the alerting one began"));
+            }
+            figures.Add(SmallDiagram("When raised", capture.At, "what the rule saw"));
+            if (capture.After is { } after)
+            {
+                bool full = after.Labels >= capture.At.Labels + run.Options.Monitor.Window;
+                figures.Add(SmallDiagram("After", after, full ? "one window later" : "the last window (the run ended within a window of the alert)"));
+            }
+            page.Raw("<div class=\"row\">\n" + string.Join("\n", figures) + "\n</div>");
+        }
+    }
+
+    private static string SmallDiagram(string title, BinsCapture window, string which)
+    {
+        string counts = string.Join(" · ", window.Bins.Select(b => b.Count.ToString("N0", C)));
+        return HtmlPage.Figure(ReportCharts.Reliability(title, [("window", window.Bins)], 300),
+            $"Labels {window.FirstLabel:N0}–{window.Labels:N0}: {which}. Labels per bin, 0 to 1: {counts}.");
+    }
+
+    private static IEnumerable<IReadOnlyList<string>> AlertRows(IReadOnlyList<ReportData> runs, bool withConfig)
+    {
+        int n = 0;
+        foreach (var run in runs)
+        {
+            foreach (var capture in run.Alerts)
+            {
+                var a = capture.Alert;
+                if (++n > MaxAlertRows)
+                {
+                    yield return withConfig
+                        ? ["", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; each configuration's alerts.jsonl lists every one."]
+                        : ["", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; alerts.jsonl lists every one."];
+                    yield break;
+                }
+                var row = new List<string> { $"#num {n}" };
+                if (withConfig)
+                {
+                    row.Add(run.Name);
+                }
+                row.Add(a.Rule);
+                row.Add(a.Raised ? "#raised raised" : "#cleared cleared");
+                row.Add($"#num {a.Labels:N0}");
+                row.Add(a.TimeTicks == ParsedRecord.NoTime ? "–" : new DateTime(a.TimeTicks, DateTimeKind.Utc).ToString("yyyy-MM-dd HH:mm:ss 'UTC'", C));
+                row.Add(a.EventId);
+                row.Add(RecordJson.Describe(a));
+                yield return row;
+            }
+        }
+    }
+
+    private static IEnumerable<IReadOnlyList<string>> SummaryRows(ReportData r)
+    {
+        var c = r.Counters;
+        yield return ["events scored", $"#num {c.Events:N0}"];
+        yield return ["labels graded", $"#num {c.Labels:N0}"];
+        yield return ["of which came with their event", $"#num {c.InlineLabels:N0}"];
+        yield return ["of which came late", $"#num {c.LateLabels:N0}"];
+        yield return ["predictions expired unlabelled", $"#num {r.ExpiredLabels:N0}"];
+        yield return ["predictions still waiting at the end", $"#num {r.WaitingLabels:N0}"];
+        yield return ["dead letters", $"#num {r.DeadLetters:N0}"];
+        yield return ["log-loss, model", Num(r.Total.LogLoss)];
+        yield return ["log-loss, class prior", Num(r.PriorTotal.LogLoss)];
+        yield return ["skill over the prior", Pct(r.Skill)];
+        yield return ["Brier score", Num(r.Total.Brier)];
+        yield return ["expected calibration error", Num(r.Total.Ece)];
+        yield return ["calibration-in-the-large (mean p − rate)", Num(r.Total.CalibrationInTheLarge)];
+        yield return ["alerts raised / cleared", $"#num {c.AlertsRaised:N0} / {c.AlertsCleared:N0}"];
+        yield return ["alerts open at the end", r.OpenAlerts.Count == 0 ? "none" : string.Join(", ", r.OpenAlerts)];
+        yield return ["replay time", $"#num {r.Elapsed.TotalSeconds.ToString("0.0", C)} s"];
+    }
+
+    private static string Describe(DriftlineOptions options)
+    {
+        using var text = new StringWriter(C);
+        CheckCommand.Describe(options, text);
+        return text.ToString();
+    }
+
+    private static string Words(TimeSpan t) =>
+        t.TotalDays >= 1 && t.TotalDays == Math.Floor(t.TotalDays) ? $"{t.TotalDays:0} day{(t.TotalDays == 1 ? "" : "s")}"
+        : t.TotalHours >= 1 ? $"{t.TotalHours.ToString("0.#", C)} hours"
+        : $"{t.TotalMinutes.ToString("0.#", C)} minutes";
+
+    private static string Num(double v) => "#num " + (double.IsFinite(v) ? v.ToString("0.0000", C) : "–");
+
+    private static string Pct(double v) => "#num " + (double.IsFinite(v) ? (100 * v).ToString("0.0", C) + "%" : "–");
+}
