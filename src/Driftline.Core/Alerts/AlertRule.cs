@@ -29,8 +29,10 @@ internal sealed class AlertRule
     /// Evaluates the rule on the window's current measures. Returns the new state when it
     /// changes, null otherwise (also while the window has fewer than MinLabels labels).
     /// </summary>
-    public bool? Evaluate(in CalibrationSnapshot model, in CalibrationSnapshot prior, out double value)
+    public bool? Evaluate(CalibrationWindow model, CalibrationWindow prior, out double value)
     {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(prior);
         value = double.NaN;
         if (model.Count < Options.MinLabels)
         {
@@ -56,15 +58,23 @@ internal sealed class AlertRule
         return null;
     }
 
-    /// <summary>The value of <paramref name="metric"/> on a window (NaN when it is undefined).</summary>
-    public static double Measure(AlertMetric metric, in CalibrationSnapshot model, in CalibrationSnapshot prior) => metric switch
+    /// <summary>
+    /// The value of <paramref name="metric"/> on a window (NaN when it is undefined). Runs after
+    /// every label, so the O(1) measures are read directly rather than through a full snapshot.
+    /// </summary>
+    public static double Measure(AlertMetric metric, CalibrationWindow model, CalibrationWindow prior)
     {
-        AlertMetric.LogLoss => model.LogLoss,
-        AlertMetric.Brier => model.Brier,
-        AlertMetric.Ece => model.Ece,
-        AlertMetric.CalibrationInTheLarge => model.CalibrationInTheLarge,
-        AlertMetric.CalibrationGap => Math.Abs(model.CalibrationInTheLarge),
-        AlertMetric.LogLossOverPrior => prior.LogLoss > 0 ? model.LogLoss / prior.LogLoss : double.NaN,
-        _ => double.NaN,
-    };
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(prior);
+        return metric switch
+        {
+            AlertMetric.LogLoss => model.LogLoss,
+            AlertMetric.Brier => model.Current.Brier,
+            AlertMetric.Ece => model.Current.Ece,
+            AlertMetric.CalibrationInTheLarge => model.CalibrationInTheLarge,
+            AlertMetric.CalibrationGap => Math.Abs(model.CalibrationInTheLarge),
+            AlertMetric.LogLossOverPrior => prior.LogLoss > 0 ? model.LogLoss / prior.LogLoss : double.NaN,
+            _ => double.NaN,
+        };
+    }
 }

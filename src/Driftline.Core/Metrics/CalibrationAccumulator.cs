@@ -60,6 +60,12 @@ internal sealed class CalibrationAccumulator
     /// <summary>Number of held predictions with outcome 1.</summary>
     public long Positives => _positives;
 
+    /// <summary>Mean log-loss in O(1), NaN when empty (what <see cref="Snapshot"/> reports, without the bins).</summary>
+    public double MeanLogLoss => _count == 0 ? double.NaN : FixedPoint.ToDouble(_logLoss) / _count;
+
+    /// <summary>Mean p − mean y in O(1), NaN when empty (what <see cref="Snapshot"/> reports, without the bins).</summary>
+    public double CalibrationInTheLarge => _count == 0 ? double.NaN : FixedPoint.ToDouble(_probability - FixedPoint.FromCount(_positives)) / _count;
+
     /// <summary>Adds one prediction (already validated).</summary>
     public void Add(double p, int y) => Apply(p, y, +1);
 

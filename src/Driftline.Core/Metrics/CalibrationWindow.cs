@@ -58,6 +58,12 @@ internal sealed class CalibrationWindow
     /// <summary>Metric values over the predictions held; not ready (NaN values) while the window is empty. O(bins).</summary>
     public CalibrationSnapshot Current => _sums.Snapshot();
 
+    /// <summary>Mean log-loss over the window in O(1) (as <see cref="Current"/>); NaN when empty.</summary>
+    public double LogLoss => _sums.MeanLogLoss;
+
+    /// <summary>Mean p − mean y over the window in O(1) (as <see cref="Current"/>); NaN when empty.</summary>
+    public double CalibrationInTheLarge => _sums.CalibrationInTheLarge;
+
     /// <summary>Adds a graded prediction, evicting the oldest when the window is full.</summary>
     /// <exception cref="ArgumentOutOfRangeException">
     /// <paramref name="p"/> is NaN, infinite or outside [0, 1], or <paramref name="y"/> is not 0 or 1;

@@ -197,7 +197,7 @@ internal sealed class ScoringEngine
         foreach (var (rule, w) in _rules)
         {
             var (_, window, priorWindow) = _windows[w];
-            bool? change = rule.Evaluate(window.Current, priorWindow.Current, out double value);
+            bool? change = rule.Evaluate(window, priorWindow, out double value);
             if (change is bool raised)
             {
                 if (raised)

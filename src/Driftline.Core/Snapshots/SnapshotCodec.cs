@@ -1,5 +1,4 @@
 using System.Text.Json;
-using System.Text.Json.Serialization;
 
 namespace Driftline.Core.Snapshots;
 
@@ -9,13 +8,6 @@ namespace Driftline.Core.Snapshots;
 /// </summary>
 internal static class SnapshotCodec
 {
-    private static readonly JsonSerializerOptions Json = new()
-    {
-        PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower,
-        WriteIndented = false,
-        Converters = { new JsonStringEnumConverter() },
-        NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
-    };
 
     /// <summary>Writes <paramref name="snapshot"/> to <paramref name="stream"/>.</summary>
     public static void Write(EngineSnapshot snapshot, Stream stream)
@@ -23,7 +15,7 @@ internal static class SnapshotCodec
         ArgumentNullException.ThrowIfNull(snapshot);
         snapshot.Format = EngineSnapshot.FormatName;
         snapshot.FormatVersion = EngineSnapshot.CurrentVersion;
-        JsonSerializer.Serialize(stream, snapshot, Json);
+        JsonSerializer.Serialize(stream, snapshot, SnapshotJsonContext.Default.EngineSnapshot);
     }
 
     /// <summary>
@@ -35,7 +27,7 @@ internal static class SnapshotCodec
         EngineSnapshot? snapshot;
         try
         {
-            snapshot = JsonSerializer.Deserialize<EngineSnapshot>(stream, Json);
+            snapshot = JsonSerializer.Deserialize(stream, SnapshotJsonContext.Default.EngineSnapshot);
         }
         catch (JsonException ex)
         {

@@ -1,0 +1,14 @@
+using System.Text.Json.Serialization;
+
+namespace Driftline.Core.Snapshots;
+
+/// <summary>
+/// Compile-time JSON metadata for snapshots: no reflection at run time, so writing the final
+/// model or a checkpoint costs its bytes, not a warm-up of the serializer.
+/// </summary>
+[JsonSourceGenerationOptions(
+    PropertyNamingPolicy = JsonKnownNamingPolicy.SnakeCaseLower,
+    UseStringEnumConverter = true,
+    NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals)]
+[JsonSerializable(typeof(EngineSnapshot))]
+internal sealed partial class SnapshotJsonContext : JsonSerializerContext;
