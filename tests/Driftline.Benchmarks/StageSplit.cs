@@ -5,6 +5,8 @@ using Driftline.Core.Options;
 using Driftline.Core.Scoring;
 using Driftline.Output;
 using Driftline.Pipeline;
+using Driftline.Report;
+using Driftline.Core.Features;
 
 namespace Driftline.Benchmarks;
 
@@ -53,6 +55,27 @@ internal static class StageSplit
                 pipeline.RunAsync(input, outputs, CancellationToken.None).GetAwaiter().GetResult();
             }
             Report("replay pipeline in process (with outputs)", pipeline.Engine.Counters.Events, clock.Elapsed);
+
+            clock.Restart();
+            ReportRecorder? recorder = null;
+            var lane = new ReplayLane(new DriftlineOptions(), sink => recorder = new ReportRecorder(sink, new ReportData("split", new DriftlineOptions())));
+            recorder!.Attach(lane.Engine);
+            var full = new ReplayPipeline([lane]) { Names = new FeatureNames() };
+            using (var outputs = new ReplayOutputs(Path.Combine(Path.GetTempPath(), "driftline-bench", "split")))
+            using (var input = File.OpenRead(file))
+            {
+                full.RunAsync(input, outputs, CancellationToken.None).GetAwaiter().GetResult();
+            }
+            Report("... plus report recording and feature names", full.Engine.Counters.Events, clock.Elapsed);
+
+            clock.Restart();
+            var named = new ReplayPipeline(new DriftlineOptions()) { Names = new FeatureNames() };
+            using (var outputs = new ReplayOutputs(Path.Combine(Path.GetTempPath(), "driftline-bench", "split")))
+            using (var input = File.OpenRead(file))
+            {
+                named.RunAsync(input, outputs, CancellationToken.None).GetAwaiter().GetResult();
+            }
+            Report("... feature names only", named.Engine.Counters.Events, clock.Elapsed);
         }
         return 0;
     }

@@ -6,7 +6,7 @@ namespace Driftline.Core.Events;
 /// </summary>
 internal sealed class ParsedRecord
 {
-    private RawFeature[] _features = new RawFeature[64];
+    private RawFeature[] _features = new RawFeature[16];
 
     /// <summary>What the record asks for.</summary>
     public RecordKind Kind { get; set; }

@@ -1,3 +1,5 @@
+using Driftline.Core.Events;
+
 namespace Driftline.Pipeline;
 
 /// <summary>
@@ -9,6 +11,8 @@ internal sealed class LineBatch
     private byte[] _data = new byte[1 << 20];
     private int[] _starts = new int[8192];
     private int[] _lengths = new int[8192];
+    private ParsedRecord[] _records = [];
+    private string?[] _errors = [];
 
     /// <summary>Lines in the batch.</summary>
     public int Count { get; private set; }
@@ -27,6 +31,34 @@ internal sealed class LineBatch
 
     /// <summary>The bytes of line <paramref name="i"/>, without its line break.</summary>
     public ReadOnlySpan<byte> Line(int i) => _data.AsSpan(_starts[i], _lengths[i]);
+
+    /// <summary>The parsed form of line <paramref name="i"/>, filled by the parse stage (reused from batch to batch).</summary>
+    public ParsedRecord Record(int i) => _records[i];
+
+    /// <summary>Why line <paramref name="i"/> was rejected by the parser, or null when it parsed (or is blank).</summary>
+    public string? Error(int i) => _errors[i];
+
+    /// <summary>True when line <paramref name="i"/> holds nothing but blanks (skipped, but counted for line numbers).</summary>
+    public bool IsBlank(int i) => Line(i).Trim(" \t"u8).IsEmpty;
+
+    /// <summary>Parses every line with <paramref name="parser"/> into the batch's records.</summary>
+    public void Parse(EventParser parser)
+    {
+        if (_records.Length < Count)
+        {
+            int old = _records.Length;
+            Array.Resize(ref _records, Math.Max(Count, _starts.Length));
+            Array.Resize(ref _errors, _records.Length);
+            for (int i = old; i < _records.Length; i++)
+            {
+                _records[i] = new ParsedRecord();
+            }
+        }
+        for (int i = 0; i < Count; i++)
+        {
+            _errors[i] = IsBlank(i) || parser.TryParse(Line(i), _records[i], out var error) ? null : error;
+        }
+    }
 
     /// <summary>True when the batch should be handed on.</summary>
     public bool IsFull => Count >= MaxLines || Bytes >= TargetBytes;

@@ -9,7 +9,7 @@ using Driftline.Output;
 namespace Driftline.Pipeline;
 
 /// <summary>
-/// source → parse + score/learn → write, three stages joined by bounded channels. Batches
+/// source → parse → score/learn → write, four stages joined by bounded channels. Batches
 /// circulate through pools, so memory is fixed whatever the input size, and a slow disk
 /// slows the reader instead of filling memory. A failing stage completes its downstream
 /// channel with the exception, which surfaces from
@@ -23,7 +23,6 @@ internal sealed class ReplayPipeline
 
     private readonly ReplayLane[] _lanes;
     private readonly EventParser _parser = new();
-    private readonly ParsedRecord _record = new();
 
     /// <summary>Creates a pipeline around a fresh engine for <paramref name="options"/>.</summary>
     public ReplayPipeline(DriftlineOptions options)
@@ -87,6 +86,7 @@ internal sealed class ReplayPipeline
             outputPool.Writer.TryWrite([.. _lanes.Select(_ => new OutputBatch())]);
         }
         var lines = Channel.CreateBounded<LineBatch>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
+        var parsed = Channel.CreateBounded<LineBatch>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
         var results = Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
 
         // One stage failing stops the others, and its exception (not their cancellation) surfaces.
@@ -95,7 +95,8 @@ internal sealed class ReplayPipeline
         Task[] stages =
         [
             Stage(() => LineReader.RunAsync(input, linePool.Reader, lines.Writer, token), stop),
-            Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, results.Writer, token), stop),
+            Stage(() => ParseAsync(lines.Reader, parsed.Writer, token), stop),
+            Stage(() => ScoreAsync(parsed.Reader, linePool.Writer, outputPool.Reader, results.Writer, token), stop),
             Stage(() => WriteAsync(results.Reader, outputPool.Writer, outputs, token), stop),
         ];
         try
@@ -122,6 +123,28 @@ internal sealed class ReplayPipeline
             }
         });
 
+    // Parsing is half of the per-event work, so it runs on its own thread, ahead of scoring.
+    private async Task ParseAsync(ChannelReader<LineBatch> input, ChannelWriter<LineBatch> output, CancellationToken cancellation)
+    {
+        try
+        {
+            while (await input.WaitToReadAsync(cancellation).ConfigureAwait(false))
+            {
+                while (input.TryRead(out var batch))
+                {
+                    batch.Parse(_parser);
+                    await output.WriteAsync(batch, cancellation).ConfigureAwait(false);
+                }
+            }
+            output.Complete();
+        }
+        catch (Exception ex)
+        {
+            output.Complete(ex);
+            throw;
+        }
+    }
+
     private async Task ScoreAsync(ChannelReader<LineBatch> input, ChannelWriter<LineBatch> linePool,
         ChannelReader<OutputBatch[]> outputPool, ChannelWriter<OutputBatch[]> output, CancellationToken cancellation)
     {
@@ -139,7 +162,7 @@ internal sealed class ReplayPipeline
                     }
                     for (int i = 0; i < batch.Count; i++)
                     {
-                        ProcessLine(batch.Line(i), batch.FirstLine + i, result);
+                        ProcessLine(batch, i, result);
                     }
                     Lines += batch.Count;
                     BytesRead += batch.Bytes + batch.Count;
@@ -157,25 +180,28 @@ internal sealed class ReplayPipeline
         }
     }
 
-    private void ProcessLine(ReadOnlySpan<byte> line, long lineNumber, OutputBatch[] results)
+    private void ProcessLine(LineBatch batch, int i, OutputBatch[] results)
     {
-        if (line.Trim(" \t"u8).IsEmpty)
-        {
-            return;
-        }
-        if (!_parser.TryParse(line, _record, out string? error))
+        var line = batch.Line(i);
+        long lineNumber = batch.FirstLine + i;
+        if (batch.Error(i) is { } error)
         {
             for (int l = 0; l < _lanes.Length; l++)
             {
-                Reject(_lanes[l], lineNumber, error!, line, results[l]);
+                Reject(_lanes[l], lineNumber, error, line, results[l]);
             }
             return;
         }
+        if (batch.IsBlank(i))
+        {
+            return;
+        }
         // Every lane sees the same parsed record; engines only read it.
+        var record = batch.Record(i);
         for (int l = 0; l < _lanes.Length; l++)
         {
             var lane = _lanes[l];
-            switch (lane.Engine.Process(_record))
+            switch (lane.Engine.Process(record))
             {
                 case StepOutcome.Rejected:
                     Reject(lane, lineNumber, lane.Engine.RejectReason!, line, results[l]);
