@@ -15,6 +15,7 @@ internal static class DriftlineCli
             new CheckCommand(context).Build(),
             new FitCommand(context).Build(),
             new InspectCommand(context).Build(),
+            new MonitorCommand(context).Build(),
         };
         var parsed = root.Parse(args);
         if (parsed.Errors.Count > 0)

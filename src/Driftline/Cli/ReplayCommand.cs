@@ -24,6 +24,9 @@ internal sealed class ReplayCommand(CommandContext context)
     /// <summary>File name of the saved model in the output folder.</summary>
     public const string ModelFile = "model.json";
 
+    /// <summary>Monitor mode (<c>driftline monitor</c>): grade an external model's probabilities; no model is trained or saved.</summary>
+    public bool MonitorOnly { get; init; }
+
     /// <summary>The command-line definition.</summary>
     public Command Build()
     {
@@ -121,6 +124,7 @@ internal sealed class ReplayCommand(CommandContext context)
         ReplayPipeline? pipeline = null;
         pipeline = new ReplayPipeline(lanes)
         {
+            ProbabilitiesOnly = MonitorOnly,
             Names = names,
             AfterBatch = engine => Report(progress, pipeline!, done: false),
         };
@@ -148,10 +152,11 @@ internal sealed class ReplayCommand(CommandContext context)
             var engine = lanes[i].Engine;
             var folder = folders[i];
             SummaryWriter.Write(Path.Combine(folder, "summary.json"), engine, lanes[i].DeadLetters, clock.Elapsed);
-            var snapshot = engine.Snapshot();
-            snapshot.FeatureNames = names.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
-            using (var model = File.Create(Path.Combine(folder, ModelFile)))
+            if (!MonitorOnly)
             {
+                var snapshot = engine.Snapshot();
+                snapshot.FeatureNames = names.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
+                using var model = File.Create(Path.Combine(folder, ModelFile));
                 SnapshotCodec.Write(snapshot, model);
             }
             var recorder = recorders[i];
@@ -187,13 +192,14 @@ internal sealed class ReplayCommand(CommandContext context)
         }
     }
 
-    private static void WriteResult(TextWriter o, ReplayPipeline pipeline, ReplayLane lane, ReplayOutputs outputs, TimeSpan elapsed, string folder)
+    private void WriteResult(TextWriter o, ReplayPipeline pipeline, ReplayLane lane, ReplayOutputs outputs, TimeSpan elapsed, string folder)
     {
         var engine = lane.Engine;
         var c = engine.Counters;
         var total = engine.Totals.Current;
         var prior = engine.PriorTotals.Current;
-        o.WriteLine($"Replayed {pipeline.Lines:N0} lines in {elapsed.TotalSeconds:0.0} s: {c.Events:N0} events scored, {c.Labels:N0} labels ({c.LateLabels:N0} late), {engine.Pending.Expired:N0} expired, {lane.DeadLetters:N0} dead letters.");
+        string what = MonitorOnly ? $"{c.Probabilities:N0} probabilities" : $"{c.Events:N0} events scored";
+        o.WriteLine($"{(MonitorOnly ? "Monitored" : "Replayed")} {pipeline.Lines:N0} lines in {elapsed.TotalSeconds:0.0} s: {what}, {c.Labels:N0} labels ({c.LateLabels:N0} late), {engine.Pending.Expired:N0} expired, {lane.DeadLetters:N0} dead letters.");
         if (total.IsReady)
         {
             o.WriteLine($"Log-loss {total.LogLoss:0.0000} against {prior.LogLoss:0.0000} for the class prior; Brier {total.Brier:0.0000}; ECE {total.Ece:0.0000}.");
@@ -206,7 +212,9 @@ internal sealed class ReplayCommand(CommandContext context)
         {
             o.WriteLine("No alerts.");
         }
-        o.WriteLine($"Outputs in {Path.GetFullPath(folder)}: predictions.jsonl, alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ModelFile}, {ReportWriter.FileName}");
+        o.WriteLine(MonitorOnly
+            ? $"Outputs in {Path.GetFullPath(folder)}: alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ReportWriter.FileName}"
+            : $"Outputs in {Path.GetFullPath(folder)}: predictions.jsonl, alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ModelFile}, {ReportWriter.FileName}");
     }
 
     private EngineSnapshot? ReadModel(string path)

@@ -16,6 +16,7 @@ internal static class SummaryWriter
         var prior = engine.PriorTotals.Current;
         w.WriteStartObject();
         w.WriteNumber("events", c.Events);
+        w.WriteNumber("probabilities", c.Probabilities);
         w.WriteNumber("labels", c.Labels);
         w.WriteNumber("inline_labels", c.InlineLabels);
         w.WriteNumber("late_labels", c.LateLabels);

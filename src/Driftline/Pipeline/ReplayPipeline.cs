@@ -67,6 +67,12 @@ internal sealed class ReplayPipeline
     /// <summary>Called on the scoring thread after each batch (progress reporting); may be null.</summary>
     public Action<ScoringEngine>? AfterBatch { get; init; }
 
+    /// <summary>
+    /// Monitor mode: only external probabilities (<c>{"id","p","label"}</c>) and label-only
+    /// records are taken; an event without <c>p</c> is dead-lettered, and features are ignored.
+    /// </summary>
+    public bool ProbabilitiesOnly { get; init; }
+
     /// <summary>Runs the whole input through the engine into <paramref name="outputs"/>.</summary>
     public Task RunAsync(Stream input, ReplayOutputs outputs, CancellationToken cancellation) => RunAsync(input, [outputs], cancellation);
 
@@ -198,6 +204,18 @@ internal sealed class ReplayPipeline
         }
         // Every lane sees the same parsed record; engines only read it.
         var record = batch.Record(i);
+        if (ProbabilitiesOnly && record.Kind == RecordKind.Event)
+        {
+            if (double.IsNaN(record.Probability))
+            {
+                for (int l = 0; l < _lanes.Length; l++)
+                {
+                    Reject(_lanes[l], lineNumber, "monitor mode needs a probability: give \"p\" (a number between 0 and 1) on the record", line, results[l]);
+                }
+                return;
+            }
+            record.Kind = RecordKind.Probability;
+        }
         for (int l = 0; l < _lanes.Length; l++)
         {
             var lane = _lanes[l];
