@@ -20,4 +20,10 @@ internal enum AlertMetric
 
     /// <summary>The model's log-loss divided by the class-prior baseline's: above 1, the model is worse than no model.</summary>
     LogLossOverPrior,
+
+    /// <summary>
+    /// |Σp − Σy| / √Σp(1 − p): the calibration gap in standard errors of a calibrated model,
+    /// so one threshold means the same at any window size and base rate.
+    /// </summary>
+    CalibrationZ,
 }

@@ -30,6 +30,18 @@ internal sealed class AlertRuleOptions
     /// <summary>Which side is bad. Default <see cref="AlertDirection.Above"/>.</summary>
     public AlertDirection Direction { get; set; } = AlertDirection.Above;
 
+    /// <summary>What the thresholds are measured against. Default <see cref="AlertBaseline.None"/> (absolute).</summary>
+    public AlertBaseline RelativeTo { get; set; } = AlertBaseline.None;
+
+    /// <summary>Labels in the reference period when <see cref="RelativeTo"/> is Reference. Default 0 means the window size.</summary>
+    public int ReferenceLabels { get; set; }
+
+    /// <summary>After a clear, labels that must pass before the rule may raise again (0: none). Default 0.</summary>
+    public int CooldownLabels { get; set; }
+
+    /// <summary>Severity given to the alert. Default <see cref="AlertSeverity.Warning"/>.</summary>
+    public AlertSeverity Severity { get; set; } = AlertSeverity.Warning;
+
     /// <summary>Checks the rule; returns the mistakes found.</summary>
     public IEnumerable<OptionError> Validate(string section)
     {
@@ -44,6 +56,22 @@ internal sealed class AlertRuleOptions
         if (MinLabels < 1 || MinLabels > Window)
         {
             yield return new($"{section}:MinLabels", $"{MinLabels} is not between 1 and Window ({Window})", "Use about half the window");
+        }
+        if (RelativeTo == AlertBaseline.Prior && Metric is not (AlertMetric.LogLoss or AlertMetric.Brier))
+        {
+            yield return new($"{section}:RelativeTo", $"Prior applies to LogLoss and Brier, not {Metric}", "Use RelativeTo None, or the metric LogLossOverPrior");
+        }
+        if (RelativeTo == AlertBaseline.Reference && Metric is not (AlertMetric.LogLoss or AlertMetric.Brier or AlertMetric.Ece))
+        {
+            yield return new($"{section}:RelativeTo", $"Reference applies to LogLoss, Brier and Ece, not {Metric} (its reference value can be near 0)", "Use an absolute threshold for this metric");
+        }
+        if (ReferenceLabels < 0 || (ReferenceLabels > 0 && ReferenceLabels < MinLabels))
+        {
+            yield return new($"{section}:ReferenceLabels", $"{ReferenceLabels} is negative or below MinLabels ({MinLabels})", "Use 0 (the window size) or at least MinLabels");
+        }
+        if (CooldownLabels < 0)
+        {
+            yield return new($"{section}:CooldownLabels", $"{CooldownLabels} is negative", "Use 0 for no cool-down, or a number of labels");
         }
         if (!double.IsFinite(Raise) || !double.IsFinite(Clear))
         {

@@ -10,5 +10,9 @@ namespace Driftline.Core.Alerts;
 /// <param name="EventId">Id of the labelled event whose arrival triggered the change.</param>
 /// <param name="TimeTicks">Event time of that label as UTC ticks, or no time.</param>
 /// <param name="Labels">Labels graded so far in the run.</param>
+/// <param name="Severity">The rule's severity.</param>
+/// <param name="Explanation">What the window looks like when the state changed.</param>
+/// <param name="RelativeTo">What the value is measured against.</param>
 internal sealed record AlertTransition(string Rule, bool Raised, AlertMetric Metric, double Value, double Threshold,
-    int Window, string EventId, long TimeTicks, long Labels);
+    int Window, string EventId, long TimeTicks, long Labels, AlertSeverity Severity = AlertSeverity.Warning,
+    AlertExplanation? Explanation = null, AlertBaseline RelativeTo = AlertBaseline.None);

@@ -49,8 +49,47 @@ internal static class RecordJson
             w.WriteNull("time"u8);
         }
         w.WriteNumber("labels"u8, a.Labels);
+        w.WriteString("severity"u8, a.Severity == AlertSeverity.Critical ? "critical" : "warning");
+        if (a.RelativeTo != AlertBaseline.None)
+        {
+            w.WriteString("relative_to"u8, a.RelativeTo == AlertBaseline.Prior ? "prior" : "reference");
+        }
         w.WriteString("message"u8, Describe(a));
+        if (a.Explanation is { } e)
+        {
+            w.WriteStartObject("window_state"u8);
+            Number(w, "mean_p"u8, e.MeanP);
+            Number(w, "observed_rate"u8, e.ObservedRate);
+            Number(w, "calibration_slope"u8, e.Slope);
+            Number(w, "calibration_intercept"u8, e.Intercept);
+            w.WriteString("direction"u8, e.Direction());
+            w.WriteStartArray("worst_bins"u8);
+            foreach (var b in e.WorstBins)
+            {
+                w.WriteStartObject();
+                w.WriteNumber("lower"u8, b.Lower);
+                w.WriteNumber("upper"u8, b.Upper);
+                w.WriteNumber("count"u8, b.Count);
+                w.WriteNumber("mean_p"u8, b.MeanP);
+                w.WriteNumber("observed_rate"u8, b.MeanY);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+            w.WriteEndObject();
+        }
         w.WriteEndObject();
+    }
+
+    private static void Number(Utf8JsonWriter w, ReadOnlySpan<byte> name, double value)
+    {
+        if (double.IsFinite(value))
+        {
+            w.WriteNumber(name, value);
+        }
+        else
+        {
+            w.WriteNull(name);
+        }
     }
 
     /// <summary>The snake_case name of a measure, as in outputs and configuration docs.</summary>
@@ -62,6 +101,7 @@ internal static class RecordJson
         AlertMetric.CalibrationInTheLarge => "calibration_in_the_large",
         AlertMetric.CalibrationGap => "calibration_gap",
         AlertMetric.LogLossOverPrior => "log_loss_over_prior",
+        AlertMetric.CalibrationZ => "calibration_z",
         _ => metric.ToString(),
     };
 
@@ -76,11 +116,21 @@ internal static class RecordJson
             AlertMetric.Ece => "the expected calibration error",
             AlertMetric.LogLoss => "the log-loss",
             AlertMetric.Brier => "the Brier score",
+            AlertMetric.CalibrationZ => "the calibration gap in standard errors",
             _ => MetricName(a.Metric),
         };
+        string relative = a.RelativeTo switch
+        {
+            AlertBaseline.Prior => " relative to the class prior",
+            AlertBaseline.Reference => " relative to its reference period",
+            _ => "",
+        };
         string over = $"over the last {a.Window:N0} labels";
+        string why = a.Explanation is { } e
+            ? $" Predicted {e.MeanP:0.000} on average, observed {e.ObservedRate:0.000}: {e.Direction()}." + (e.WorstBins.Count > 0 ? $" Furthest off: {e.Bins()}." : "")
+            : "";
         return a.Raised
-            ? $"Raised: {measure} {over} is {a.Value:0.####}, past the raise threshold {a.Threshold:0.####}."
-            : $"Cleared: {measure} {over} is back to {a.Value:0.####}, past the clear threshold {a.Threshold:0.####}.";
+            ? $"Raised: {measure}{relative} {over} is {a.Value:0.####}, past the raise threshold {a.Threshold:0.####}.{why}"
+            : $"Cleared: {measure}{relative} {over} is back to {a.Value:0.####}, past the clear threshold {a.Threshold:0.####}.{why}";
     }
 }

@@ -28,6 +28,7 @@ internal sealed class CalibrationAccumulator
     private Int128 _logLoss;
     private Int128 _squaredError;
     private Int128 _probability;
+    private Int128 _variance;
 
     /// <summary>Creates an empty accumulator over the given bins.</summary>
     public CalibrationAccumulator(BinEdges edges)
@@ -49,6 +50,7 @@ internal sealed class CalibrationAccumulator
         _logLoss = source._logLoss;
         _squaredError = source._squaredError;
         _probability = source._probability;
+        _variance = source._variance;
     }
 
     /// <summary>Bin edges in use.</summary>
@@ -65,6 +67,21 @@ internal sealed class CalibrationAccumulator
 
     /// <summary>Mean p − mean y in O(1), NaN when empty (what <see cref="Snapshot"/> reports, without the bins).</summary>
     public double CalibrationInTheLarge => _count == 0 ? double.NaN : FixedPoint.ToDouble(_probability - FixedPoint.FromCount(_positives)) / _count;
+
+    /// <summary>
+    /// The calibration-in-the-large z-score in O(1): (Σp − Σy) / √Σp(1 − p), the gap in
+    /// standard errors of what a calibrated model would show (the variance of Σy when every
+    /// y ~ Bernoulli(p) independently; common practice, e.g. Spiegelhalter 1986 on testing
+    /// calibration). Positive when over-predicting; NaN when empty or when every p is 0 or 1.
+    /// </summary>
+    public double CalibrationZ
+    {
+        get
+        {
+            double variance = FixedPoint.ToDouble(_variance);
+            return _count == 0 || variance <= 0 ? double.NaN : FixedPoint.ToDouble(_probability - FixedPoint.FromCount(_positives)) / Math.Sqrt(variance);
+        }
+    }
 
     /// <summary>Adds one prediction (already validated).</summary>
     public void Add(double p, int y) => Apply(p, y, +1);
@@ -89,6 +106,7 @@ internal sealed class CalibrationAccumulator
         _logLoss = 0;
         _squaredError = 0;
         _probability = 0;
+        _variance = 0;
     }
 
     /// <summary>An independent copy sharing nothing mutable.</summary>
@@ -153,7 +171,10 @@ internal sealed class CalibrationAccumulator
     /// <summary>The raw sums, for snapshotting; see <see cref="CalibrationTotalsState"/>.</summary>
     public CalibrationTotalsState ToState() => new(
         _edges.Bins, _count, _positives, _logLoss, _squaredError, _probability,
-        (long[])_binCount.Clone(), (long[])_binPositives.Clone(), (Int128[])_binProbability.Clone());
+        (long[])_binCount.Clone(), (long[])_binPositives.Clone(), (Int128[])_binProbability.Clone())
+    {
+        VarianceSum = _variance,
+    };
 
     /// <summary>Rebuilds an accumulator from raw sums after checking they are consistent.</summary>
     /// <exception cref="ArgumentException">The state is inconsistent; the message says how.</exception>
@@ -175,6 +196,7 @@ internal sealed class CalibrationAccumulator
         result._logLoss = state.LogLossSum;
         result._squaredError = state.SquaredErrorSum;
         result._probability = state.ProbabilitySum;
+        result._variance = state.VarianceSum;
         return result;
     }
 
@@ -184,11 +206,13 @@ internal sealed class CalibrationAccumulator
         Int128 rawP = FixedPoint.FromDouble(p);
         Int128 rawLoss = FixedPoint.FromDouble(PredictionScores.LogLoss(p, y));
         Int128 rawSquared = FixedPoint.FromDouble(PredictionScores.SquaredError(p, y));
+        Int128 rawVariance = FixedPoint.FromDouble(p * (1 - p));
         if (sign < 0)
         {
             rawP = -rawP;
             rawLoss = -rawLoss;
             rawSquared = -rawSquared;
+            rawVariance = -rawVariance;
         }
 
         checked
@@ -198,6 +222,7 @@ internal sealed class CalibrationAccumulator
             _logLoss += rawLoss;
             _squaredError += rawSquared;
             _probability += rawP;
+            _variance += rawVariance;
             _binCount[bin] += sign;
             _binPositives[bin] += sign * y;
             _binProbability[bin] += rawP;

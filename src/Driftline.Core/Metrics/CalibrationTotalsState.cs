@@ -29,6 +29,9 @@ internal sealed record CalibrationTotalsState(
     long[] BinPositives,
     Int128[] BinProbabilitySums)
 {
+    /// <summary>Sum of p(1 − p) in units of 2^-64, for the calibration z-score (0 in snapshots that predate it).</summary>
+    public Int128 VarianceSum { get; init; }
+
     /// <summary>
     /// Describes the first way the sums contradict each other, or returns null when they are
     /// consistent (a corrupt or hand-edited snapshot must not be restored silently).

@@ -61,6 +61,9 @@ internal sealed class CalibrationWindow
     /// <summary>Mean log-loss over the window in O(1) (as <see cref="Current"/>); NaN when empty.</summary>
     public double LogLoss => _sums.MeanLogLoss;
 
+    /// <summary>Calibration-in-the-large in standard errors, O(1) (see <see cref="CalibrationAccumulator.CalibrationZ"/>).</summary>
+    public double CalibrationZ => _sums.CalibrationZ;
+
     /// <summary>Mean p − mean y over the window in O(1) (as <see cref="Current"/>); NaN when empty.</summary>
     public double CalibrationInTheLarge => _sums.CalibrationInTheLarge;
 

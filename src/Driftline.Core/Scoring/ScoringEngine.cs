@@ -209,7 +209,8 @@ internal sealed class ScoringEngine
                     Counters.AlertsCleared++;
                 }
                 var o = rule.Options;
-                _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, raised ? o.Raise : o.Clear, o.Window, id, timeTicks, Counters.Labels));
+                _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, raised ? o.Raise : o.Clear, o.Window, id, timeTicks, Counters.Labels,
+                    o.Severity, AlertExplanation.Of(window), o.RelativeTo));
             }
         }
         if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
@@ -250,7 +251,15 @@ internal sealed class ScoringEngine
         Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
         Totals = Totals.ToState(),
         PriorTotals = PriorTotals.ToState(),
-        Rules = _rules.Select(r => new RuleSnapshot { Name = r.Rule.Options.Name, Raised = r.Rule.Raised, RaisedCount = r.Rule.RaisedCount }).ToList(),
+        Rules = _rules.Select(r => new RuleSnapshot
+        {
+            Name = r.Rule.Options.Name,
+            Raised = r.Rule.Raised,
+            RaisedCount = r.Rule.RaisedCount,
+            Reference = r.Rule.Reference,
+            Seen = r.Rule.Seen,
+            ClearedAt = r.Rule.ClearedAt,
+        }).ToList(),
         Counters = Counters.Copy(),
         ClockTicks = _clockTicks,
     };
@@ -333,6 +342,9 @@ internal sealed class ScoringEngine
             {
                 rule.Raised = saved.Raised;
                 rule.RaisedCount = saved.RaisedCount;
+                rule.Reference = saved.Reference;
+                rule.Seen = saved.Seen;
+                rule.ClearedAt = saved.ClearedAt;
             }
         }
         Counters = snapshot.Counters.Copy();

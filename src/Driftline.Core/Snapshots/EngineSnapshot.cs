@@ -136,4 +136,13 @@ internal sealed class RuleSnapshot
 
     /// <summary>Times raised.</summary>
     public long RaisedCount { get; set; }
+
+    /// <summary>Reference value (NaN until captured).</summary>
+    public double Reference { get; set; } = double.NaN;
+
+    /// <summary>Labels the rule has seen.</summary>
+    public long Seen { get; set; }
+
+    /// <summary>When the rule last cleared, in labels seen.</summary>
+    public long ClearedAt { get; set; } = long.MinValue / 2;
 }
