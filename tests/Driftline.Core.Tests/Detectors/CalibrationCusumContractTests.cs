@@ -11,8 +11,8 @@ public sealed class CalibrationCusumContractTests : DetectorContractTests
     // ARL₀ = 10⁶ bounds the expected false alarms in 200,000 labels by 0.2.
     protected override int MaxFalseAlarms => 1;
 
-    // n_min = ln(10⁶)/KL ≈ 13.8 / 0.0142 ≈ 970 labels for this shift and p distribution
-    // (the benchmark computes KL exactly); one seeded run may take about twice that.
+    // n_min = ln(10⁶)/KL = 13.8 / 0.0154 ≈ 900 labels for this shift and p distribution
+    // (KL integrated exactly in tests/Driftline.AlertQuality); one seeded run may take about twice that.
     protected override int MaxDelay => 3_000;
 
     private protected override IChangeDetector Create() => new CalibrationCusumDetector();
