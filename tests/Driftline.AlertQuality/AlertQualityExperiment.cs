@@ -8,6 +8,7 @@ internal static class AlertQualityExperiment
 {
     private const int WarmUp = 2_000;
     private const int Streams = 10;
+    private const double BreakLasts = 3;
 
     /// <summary>Runs and prints the table for <paramref name="claimed"/>.</summary>
     public static void Run(ClaimedProbabilities claimed, BreakScenario[] scenarios, long nullLabels, int replicates, int seed, double arl0)
@@ -53,8 +54,8 @@ internal static class AlertQualityExperiment
         Console.WriteLine(FormattableString.Invariant(
             $"Bound check at ARL0 = {LooseArl0:0e0}: {looseAlarms} alarms in {looseLabels:N0} calibrated labels = {looseAlarms * 1e6 / looseLabels:F0} per million (bound {1e6 / LooseArl0:F0})"));
         Console.WriteLine();
-        Console.WriteLine("| break | KL/label | n_min | mean delay | median | p90 | mean/n_min | median/n_min | mean clear | median clear | warm-up alarms |");
-        Console.WriteLine("| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |");
+        Console.WriteLine("| break | KL/label | n_min | mean delay | median | p90 | mean/n_min | median/n_min | mean clear | median clear | warm-up alarms | clears during break | raised by (share, median clear) |");
+        Console.WriteLine("| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |");
         for (int b = 0; b < scenarios.Length; b++)
         {
             RunBreak(claimed, scenarios[b], replicates, seed + 1_000 + b, arl0);
@@ -73,7 +74,9 @@ internal static class AlertQualityExperiment
         long cap = (long)(50 * nMin);
         var delays = new List<long>(replicates);
         var clears = new List<long>(replicates);
+        var raisedBy = new Dictionary<RecalibrationAlternative, List<long>>();
         int warmUpAlarms = 0;
+        long flaps = 0;
         var random = new Random(seed);
         for (int r = 0; r < replicates; r++)
         {
@@ -100,13 +103,17 @@ internal static class AlertQualityExperiment
             }
 
             delays.Add(delay);
+            RecalibrationAlternative raiser = detector.RaisedBy ?? default;
 
-            // The break lasts n_min more labels, then calibration returns; count labels until it clears.
-            for (int i = 0; i < (int)nMin; i++)
+            // The break lasts 3·n_min more labels (an alarm that clears in that time flaps), then
+            // calibration returns; count labels until it clears.
+            for (int i = 0; i < (int)(BreakLasts * nMin); i++)
             {
                 double p = claimed.Sample(random);
                 detector.Add(p, random.NextDouble() < ClaimedProbabilities.Truth(p, scenario) ? 1 : 0);
             }
+
+            flaps += detector.Clears;
 
             long clear = 0;
             while (detector.IsRaised && clear < cap)
@@ -117,11 +124,19 @@ internal static class AlertQualityExperiment
             }
 
             clears.Add(clear);
+            if (!raisedBy.TryGetValue(raiser, out List<long>? byRaiser))
+            {
+                raisedBy[raiser] = byRaiser = [];
+            }
+
+            byRaiser.Add(clear);
         }
 
         Summary d = Summary.Of(delays);
         Summary c = Summary.Of(clears);
+        string raisers = string.Join("; ", raisedBy.OrderByDescending(pair => pair.Value.Count).Take(3).Select(pair =>
+            FormattableString.Invariant($"{pair.Key.Describe()} {100.0 * pair.Value.Count / delays.Count:F0}% (clear {Summary.Of(pair.Value).Median:F0})")));
         Console.WriteLine(FormattableString.Invariant(
-            $"| {scenario.Name}{(scenario.Required ? "" : " *")} | {kl:F5} | {nMin:F0} | {d.Mean:F0} | {d.Median:F0} | {d.P90:F0} | {d.Mean / nMin:F2} | {d.Median / nMin:F2} | {c.Mean:F0} | {c.Median:F0} | {warmUpAlarms} |"));
+            $"| {scenario.Name}{(scenario.Required ? "" : " *")} | {kl:F5} | {nMin:F0} | {d.Mean:F0} | {d.Median:F0} | {d.P90:F0} | {d.Mean / nMin:F2} | {d.Median / nMin:F2} | {c.Mean:F0} | {c.Median:F0} | {warmUpAlarms} | {flaps} | {raisers} |"));
     }
 }

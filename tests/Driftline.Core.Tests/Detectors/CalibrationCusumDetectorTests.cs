@@ -83,6 +83,8 @@ public sealed class CalibrationCusumDetectorTests
         // Capped at h while raised: a long break does not make clearing wait longer.
         Assert.True(detector.Statistic <= detector.Threshold);
 
+        // Clears once every CUSUM has lost half of h; calibrated labels from here on.
+
         int labels = 0;
         while (detector.IsRaised)
         {
@@ -96,6 +98,25 @@ public sealed class CalibrationCusumDetectorTests
         Assert.Equal(1, detector.Clears);
         Assert.Equal(0, detector.Statistic);
         Assert.Null(detector.RaisedBy);
+    }
+
+    [Fact]
+    public void Add_SustainedBreak_HoldsOneAlarmWithoutFlapping()
+    {
+        // Under a +0.4 break the +1 CUSUM has negative drift (+1 is further from the truth than
+        // calibration is), so an alarm that relied on it alone would clear and re-raise; the
+        // +0.5 CUSUM stays pinned at h and holds the alarm. 30,000 broken labels, one alarm.
+        var detector = new CalibrationCusumDetector(alternatives: [new(1, 1), new(0.5, 1), new(0.25, 1)]);
+        var random = new Random(53);
+        for (int i = 0; i < 30_000; i++)
+        {
+            double p = TestStreams.Probability(random);
+            detector.Add(p, TestStreams.Outcome(random, TestStreams.Recalibrated(p, 0.4, 1)));
+        }
+
+        Assert.Equal(1, detector.Detections);
+        Assert.Equal(0, detector.Clears);
+        Assert.NotEqual(1.0, detector.RaisedBy!.Value.Intercept);
     }
 
     [Fact]
@@ -127,6 +148,7 @@ public sealed class CalibrationCusumDetectorTests
         Assert.Throws<ArgumentOutOfRangeException>(() => new CalibrationCusumDetector(alternatives: [new RecalibrationAlternative(0, 1)]));
         Assert.Throws<ArgumentException>(() => new CalibrationCusumDetector(alternatives: []));
         Assert.Throws<ArgumentOutOfRangeException>(() => new CalibrationCusumDetector(labelsPerFalseAlarm: 1));
+        Assert.Throws<ArgumentOutOfRangeException>(() => new CalibrationCusumDetector(clearFraction: 1));
     }
 
     [Fact]
