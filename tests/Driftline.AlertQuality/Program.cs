@@ -23,3 +23,8 @@ BreakScenario[] scenarios =
 // slope break moves no mean and only the slope CUSUMs can see it.
 AlertQualityExperiment.Run(new ClaimedProbabilities(2, 5), scenarios, nullLabels, replicates, seed, arl0: 1e6);
 AlertQualityExperiment.Run(new ClaimedProbabilities(1, 1), scenarios, nullLabels, replicates, seed + 100, arl0: 1e6);
+
+// For contrast: the loss-stream detectors on the same kind of streams (Beta(2, 5)), the two target breaks.
+Console.WriteLine("## Loss detectors on the per-label log-loss, claimed p ~ Beta(2, 5)");
+Console.WriteLine();
+LossDetectorCheck.Run(new ClaimedProbabilities(2, 5), [.. scenarios.Where(s => s.Required)], labels: 2_000_000, replicates: 100, seed + 200, arl0: 1e6);

@@ -26,10 +26,13 @@ namespace Driftline.Core.Detectors;
 /// alternatives, a discretised generalised likelihood ratio over the recalibration family of Cox
 /// (1958) (for the GLR, Lorden 1971 and Lai 1998, "Information bounds and quick detection of
 /// parameter changes in stochastic systems", IEEE Transactions on Information Theory 44,
-/// 2917–2929). Under calibration each ℓₖ has mean −KL(p‖qₖ), eᔆ is a non-negative martingale
-/// for each restart, and Ville's inequality bounds the chance that one CUSUM ever reaches h
-/// from a restart by e^−h; summed over K CUSUMs, false alarms are at most one per ARL₀ labels
-/// whatever the distribution of p (in practice far fewer, as the bound ignores the downward drift).
+/// 2917–2929). Under calibration each ℓₖ has mean −KL(p‖qₖ) and, from any start, the product of
+/// the likelihood ratios is a non-negative martingale with mean 1, so by Ville's inequality (Ville
+/// 1939, "Étude critique de la notion de collectif", Gauthier-Villars) the
+/// chance that any of the K one-sided tests started at a given label ever reaches h is at most
+/// K·e^−h = 1/ARL₀. The bank stops at the first label where a test started at some earlier label
+/// reaches h, which is Lorden's (1971) construction, so its expected run to a false alarm is at least
+/// ARL₀ labels whatever the distribution of p (in practice far longer, as the bound ignores the downward drift).
 /// </para>
 /// <para>
 /// <b>Default grid.</b> Log-odds shifts ±0.125, ±0.25, ±0.5, ±1 (slope 1) and slopes 2^−1.5,
