@@ -26,4 +26,24 @@ internal enum AlertMetric
     /// so one threshold means the same at any window size and base rate.
     /// </summary>
     CalibrationZ,
+
+    /// <summary>
+    /// The sequential calibration test: CUSUMs over a family of recalibrations (log-odds shifts
+    /// and slopes), raised when any reaches ln(LabelsPerFalseAlarm × alternatives) and cleared
+    /// when all have fallen back (see <see cref="Detectors.CalibrationCusumDetector"/>). The
+    /// value is the largest CUSUM; thresholds come from the detector, not Raise/Clear.
+    /// </summary>
+    CalibrationDrift,
+
+    /// <summary>Page–Hinkley on the per-label log-loss: raised at a detected rise, cleared a window later without one.</summary>
+    LossShift,
+
+    /// <summary>ADWIN on the per-label log-loss: raised at a detected change, cleared a window later without one.</summary>
+    LossChange,
+
+    /// <summary>Hosmer–Lemeshow p-value over the window (10 risk groups), computed every Window/20 labels; use Direction Below.</summary>
+    HosmerLemeshowP,
+
+    /// <summary>Rolling AUC over the window: ranking quality, not calibration; use Direction Below.</summary>
+    Auc,
 }

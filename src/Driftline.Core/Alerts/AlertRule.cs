@@ -1,3 +1,4 @@
+using Driftline.Core.Detectors;
 using Driftline.Core.Metrics;
 
 namespace Driftline.Core.Alerts;
@@ -14,7 +15,30 @@ internal sealed class AlertRule
     {
         ArgumentNullException.ThrowIfNull(options);
         Options = options;
+        switch (options.Metric)
+        {
+            case AlertMetric.CalibrationDrift:
+                Cusum = new CalibrationCusumDetector(options.LabelsPerFalseAlarm);
+                break;
+            case AlertMetric.LossShift:
+                _lossDetector = new PageHinkleyDetector();
+                break;
+            case AlertMetric.LossChange:
+                _lossDetector = new AdwinDetector();
+                break;
+            case AlertMetric.Auc:
+                _auc = new RollingAuc(options.Window);
+                break;
+        }
     }
+
+    private readonly ChangeDetector? _lossDetector;
+    private readonly RollingAuc? _auc;
+    private long _lastSignal = long.MinValue / 2;
+    private double _lastHosmerLemeshow = double.NaN;
+
+    /// <summary>The sequential calibration test of a CalibrationDrift rule, else null.</summary>
+    public CalibrationCusumDetector? Cusum { get; private set; }
 
     /// <summary>The rule's settings.</summary>
     public AlertRuleOptions Options { get; }
@@ -38,17 +62,28 @@ internal sealed class AlertRule
     /// Evaluates the rule on the window's current measures. Returns the new state when it
     /// changes, null otherwise (also while the window has fewer than MinLabels labels).
     /// </summary>
-    public bool? Evaluate(CalibrationWindow model, CalibrationWindow prior, out double value)
+    public bool? Evaluate(CalibrationWindow model, CalibrationWindow prior, double p, int y, out double value)
     {
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(prior);
         value = double.NaN;
         Seen++;
+        _auc?.Add(p, y);
+        if (Options.IsDetector)
+        {
+            // Detectors are sequential: MinLabels is their warm-up in labels, not a window fill.
+            return Seen <= Options.MinLabels ? null : Detect(p, y, out value);
+        }
         if (model.Count < Options.MinLabels)
         {
             return null;
         }
-        value = Measure(Options.Metric, model, prior);
+        value = Options.Metric switch
+        {
+            AlertMetric.Auc => _auc!.Value,
+            AlertMetric.HosmerLemeshowP => HosmerLemeshowP(model),
+            _ => Measure(Options.Metric, model, prior),
+        };
         switch (Options.RelativeTo)
         {
             case AlertBaseline.Prior:
@@ -86,6 +121,65 @@ internal sealed class AlertRule
             return false;
         }
         return null;
+    }
+
+    // The detectors start after MinLabels labels (the warm-up), so a model still learning its
+    // first weights does not count as a break.
+    private bool? Detect(double p, int y, out double value)
+    {
+        if (Cusum is { } cusum)
+        {
+            bool was = cusum.IsRaised;
+            cusum.Add(p, y);
+            value = cusum.Statistic;
+            if (cusum.IsRaised == was)
+            {
+                return null;
+            }
+            if (cusum.IsRaised)
+            {
+                Raised = true;
+                RaisedCount++;
+                return true;
+            }
+            Raised = false;
+            ClearedAt = Seen;
+            return false;
+        }
+        var detector = _lossDetector!;
+        var state = detector.Add(PredictionScores.LogLoss(p, y));
+        value = state == DetectorState.Drift ? 1 : 0;
+        if (state == DetectorState.Drift)
+        {
+            _lastSignal = Seen;
+            if (!Raised && Seen - ClearedAt > Options.CooldownLabels)
+            {
+                Raised = true;
+                RaisedCount++;
+                return true;
+            }
+            return null;
+        }
+        if (Raised && Seen - _lastSignal >= Options.Window)
+        {
+            Raised = false;
+            ClearedAt = Seen;
+            return false;
+        }
+        return null;
+    }
+
+    // Sorting a window per label would dominate the step, so the p-value is refreshed every
+    // Window/20 labels and held in between.
+    private double HosmerLemeshowP(CalibrationWindow window)
+    {
+        int every = Math.Max(1, Options.Window / 20);
+        if (double.IsNaN(_lastHosmerLemeshow) || Seen % every == 0)
+        {
+            var result = HosmerLemeshow.Compute(window.ToArray());
+            _lastHosmerLemeshow = result.IsReady ? result.PValue : double.NaN;
+        }
+        return _lastHosmerLemeshow;
     }
 
     /// <summary>

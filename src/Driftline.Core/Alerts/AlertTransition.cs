@@ -13,6 +13,7 @@ namespace Driftline.Core.Alerts;
 /// <param name="Severity">The rule's severity.</param>
 /// <param name="Explanation">What the window looks like when the state changed.</param>
 /// <param name="RelativeTo">What the value is measured against.</param>
+/// <param name="Break">For the sequential calibration test: the recalibration that best explains the labels, in words.</param>
 internal sealed record AlertTransition(string Rule, bool Raised, AlertMetric Metric, double Value, double Threshold,
     int Window, string EventId, long TimeTicks, long Labels, AlertSeverity Severity = AlertSeverity.Warning,
-    AlertExplanation? Explanation = null, AlertBaseline RelativeTo = AlertBaseline.None);
+    AlertExplanation? Explanation = null, AlertBaseline RelativeTo = AlertBaseline.None, string? Break = null);

@@ -255,6 +255,26 @@ internal sealed class CalibrationCusumDetector : IChangeDetector
     /// <summary>An independent copy that continues exactly as the original would.</summary>
     public CalibrationCusumDetector Copy() => new(this);
 
+    /// <summary>The detector's state for a snapshot: the K CUSUMs and the index of the raising alternative (−1 when not raised).</summary>
+    public (double[] Statistics, int Raised, long Count, long Detections, long Clears, DetectorState State) Export() =>
+        ((double[])_statistics.Clone(), _raised, Count, Detections, Clears, State);
+
+    /// <summary>Continues from a state produced by <see cref="Export"/> on a detector with the same alternatives.</summary>
+    /// <exception cref="ArgumentException">The number of statistics does not match the alternatives.</exception>
+    public void Import(ReadOnlySpan<double> statistics, int raised, long count, long detections, long clears, DetectorState state)
+    {
+        if (statistics.Length != _statistics.Length || raised < -1 || raised >= _statistics.Length)
+        {
+            throw new ArgumentException($"a snapshot of {statistics.Length} CUSUMs does not fit a detector with {_statistics.Length} alternatives", nameof(statistics));
+        }
+        statistics.CopyTo(_statistics);
+        _raised = raised;
+        Count = count;
+        Detections = detections;
+        Clears = clears;
+        State = state;
+    }
+
     /// <inheritdoc/>
     IChangeDetector IChangeDetector.Copy() => Copy();
 

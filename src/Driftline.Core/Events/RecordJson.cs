@@ -54,6 +54,10 @@ internal static class RecordJson
         {
             w.WriteString("relative_to"u8, a.RelativeTo == AlertBaseline.Prior ? "prior" : "reference");
         }
+        if (a.Break is not null)
+        {
+            w.WriteString("break"u8, a.Break);
+        }
         w.WriteString("message"u8, Describe(a));
         if (a.Explanation is { } e)
         {
@@ -102,6 +106,11 @@ internal static class RecordJson
         AlertMetric.CalibrationGap => "calibration_gap",
         AlertMetric.LogLossOverPrior => "log_loss_over_prior",
         AlertMetric.CalibrationZ => "calibration_z",
+        AlertMetric.CalibrationDrift => "calibration_drift",
+        AlertMetric.LossShift => "loss_shift",
+        AlertMetric.LossChange => "loss_change",
+        AlertMetric.HosmerLemeshowP => "hosmer_lemeshow_p",
+        AlertMetric.Auc => "auc",
         _ => metric.ToString(),
     };
 
@@ -117,6 +126,11 @@ internal static class RecordJson
             AlertMetric.LogLoss => "the log-loss",
             AlertMetric.Brier => "the Brier score",
             AlertMetric.CalibrationZ => "the calibration gap in standard errors",
+            AlertMetric.CalibrationDrift => "the evidence of a calibration break (log-likelihood ratio)",
+            AlertMetric.LossShift => "the Page–Hinkley test on the log-loss",
+            AlertMetric.LossChange => "the ADWIN test on the log-loss",
+            AlertMetric.HosmerLemeshowP => "the Hosmer–Lemeshow p-value",
+            AlertMetric.Auc => "the AUC",
             _ => MetricName(a.Metric),
         };
         string relative = a.RelativeTo switch
@@ -125,12 +139,15 @@ internal static class RecordJson
             AlertBaseline.Reference => " relative to its reference period",
             _ => "",
         };
-        string over = $"over the last {a.Window:N0} labels";
+        string over = a.Metric is AlertMetric.CalibrationDrift or AlertMetric.LossShift or AlertMetric.LossChange
+            ? "since the last reset"
+            : $"over the last {a.Window:N0} labels";
+        string brk = a.Break is null ? "" : $" Best explanation: {a.Break}.";
         string why = a.Explanation is { } e
             ? $" Predicted {e.MeanP:0.000} on average, observed {e.ObservedRate:0.000}: {e.Direction()}." + (e.WorstBins.Count > 0 ? $" Furthest off: {e.Bins()}." : "")
             : "";
         return a.Raised
-            ? $"Raised: {measure}{relative} {over} is {a.Value:0.####}, past the raise threshold {a.Threshold:0.####}.{why}"
+            ? $"Raised: {measure}{relative} {over} is {a.Value:0.####}, past the raise threshold {a.Threshold:0.####}.{brk}{why}"
             : $"Cleared: {measure}{relative} {over} is back to {a.Value:0.####}, past the clear threshold {a.Threshold:0.####}.{why}";
     }
 }

@@ -197,7 +197,7 @@ internal sealed class ScoringEngine
         foreach (var (rule, w) in _rules)
         {
             var (_, window, priorWindow) = _windows[w];
-            bool? change = rule.Evaluate(window, priorWindow, out double value);
+            bool? change = rule.Evaluate(window, priorWindow, p, y, out double value);
             if (change is bool raised)
             {
                 if (raised)
@@ -209,8 +209,9 @@ internal sealed class ScoringEngine
                     Counters.AlertsCleared++;
                 }
                 var o = rule.Options;
-                _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, raised ? o.Raise : o.Clear, o.Window, id, timeTicks, Counters.Labels,
-                    o.Severity, AlertExplanation.Of(window), o.RelativeTo));
+                double threshold = rule.Cusum is { } cusum ? (raised ? cusum.Threshold : cusum.ClearFraction * cusum.Threshold) : raised ? o.Raise : o.Clear;
+                _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, threshold, o.Window, id, timeTicks, Counters.Labels,
+                    o.Severity, AlertExplanation.Of(window), o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null));
             }
         }
         if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
@@ -251,15 +252,7 @@ internal sealed class ScoringEngine
         Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
         Totals = Totals.ToState(),
         PriorTotals = PriorTotals.ToState(),
-        Rules = _rules.Select(r => new RuleSnapshot
-        {
-            Name = r.Rule.Options.Name,
-            Raised = r.Rule.Raised,
-            RaisedCount = r.Rule.RaisedCount,
-            Reference = r.Rule.Reference,
-            Seen = r.Rule.Seen,
-            ClearedAt = r.Rule.ClearedAt,
-        }).ToList(),
+        Rules = _rules.Select(r => SnapshotRule(r.Rule)).ToList(),
         Counters = Counters.Copy(),
         ClockTicks = _clockTicks,
     };
@@ -345,10 +338,40 @@ internal sealed class ScoringEngine
                 rule.Reference = saved.Reference;
                 rule.Seen = saved.Seen;
                 rule.ClearedAt = saved.ClearedAt;
+                if (rule.Cusum is { } cusum && saved.Cusums is { } statistics)
+                {
+                    cusum.Import(statistics, saved.CusumRaised, saved.CusumCount, saved.CusumDetections, saved.CusumClears, saved.CusumState);
+                }
             }
         }
         Counters = snapshot.Counters.Copy();
         _clockTicks = snapshot.ClockTicks;
+    }
+
+    // Page–Hinkley, ADWIN and the AUC tree restart empty after a restore (documented); the
+    // calibration test, which decides the default critical alert, continues exactly.
+    private static RuleSnapshot SnapshotRule(AlertRule rule)
+    {
+        var saved = new RuleSnapshot
+        {
+            Name = rule.Options.Name,
+            Raised = rule.Raised,
+            RaisedCount = rule.RaisedCount,
+            Reference = rule.Reference,
+            Seen = rule.Seen,
+            ClearedAt = rule.ClearedAt,
+        };
+        if (rule.Cusum is { } cusum)
+        {
+            var state = cusum.Export();
+            saved.Cusums = state.Statistics;
+            saved.CusumRaised = state.Raised;
+            saved.CusumCount = state.Count;
+            saved.CusumDetections = state.Detections;
+            saved.CusumClears = state.Clears;
+            saved.CusumState = state.State;
+        }
+        return saved;
     }
 
     private int ModelFor(string key)

@@ -145,4 +145,22 @@ internal sealed class RuleSnapshot
 
     /// <summary>When the rule last cleared, in labels seen.</summary>
     public long ClearedAt { get; set; } = long.MinValue / 2;
+
+    /// <summary>The sequential calibration test's CUSUMs (CalibrationDrift rules), else null.</summary>
+    public double[]? Cusums { get; set; }
+
+    /// <summary>Index of the alternative that raised the test, −1 when not raised.</summary>
+    public int CusumRaised { get; set; } = -1;
+
+    /// <summary>Labels the test has read.</summary>
+    public long CusumCount { get; set; }
+
+    /// <summary>Alarms the test has raised.</summary>
+    public long CusumDetections { get; set; }
+
+    /// <summary>Alarms the test has cleared.</summary>
+    public long CusumClears { get; set; }
+
+    /// <summary>The test's state.</summary>
+    public Detectors.DetectorState CusumState { get; set; }
 }

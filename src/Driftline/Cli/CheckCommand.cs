@@ -53,8 +53,21 @@ internal sealed class CheckCommand(CommandContext context)
         o.WriteLine(rules.Count == 0 ? "Alerts: none." : $"Alerts{(options.Alerts is null ? " (defaults)" : "")}:");
         foreach (var r in rules)
         {
+            string severity = r.Severity == Core.Alerts.AlertSeverity.Critical ? "critical" : "warning";
+            if (r.Metric == Core.Alerts.AlertMetric.CalibrationDrift)
+            {
+                o.WriteLine($"  {r.Name} ({severity}): sequential calibration test, at most one false alarm per {r.LabelsPerFalseAlarm:N0} labels on a calibrated stream; starts after {r.MinLabels:N0} labels.");
+                continue;
+            }
+            if (r.IsDetector)
+            {
+                o.WriteLine($"  {r.Name} ({severity}): {RecordJson.MetricName(r.Metric)} change detector on the per-label log-loss, cleared {r.Window:N0} labels after its last signal; starts after {r.MinLabels:N0} labels.");
+                continue;
+            }
             string side = r.Direction == Core.Alerts.AlertDirection.Above ? "rises to" : "falls to";
-            o.WriteLine($"  {r.Name}: raise when {RecordJson.MetricName(r.Metric)} over the last {r.Window:N0} labels {side} {r.Raise}, clear at {r.Clear}; needs {r.MinLabels:N0} labels first.");
+            string relative = r.RelativeTo == Core.Alerts.AlertBaseline.None ? "" : $" (relative to the {(r.RelativeTo == Core.Alerts.AlertBaseline.Prior ? "class prior" : "reference period")})";
+            string cooldown = r.CooldownLabels > 0 ? $", then waits {r.CooldownLabels:N0} labels before raising again" : "";
+            o.WriteLine($"  {r.Name} ({severity}): raise when {RecordJson.MetricName(r.Metric)}{relative} over the last {r.Window:N0} labels {side} {r.Raise}, clear at {r.Clear}{cooldown}; needs {r.MinLabels:N0} labels first.");
         }
     }
 }

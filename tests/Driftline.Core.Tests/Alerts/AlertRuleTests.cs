@@ -20,7 +20,7 @@ public sealed class AlertRuleTests
             int y = i is >= 200 and < 300 ? 1 : i % 2;
             model.Add(0.5, y);
             prior.Add(0.5, y);
-            if (rule.Evaluate(model, prior, out _) is bool change)
+            if (rule.Evaluate(model, prior, 0.5, y, out _) is bool change)
             {
                 changes.Add(change);
             }
@@ -41,7 +41,7 @@ public sealed class AlertRuleTests
             int y = (i / 20) % 2 == 0 ? 1 : i % 2;
             model.Add(0.5, y);
             prior.Add(0.5, y);
-            if (rule.Evaluate(model, prior, out _) == true)
+            if (rule.Evaluate(model, prior, 0.5, y, out _) == true)
             {
                 raises++;
             }
@@ -56,7 +56,7 @@ public sealed class AlertRuleTests
             int y = (i / 20) % 2 == 0 ? 1 : i % 2;
             m2.Add(0.5, y);
             p2.Add(0.5, y);
-            eagerRaises += eager.Evaluate(m2, p2, out _) == true ? 1 : 0;
+            eagerRaises += eager.Evaluate(m2, p2, 0.5, y, out _) == true ? 1 : 0;
         }
         Assert.True(eagerRaises > 5, $"{eagerRaises}");
     }
@@ -72,7 +72,7 @@ public sealed class AlertRuleTests
         {
             model.Add(0.8, 1);
             prior.Add(0.5, 1);
-            change = rule.Evaluate(model, prior, out last);
+            change = rule.Evaluate(model, prior, 0.8, 1, out last);
         }
         Assert.Null(change);
         Assert.Equal(-Math.Log(0.8), rule.Reference, 12);
@@ -81,7 +81,7 @@ public sealed class AlertRuleTests
         {
             model.Add(0.8, 0);
             prior.Add(0.5, 0);
-            change = rule.Evaluate(model, prior, out last);
+            change = rule.Evaluate(model, prior, 0.8, 0, out last);
         }
         Assert.True(change);
         Assert.True(last >= 1.5);
@@ -143,5 +143,49 @@ public sealed class AlertRuleTests
     {
         var o = new AlertRuleOptions { Name = "x", Metric = Enum.Parse<AlertMetric>(metric), RelativeTo = Enum.Parse<AlertBaseline>(baseline), Raise = 2, Clear = 1 };
         Assert.Contains(o.Validate("Alerts:0"), e => e.Option == $"Alerts:0:{option}");
+    }
+
+    [Fact]
+    public void Evaluate_CalibrationDrift_QuietWhileCalibratedThenRaisedAfterAShift()
+    {
+        // Labels drawn from the claimed p, then from p shifted by +0.8 in log-odds.
+        var rule = new AlertRule(new AlertRuleOptions { Name = "drift", Metric = AlertMetric.CalibrationDrift, Window = 500, MinLabels = 100 });
+        var (model, prior) = Windows(500);
+        var random = new Random(8);
+        long raisedAt = -1;
+        for (int i = 0; i < 40_000 && raisedAt < 0; i++)
+        {
+            double p = 0.1 + 0.8 * random.NextDouble();
+            double q = i < 30_000 ? p : 1 / (1 + Math.Exp(-(Math.Log(p / (1 - p)) + 0.8)));
+            int y = random.NextDouble() < q ? 1 : 0;
+            model.Add(p, y);
+            prior.Add(0.5, y);
+            if (rule.Evaluate(model, prior, p, y, out _) == true)
+            {
+                raisedAt = i;
+            }
+        }
+        Assert.InRange(raisedAt, 30_000, 31_000);
+        Assert.StartsWith("log-odds +", rule.Cusum!.RaisedBy!.Value.Describe(), StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Evaluate_HosmerLemeshowBelowThreshold_RaisesOnAMiscalibratedWindow()
+    {
+        var rule = new AlertRule(new AlertRuleOptions { Name = "hl", Metric = AlertMetric.HosmerLemeshowP, Window = 1_000, MinLabels = 1_000, Raise = 0.001, Clear = 0.05, Direction = AlertDirection.Below });
+        var (model, prior) = Windows(1_000);
+        var random = new Random(9);
+        bool? first = null;
+        for (int i = 0; i < 3_000 && first is null; i++)
+        {
+            double p = 0.05 + 0.9 * random.NextDouble();
+            double q = i < 1_500 ? p : 1 / (1 + Math.Exp(-0.4 * Math.Log(p / (1 - p))));
+            int y = random.NextDouble() < q ? 1 : 0;
+            model.Add(p, y);
+            prior.Add(0.5, y);
+            first = rule.Evaluate(model, prior, p, y, out _);
+            Assert.True(first != true || i >= 1_500, $"raised at {i} before the break");
+        }
+        Assert.True(first);
     }
 }

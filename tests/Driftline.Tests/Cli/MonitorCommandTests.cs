@@ -59,10 +59,17 @@ public sealed class MonitorCommandTests
         Assert.Equal(2, summary.GetProperty("dead_letters").GetInt64());
 
         var alerts = File.ReadAllLines(dir.File("out/alerts.jsonl")).Select(l => JsonDocument.Parse(l).RootElement).ToList();
-        var first = alerts.First(a => a.GetProperty("state").GetString() == "raised");
-        // Nothing before the break; raised within 1,000 labels after it.
-        Assert.InRange(first.GetProperty("labels").GetInt64(), 20_000, 21_000);
-        Assert.Equal("calibration-gap", first.GetProperty("rule").GetString());
+        // Nothing before the break; both calibration rules raised within 1,000 labels after it,
+        // and the sequential test names the break's direction.
+        Assert.All(alerts, a => Assert.True(a.GetProperty("labels").GetInt64() >= 20_000));
+        foreach (var rule in new[] { "calibration-gap", "calibration-drift" })
+        {
+            var raised = alerts.First(a => a.GetProperty("rule").GetString() == rule && a.GetProperty("state").GetString() == "raised");
+            Assert.InRange(raised.GetProperty("labels").GetInt64(), 20_000, 21_000);
+        }
+        var drift = alerts.First(a => a.GetProperty("rule").GetString() == "calibration-drift");
+        Assert.Equal("critical", drift.GetProperty("severity").GetString());
+        Assert.Contains("under-predicting", drift.GetProperty("break").GetString(), StringComparison.Ordinal);
 
         var dead = File.ReadAllText(dir.File("out/dead-letters.jsonl"));
         Assert.Contains("p must be a finite number between 0 and 1", dead, StringComparison.Ordinal);
