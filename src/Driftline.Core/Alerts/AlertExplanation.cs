@@ -17,7 +17,7 @@ internal sealed record AlertExplanation(double MeanP, double ObservedRate, doubl
     public const double Tolerance = 0.01;
 
     /// <summary>Builds the explanation from a window's current contents (O(window): used only when an alert changes state).</summary>
-    public static AlertExplanation Of(CalibrationWindow window)
+    public static AlertExplanation Of(IGradedWindow window)
     {
         ArgumentNullException.ThrowIfNull(window);
         var snapshot = window.Current;
@@ -27,7 +27,7 @@ internal sealed record AlertExplanation(double MeanP, double ObservedRate, doubl
             .OrderByDescending(b => b.Count * Math.Abs(b.MeanP - b.MeanY))
             .Take(3)
             .ToArray();
-        var fit = CalibrationSlope.Fit(window);
+        var fit = CalibrationSlope.Fit(window.Contents());
         return new AlertExplanation(snapshot.MeanP, snapshot.MeanY, fit.IsReady ? fit.Slope : double.NaN, fit.IsReady ? fit.Intercept : double.NaN, worst);
     }
 

@@ -62,7 +62,7 @@ internal sealed class AlertRule
     /// Evaluates the rule on the window's current measures. Returns the new state when it
     /// changes, null otherwise (also while the window has fewer than MinLabels labels).
     /// </summary>
-    public bool? Evaluate(CalibrationWindow model, CalibrationWindow prior, double p, int y, out double value)
+    public bool? Evaluate(IGradedWindow model, IGradedWindow prior, double p, int y, out double value)
     {
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(prior);
@@ -171,12 +171,12 @@ internal sealed class AlertRule
 
     // Sorting a window per label would dominate the step, so the p-value is refreshed every
     // Window/20 labels and held in between.
-    private double HosmerLemeshowP(CalibrationWindow window)
+    private double HosmerLemeshowP(IGradedWindow window)
     {
         int every = Math.Max(1, Options.Window / 20);
         if (double.IsNaN(_lastHosmerLemeshow) || Seen % every == 0)
         {
-            var result = HosmerLemeshow.Compute(window.ToArray());
+            var result = HosmerLemeshow.Compute(window.Contents());
             _lastHosmerLemeshow = result.IsReady ? result.PValue : double.NaN;
         }
         return _lastHosmerLemeshow;
@@ -186,7 +186,7 @@ internal sealed class AlertRule
     /// The value of <paramref name="metric"/> on a window (NaN when it is undefined). Runs after
     /// every label, so the O(1) measures are read directly rather than through a full snapshot.
     /// </summary>
-    public static double Measure(AlertMetric metric, CalibrationWindow model, CalibrationWindow prior)
+    public static double Measure(AlertMetric metric, IGradedWindow model, IGradedWindow prior)
     {
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(prior);

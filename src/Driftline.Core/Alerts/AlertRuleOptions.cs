@@ -18,6 +18,13 @@ internal sealed class AlertRuleOptions
     /// <summary>Labels in the window the measure is computed over. Default 2,000.</summary>
     public int Window { get; set; } = 2_000;
 
+    /// <summary>
+    /// When set, the rule reads a time window: the labels of the last <c>WindowTime</c> of
+    /// event time (at most <see cref="Window"/> of them), e.g. "01:00:00" for the last hour.
+    /// Labels without an event time do not enter it. Default null: a count window.
+    /// </summary>
+    public TimeSpan? WindowTime { get; set; }
+
     /// <summary>No decision before the window holds this many labels (for detector measures: before this many labels have been seen, the warm-up). Default 1,000.</summary>
     public int MinLabels { get; set; } = 1_000;
 
@@ -65,6 +72,10 @@ internal sealed class AlertRuleOptions
         if (MinLabels < 1 || (MinLabels > Window && !IsDetector))
         {
             yield return new($"{section}:MinLabels", $"{MinLabels} is not between 1 and Window ({Window})", "Use about half the window");
+        }
+        if (WindowTime is { } span && span <= TimeSpan.Zero)
+        {
+            yield return new($"{section}:WindowTime", $"{span} is not a positive duration", "Write it as hours:minutes:seconds, e.g. \"01:00:00\", or leave it out for a count window");
         }
         if (RelativeTo == AlertBaseline.Prior && Metric is not (AlertMetric.LogLoss or AlertMetric.Brier))
         {

@@ -17,7 +17,7 @@ namespace Driftline.Core.Metrics;
 /// default 10. Not thread-safe: one writer, as for every per-model state.
 /// </para>
 /// </remarks>
-internal sealed class CalibrationWindow
+internal sealed class CalibrationWindow : IGradedWindow
 {
     private readonly GradedPrediction[] _ring;
     private readonly CalibrationAccumulator _sums;
@@ -60,6 +60,9 @@ internal sealed class CalibrationWindow
 
     /// <summary>Mean log-loss over the window in O(1) (as <see cref="Current"/>); NaN when empty.</summary>
     public double LogLoss => _sums.MeanLogLoss;
+
+    /// <inheritdoc />
+    public GradedPrediction[] Contents() => ToArray();
 
     /// <summary>Calibration-in-the-large in standard errors, O(1) (see <see cref="CalibrationAccumulator.CalibrationZ"/>).</summary>
     public double CalibrationZ => _sums.CalibrationZ;

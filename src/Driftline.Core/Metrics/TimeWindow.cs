@@ -23,7 +23,7 @@ namespace Driftline.Core.Metrics;
 /// equal-width and left-closed, default 10. Not thread-safe.
 /// </para>
 /// </remarks>
-internal sealed class TimeWindow
+internal sealed class TimeWindow : IGradedWindow
 {
     private readonly PriorityQueue<GradedPrediction, Stamp> _held;
     private readonly CalibrationAccumulator _sums;
@@ -75,6 +75,21 @@ internal sealed class TimeWindow
 
     /// <summary>Metric values over the predictions held; not ready (NaN values) while the window is empty. O(bins).</summary>
     public CalibrationSnapshot Current => _sums.Snapshot();
+
+    /// <inheritdoc />
+    public int Capacity => MaxCount;
+
+    /// <inheritdoc />
+    public double LogLoss => _sums.MeanLogLoss;
+
+    /// <inheritdoc />
+    public double CalibrationInTheLarge => _sums.CalibrationInTheLarge;
+
+    /// <inheritdoc />
+    public double CalibrationZ => _sums.CalibrationZ;
+
+    /// <inheritdoc />
+    public GradedPrediction[] Contents() => ToArray().Select(t => new GradedPrediction(t.P, t.Y)).ToArray();
 
     /// <summary>
     /// Adds a graded prediction with its event time, then evicts whatever the window no longer

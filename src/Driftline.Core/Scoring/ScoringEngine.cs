@@ -33,6 +33,8 @@ internal sealed class ScoringEngine
     private readonly (int Size, CalibrationWindow Model, CalibrationWindow Prior)[] _windows;
     private readonly int _reportWindow;
     private readonly (AlertRule Rule, int Window)[] _rules;
+    private readonly (TimeSpan Span, TimeWindow Model, TimeWindow Prior)[] _timeWindows;
+    private readonly int[] _ruleTimeWindow;
     private long _clockTicks = ParsedRecord.NoTime;
 
     /// <summary>Creates an engine with no models yet; options must have been validated.</summary>
@@ -45,7 +47,11 @@ internal sealed class ScoringEngine
         _sink = sink;
         Pending = new PendingLabelStore(options.Labels.MaxPending, options.Labels.MaxAge);
         var rules = options.EffectiveAlerts;
-        var sizes = rules.Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
+        var sizes = rules.Where(r => r.WindowTime is null).Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
+        // A time window holds the last T of event time, at most the rule's Window labels.
+        var spans = rules.Where(r => r.WindowTime is not null).Select(r => (Span: r.WindowTime!.Value, Max: r.Window)).Distinct().ToArray();
+        _timeWindows = spans.Select(t => (t.Span, new TimeWindow(t.Span, t.Max, options.Monitor.Bins), new TimeWindow(t.Span, t.Max, options.Monitor.Bins))).ToArray();
+        _ruleTimeWindow = rules.Select(r => r.WindowTime is null ? -1 : Array.IndexOf(spans, (r.WindowTime.Value, r.Window))).ToArray();
         int bins = options.Monitor.Bins;
         _windows = sizes.Select(s => (s, new CalibrationWindow(s, bins), new CalibrationWindow(s, bins))).ToArray();
         _reportWindow = Array.IndexOf(sizes, options.Monitor.Window);
@@ -194,9 +200,21 @@ internal sealed class ScoringEngine
             window.Add(p, y);
             priorWindow.Add(priorP, y);
         }
-        foreach (var (rule, w) in _rules)
+        if (timeTicks != ParsedRecord.NoTime)
         {
-            var (_, window, priorWindow) = _windows[w];
+            var at = new DateTimeOffset(timeTicks, TimeSpan.Zero);
+            foreach (var (_, window, priorWindow) in _timeWindows)
+            {
+                window.Add(at, p, y);
+                priorWindow.Add(at, priorP, y);
+            }
+        }
+        for (int r = 0; r < _rules.Length; r++)
+        {
+            var (rule, w) = _rules[r];
+            int t = _ruleTimeWindow[r];
+            IGradedWindow window = t >= 0 ? _timeWindows[t].Model : _windows[w].Model;
+            IGradedWindow priorWindow = t >= 0 ? _timeWindows[t].Prior : _windows[w].Prior;
             bool? change = rule.Evaluate(window, priorWindow, p, y, out double value);
             if (change is bool raised)
             {
@@ -250,6 +268,15 @@ internal sealed class ScoringEngine
         }).ToList(),
         ExpiredLabels = Pending.Expired,
         Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
+        TimeWindows = _timeWindows.Select(w => new TimeWindowSnapshot
+        {
+            Span = w.Span,
+            MaxCount = w.Model.MaxCount,
+            ModelLatest = w.Model.Latest,
+            PriorLatest = w.Prior.Latest,
+            Model = w.Model.ToArray(),
+            Prior = w.Prior.ToArray(),
+        }).ToList(),
         Totals = Totals.ToState(),
         PriorTotals = PriorTotals.ToState(),
         Rules = _rules.Select(r => SnapshotRule(r.Rule)).ToList(),
@@ -318,6 +345,16 @@ internal sealed class ScoringEngine
             if (saved is not null)
             {
                 _windows[i] = (saved.Size, CalibrationWindow.Restore(saved.Size, bins, saved.Model), CalibrationWindow.Restore(saved.Size, bins, saved.Prior));
+            }
+        }
+        for (int i = 0; i < _timeWindows.Length; i++)
+        {
+            var (span, model, _) = _timeWindows[i];
+            var saved = snapshot.TimeWindows.FirstOrDefault(w => w.Span == span && w.MaxCount == model.MaxCount);
+            if (saved is not null)
+            {
+                _timeWindows[i] = (span, TimeWindow.Restore(span, saved.MaxCount, bins, saved.ModelLatest, saved.Model),
+                    TimeWindow.Restore(span, saved.MaxCount, bins, saved.PriorLatest, saved.Prior));
             }
         }
         if (snapshot.Totals is not null)

@@ -34,6 +34,9 @@ internal sealed class EngineSnapshot
     /// <summary>Window contents per window size: the model's and the baseline's graded predictions, oldest first.</summary>
     public List<WindowSnapshot> Windows { get; set; } = [];
 
+    /// <summary>Time windows per span: the model's and the baseline's timed predictions.</summary>
+    public List<TimeWindowSnapshot> TimeWindows { get; set; } = [];
+
     /// <summary>Whole-run totals of the model.</summary>
     public CalibrationTotalsState? Totals { get; set; }
 
@@ -123,6 +126,28 @@ internal sealed class WindowSnapshot
 
     /// <summary>The baseline's graded predictions, oldest first.</summary>
     public GradedPrediction[] Prior { get; set; } = [];
+}
+
+/// <summary>The contents of one time window.</summary>
+internal sealed class TimeWindowSnapshot
+{
+    /// <summary>Span of event time held.</summary>
+    public TimeSpan Span { get; set; }
+
+    /// <summary>Most labels held.</summary>
+    public int MaxCount { get; set; }
+
+    /// <summary>Latest event time seen by the model's window.</summary>
+    public DateTimeOffset? ModelLatest { get; set; }
+
+    /// <summary>Latest event time seen by the baseline's window.</summary>
+    public DateTimeOffset? PriorLatest { get; set; }
+
+    /// <summary>The model's timed predictions.</summary>
+    public TimedPrediction[] Model { get; set; } = [];
+
+    /// <summary>The baseline's timed predictions.</summary>
+    public TimedPrediction[] Prior { get; set; } = [];
 }
 
 /// <summary>One alert rule's state.</summary>

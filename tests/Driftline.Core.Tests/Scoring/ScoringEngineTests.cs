@@ -133,4 +133,38 @@ public sealed class ScoringEngineTests
         var error = Assert.Throws<InvalidDataException>(() => SnapshotCodec.Read(stream));
         Assert.Contains("snapshot", error.Message, StringComparison.Ordinal);
     }
+
+    [Fact]
+    public void Process_TimeWindowRule_SeesOnlyTheLastHourOfLabels()
+    {
+        // Ten hours of calibrated external probabilities, then 30 minutes where every outcome
+        // is positive at p = 0.5. Over the last hour that is a gap of about 0.25; over the
+        // last 10,000 labels it is about 0.02.
+        var options = Options();
+        options.Alerts =
+        [
+            new() { Name = "hour", Metric = Driftline.Core.Alerts.AlertMetric.CalibrationGap, WindowTime = TimeSpan.FromHours(1), Window = 100_000, MinLabels = 100, Raise = 0.15, Clear = 0.05 },
+            new() { Name = "count", Metric = Driftline.Core.Alerts.AlertMetric.CalibrationGap, Window = 10_000, MinLabels = 100, Raise = 0.15, Clear = 0.05 },
+        ];
+        var sink = new RecordingSink();
+        var engine = new ScoringEngine(options, sink);
+        var start = new DateTime(2026, 5, 1, 0, 0, 0, DateTimeKind.Utc);
+        var lines = new List<string>();
+        for (int i = 0; i < 6_000; i++)
+        {
+            var t = start.AddSeconds(i * 6);
+            lines.Add($"{{\"id\":\"a{i}\",\"p\":0.5,\"label\":{i % 2},\"time\":\"{t:O}\"}}");
+        }
+        for (int i = 0; i < 300; i++)
+        {
+            var t = start.AddHours(10).AddSeconds(i * 6);
+            lines.Add($"{{\"id\":\"b{i}\",\"p\":0.5,\"label\":1,\"time\":\"{t:O}\"}}");
+        }
+        EngineDriver.Feed(engine, lines);
+        var raised = Assert.Single(sink.Alerts);
+        Assert.Equal("hour", raised.Rule);
+        // The hour window holds the last 600 labels, not all 6,300.
+        var saved = engine.Snapshot().TimeWindows.Single();
+        Assert.InRange(saved.Model.Length, 590, 610);
+    }
 }
