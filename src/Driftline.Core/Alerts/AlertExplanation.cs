@@ -11,13 +11,15 @@ namespace Driftline.Core.Alerts;
 /// <param name="Slope">Calibration slope (Cox 1958), NaN when it cannot be fitted.</param>
 /// <param name="Intercept">Calibration intercept, NaN when it cannot be fitted.</param>
 /// <param name="WorstBins">Up to three non-empty bins with the largest count-weighted gap, worst first.</param>
-internal sealed record AlertExplanation(double MeanP, double ObservedRate, double Slope, double Intercept, IReadOnlyList<ReliabilityBin> WorstBins)
+/// <param name="Segments">Up to three segments furthest off in standard errors (empty without <c>Monitor:SegmentBy</c>).</param>
+internal sealed record AlertExplanation(double MeanP, double ObservedRate, double Slope, double Intercept, IReadOnlyList<ReliabilityBin> WorstBins,
+    IReadOnlyList<Scoring.SegmentGap> Segments)
 {
     /// <summary>Gap in mean p − observed rate that counts as "in line" in the words (0.01).</summary>
     public const double Tolerance = 0.01;
 
     /// <summary>Builds the explanation from a window's current contents (O(window): used only when an alert changes state).</summary>
-    public static AlertExplanation Of(IGradedWindow window)
+    public static AlertExplanation Of(IGradedWindow window, IReadOnlyList<Scoring.SegmentGap>? segments = null)
     {
         ArgumentNullException.ThrowIfNull(window);
         var snapshot = window.Current;
@@ -28,7 +30,7 @@ internal sealed record AlertExplanation(double MeanP, double ObservedRate, doubl
             .Take(3)
             .ToArray();
         var fit = CalibrationSlope.Fit(window.Contents());
-        return new AlertExplanation(snapshot.MeanP, snapshot.MeanY, fit.IsReady ? fit.Slope : double.NaN, fit.IsReady ? fit.Intercept : double.NaN, worst);
+        return new AlertExplanation(snapshot.MeanP, snapshot.MeanY, fit.IsReady ? fit.Slope : double.NaN, fit.IsReady ? fit.Intercept : double.NaN, worst, segments ?? []);
     }
 
     /// <summary>The direction of the error in words: under- or over-predicting, and over- or under-confident.</summary>
@@ -58,4 +60,8 @@ internal sealed record AlertExplanation(double MeanP, double ObservedRate, doubl
     /// <summary>The worst bins in words, e.g. "0.3–0.4: predicted 0.35, observed 0.52 (n=210)".</summary>
     public string Bins() => string.Join("; ", WorstBins.Select(b =>
         $"{b.Lower:0.0#}–{b.Upper:0.0#}: predicted {b.MeanP:0.00}, observed {b.MeanY:0.00} (n={b.Count})"));
+
+    /// <summary>The segments furthest off in words, e.g. "harbour: predicted 0.31, observed 0.45 (n=210)".</summary>
+    public string SegmentsInWords() => string.Join("; ", Segments.Select(g =>
+        $"{g.Segment}: predicted {g.MeanP:0.00}, observed {g.ObservedRate:0.00} (n={g.Count})"));
 }

@@ -32,6 +32,25 @@ internal sealed class EventParser
     /// <summary>Where the text of feature names and values is recorded for later display; null records nothing.</summary>
     public FeatureNames? Names { get; set; }
 
+    private readonly Dictionary<ulong, string> _segments = new();
+    private ulong _segmentHash;
+    private string? _segmentFeature;
+
+    /// <summary>
+    /// The categorical feature whose value names an event's segment (e.g. "zone"), or null for
+    /// none. Its text is kept once per distinct value (at most 10,000), so segments cost no
+    /// allocation per event.
+    /// </summary>
+    public string? SegmentFeature
+    {
+        get => _segmentFeature;
+        set
+        {
+            _segmentFeature = value;
+            _segmentHash = value is null ? 0 : FeatureHash.Name(Encoding.UTF8.GetBytes(value));
+        }
+    }
+
     /// <summary>Creates a parser.</summary>
     public EventParser() => _keyLookup = _keys.GetAlternateLookup<ReadOnlySpan<char>>();
 
@@ -255,6 +274,18 @@ internal sealed class EventParser
         ulong hash = FeatureHash.Value(nameHash, value);
         record.AddFeature(new RawFeature(nameHash, hash, 1.0, RawFeatureKind.Categorical));
         Names?.RecordValue(hash, name, value);
+        if (nameHash == _segmentHash && _segmentHash != 0 && record.Segment is null)
+        {
+            if (!_segments.TryGetValue(hash, out var segment))
+            {
+                segment = Encoding.UTF8.GetString(value);
+                if (_segments.Count < 10_000)
+                {
+                    _segments[hash] = segment;
+                }
+            }
+            record.Segment = segment;
+        }
     }
 
     // The token's bytes with JSON escapes resolved; points into the input when there are none.

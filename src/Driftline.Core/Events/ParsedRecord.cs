@@ -17,6 +17,9 @@ internal sealed class ParsedRecord
     /// <summary>The model key, or null for the default model.</summary>
     public string? Key { get; set; }
 
+    /// <summary>The value of the parser's segment feature, or null when it has none.</summary>
+    public string? Segment { get; set; }
+
     /// <summary>Event time as UTC ticks, or <see cref="NoTime"/> when the record has none.</summary>
     public long TimeTicks { get; set; } = NoTime;
 
@@ -47,6 +50,7 @@ internal sealed class ParsedRecord
         Kind = RecordKind.Event;
         Id = "";
         Key = null;
+        Segment = null;
         TimeTicks = NoTime;
         Label = -1;
         Probability = double.NaN;
@@ -70,6 +74,7 @@ internal sealed class ParsedRecord
         target.Kind = Kind;
         target.Id = Id;
         target.Key = Key;
+        target.Segment = Segment;
         target.TimeTicks = TimeTicks;
         target.Label = Label;
         target.Probability = Probability;

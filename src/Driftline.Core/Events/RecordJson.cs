@@ -79,6 +79,21 @@ internal static class RecordJson
                 w.WriteEndObject();
             }
             w.WriteEndArray();
+            if (e.Segments.Count > 0)
+            {
+                w.WriteStartArray("worst_segments"u8);
+                foreach (var g in e.Segments)
+                {
+                    w.WriteStartObject();
+                    w.WriteString("segment"u8, g.Segment);
+                    w.WriteNumber("count"u8, g.Count);
+                    w.WriteNumber("mean_p"u8, g.MeanP);
+                    w.WriteNumber("observed_rate"u8, g.ObservedRate);
+                    w.WriteNumber("z"u8, g.Z);
+                    w.WriteEndObject();
+                }
+                w.WriteEndArray();
+            }
             w.WriteEndObject();
         }
         w.WriteEndObject();
@@ -144,7 +159,7 @@ internal static class RecordJson
             : $"over the last {a.Window:N0} labels";
         string brk = a.Break is null ? "" : $" Best explanation: {a.Break}.";
         string why = a.Explanation is { } e
-            ? $" Predicted {e.MeanP:0.000} on average, observed {e.ObservedRate:0.000}: {e.Direction()}." + (e.WorstBins.Count > 0 ? $" Furthest off: {e.Bins()}." : "")
+            ? $" Predicted {e.MeanP:0.000} on average, observed {e.ObservedRate:0.000}: {e.Direction()}." + (e.WorstBins.Count > 0 ? $" Furthest off: {e.Bins()}." : "") + (e.Segments.Count > 0 ? $" Segments furthest off: {e.SegmentsInWords()}." : "")
             : "";
         return a.Raised
             ? $"Raised: {measure}{relative} {over} is {a.Value:0.####}, past the raise threshold {a.Threshold:0.####}.{brk}{why}"

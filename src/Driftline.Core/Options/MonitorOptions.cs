@@ -12,6 +12,15 @@ internal sealed class MonitorOptions
     /// <summary>Reliability bins (equal width). Default 10.</summary>
     public int Bins { get; set; } = 10;
 
+    /// <summary>
+    /// A categorical feature (e.g. "zone") whose values split the stream into segments; each
+    /// alert then names the segments furthest off. Default null: no segments.
+    /// </summary>
+    public string? SegmentBy { get; set; }
+
+    /// <summary>Most segments tracked; later values are pooled as "(other)". Default 50.</summary>
+    public int MaxSegments { get; set; } = 50;
+
     /// <summary>Checks every option; returns the mistakes found.</summary>
     public IEnumerable<OptionError> Validate(string section = "Monitor")
     {
@@ -22,6 +31,14 @@ internal sealed class MonitorOptions
         if (MetricsEvery < 1)
         {
             yield return new($"{section}:MetricsEvery", $"{MetricsEvery} is less than 1", "Use e.g. 1000 for a row every thousand labels");
+        }
+        if (SegmentBy is { Length: 0 })
+        {
+            yield return new($"{section}:SegmentBy", "is empty", "Name a categorical feature such as \"zone\", or leave it out");
+        }
+        if (MaxSegments is < 1 or > 1_000)
+        {
+            yield return new($"{section}:MaxSegments", $"{MaxSegments} is outside 1–1,000", "Use 50");
         }
         if (Bins is < 2 or > 100)
         {

@@ -24,6 +24,9 @@ internal sealed class PendingPrediction
     /// <summary>The class-prior baseline's probability at the same moment.</summary>
     public double PriorP { get; set; }
 
+    /// <summary>The event's segment (see <c>Monitor:SegmentBy</c>), or null.</summary>
+    public string? Segment { get; set; }
+
     /// <summary>True once a label has joined it (kept to recognise duplicates).</summary>
     public bool Labelled { get; set; }
 

@@ -35,6 +35,7 @@ internal sealed class ScoringEngine
     private readonly (AlertRule Rule, int Window)[] _rules;
     private readonly (TimeSpan Span, TimeWindow Model, TimeWindow Prior)[] _timeWindows;
     private readonly int[] _ruleTimeWindow;
+    private readonly SegmentTracker? _segments;
     private long _clockTicks = ParsedRecord.NoTime;
 
     /// <summary>Creates an engine with no models yet; options must have been validated.</summary>
@@ -58,6 +59,7 @@ internal sealed class ScoringEngine
         _rules = rules.Select(r => (new AlertRule(r), Array.IndexOf(sizes, r.Window))).ToArray();
         Totals = new CalibrationTotals(bins);
         PriorTotals = new CalibrationTotals(bins);
+        _segments = options.Monitor.SegmentBy is null ? null : new SegmentTracker(options.Monitor.Window, options.Monitor.MaxSegments);
     }
 
     /// <summary>Whole-run counts.</summary>
@@ -129,7 +131,7 @@ internal sealed class ScoringEngine
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, p, priorP, record.Label, record.Id, record.TimeTicks);
+            Grade(model, p, priorP, record.Label, record.Id, record.TimeTicks, record.Segment);
             model.Learner.Update(_x, record.Label, p);
             return StepOutcome.ScoredAndLearned;
         }
@@ -137,6 +139,7 @@ internal sealed class ScoringEngine
         pending.Model = index;
         pending.P = p;
         pending.PriorP = priorP;
+        pending.Segment = record.Segment;
         pending.SetFeatures(_x.Slots, _x.Values);
         return StepOutcome.Scored;
     }
@@ -156,7 +159,7 @@ internal sealed class ScoringEngine
         Counters.LateLabels++;
         var model = _models[pending.Model];
         long time = record.HasTime ? record.TimeTicks : pending.TimeTicks;
-        Grade(model, pending.P, pending.PriorP, record.Label, record.Id, time);
+        Grade(model, pending.P, pending.PriorP, record.Label, record.Id, time, pending.Segment);
         if (pending.Count > 0)
         {
             _lateX.CopyFrom(pending.Slots, pending.Values);
@@ -178,20 +181,22 @@ internal sealed class ScoringEngine
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, record.Probability, priorP, record.Label, record.Id, record.TimeTicks);
+            Grade(model, record.Probability, priorP, record.Label, record.Id, record.TimeTicks, record.Segment);
             return StepOutcome.ProbabilityRecorded;
         }
         var pending = Pending.Add(record.Id, record.TimeTicks);
         pending.Model = index;
         pending.P = record.Probability;
         pending.PriorP = priorP;
+        pending.Segment = record.Segment;
         pending.SetFeatures([], []);
         return StepOutcome.ProbabilityRecorded;
     }
 
-    private void Grade(KeyedModel model, double p, double priorP, int y, string id, long timeTicks)
+    private void Grade(KeyedModel model, double p, double priorP, int y, string id, long timeTicks, string? segment)
     {
         model.Prior.Add(y);
+        _segments?.Add(segment, p, y);
         Counters.Labels++;
         Totals.Add(p, y);
         PriorTotals.Add(priorP, y);
@@ -229,7 +234,7 @@ internal sealed class ScoringEngine
                 var o = rule.Options;
                 double threshold = rule.Cusum is { } cusum ? (raised ? cusum.Threshold : cusum.ClearFraction * cusum.Threshold) : raised ? o.Raise : o.Clear;
                 _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, threshold, o.Window, id, timeTicks, Counters.Labels,
-                    o.Severity, AlertExplanation.Of(window), o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null));
+                    o.Severity, AlertExplanation.Of(window, _segments?.Worst()), o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null));
             }
         }
         if (Counters.Labels % _options.Monitor.MetricsEvery == 0)

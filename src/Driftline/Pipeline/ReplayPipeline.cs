@@ -40,6 +40,8 @@ internal sealed class ReplayPipeline
         ArgumentNullException.ThrowIfNull(lanes);
         ArgumentOutOfRangeException.ThrowIfZero(lanes.Count, nameof(lanes));
         _lanes = [.. lanes];
+        // One parse serves every lane, so the first configuration's segment feature is used.
+        _parser.SegmentFeature = _lanes[0].Engine.Options.Monitor.SegmentBy;
     }
 
     /// <summary>The lanes, in the order given.</summary>

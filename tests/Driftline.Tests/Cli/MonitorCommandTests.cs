@@ -77,4 +77,34 @@ public sealed class MonitorCommandTests
         Assert.False(File.Exists(dir.File("out/model.json")));
         Assert.True(File.Exists(dir.File("out/report.html")));
     }
+
+    [Fact]
+    public async Task Monitor_BreakInOneSegment_NamesThatSegmentFirst()
+    {
+        // Four zones, calibrated; after label 20,000 the harbour's outcomes run +1.5 in log-odds.
+        var random = new Random(6);
+        var c = CultureInfo.InvariantCulture;
+        string[] zones = ["riverside", "harbour", "old-town", "hillside"];
+        var sb = new StringBuilder();
+        for (int i = 0; i < 30_000; i++)
+        {
+            string zone = zones[i % 4];
+            double p = 1 / (1 + Math.Exp(-(random.NextDouble() * 4 - 2.5)));
+            double shift = i >= 20_000 && zone == "harbour" ? 1.5 : 0;
+            int y = random.NextDouble() < 1 / (1 + Math.Exp(-(Math.Log(p / (1 - p)) + shift))) ? 1 : 0;
+            sb.Append(c, $"{{\"id\":\"x{i}\",\"p\":{p:R},\"label\":{y},\"features\":{{\"zone\":\"{zone}\"}}}}\n");
+        }
+        using var dir = new TempFolder();
+        File.WriteAllText(dir.File("scores.jsonl"), sb.ToString());
+        File.WriteAllText(dir.File("segments.json"), """{"Monitor":{"SegmentBy":"zone"}}""");
+        var run = await CliRun.RunAsync("monitor", dir.File("scores.jsonl"), "--out", dir.File("out"), "--config", dir.File("segments.json"));
+        Assert.True(run.ExitCode == 0, run.Error);
+        var raised = File.ReadAllLines(dir.File("out/alerts.jsonl")).Select(l => JsonDocument.Parse(l).RootElement)
+            .First(a => a.GetProperty("state").GetString() == "raised");
+        Assert.True(raised.GetProperty("labels").GetInt64() >= 20_000);
+        var worst = raised.GetProperty("window_state").GetProperty("worst_segments");
+        Assert.Equal("harbour", worst[0].GetProperty("segment").GetString());
+        Assert.True(worst[0].GetProperty("z").GetDouble() < 0);
+        Assert.Contains("Segments furthest off: harbour", raised.GetProperty("message").GetString(), StringComparison.Ordinal);
+    }
 }
