@@ -8,6 +8,7 @@ return args.FirstOrDefault() switch
     "replay" => ReplayBenchmark.Run(args.Skip(1).ToArray()),
     "micro" => RunMicro(args.Skip(1).ToArray()),
     "split" => StageSplit.Run(args[1]),
+    "engine" => StageSplit.EngineOnly(args[1]),
     "winprobe" => WinProbe.Run(),
     _ => Usage(),
 };
