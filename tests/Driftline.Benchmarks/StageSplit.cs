@@ -35,17 +35,7 @@ internal static class StageSplit
             Report("bare loop (read, parse, update)", n, clock.Elapsed);
 
             clock.Restart();
-            var parser = new EventParser();
-            var record = new ParsedRecord();
-            var engine = new ScoringEngine(new DriftlineOptions(), new NullSink());
-            foreach (var line in lines)
-            {
-                if (parser.TryParse(line, record, out _))
-                {
-                    engine.Process(record);
-                }
-            }
-            Report("parse + score/learn step (in memory, no outputs)", engine.Counters.Events, clock.Elapsed);
+            Report("parse + score/learn step (in memory, no outputs)", ScoreInMemory(lines), clock.Elapsed);
 
             clock.Restart();
             var pipeline = new ReplayPipeline(new DriftlineOptions());
@@ -87,19 +77,24 @@ internal static class StageSplit
         for (int round = 0; round < 3; round++)
         {
             var clock = Stopwatch.StartNew();
-            var parser = new EventParser();
-            var record = new ParsedRecord();
-            var engine = new ScoringEngine(new DriftlineOptions(), new NullSink());
-            foreach (var line in lines)
-            {
-                if (parser.TryParse(line, record, out _))
-                {
-                    engine.Process(record);
-                }
-            }
-            Report("parse + score/learn step (in memory, no outputs)", engine.Counters.Events, clock.Elapsed);
+            Report("parse + score/learn step (in memory, no outputs)", ScoreInMemory(lines), clock.Elapsed);
         }
         return 0;
+    }
+
+    private static long ScoreInMemory(byte[][] lines)
+    {
+        var parser = new EventParser();
+        var record = new ParsedRecord();
+        var engine = new ScoringEngine(new DriftlineOptions(), new NullSink());
+        foreach (var line in lines)
+        {
+            if (parser.TryParse(line, record, out _))
+            {
+                engine.Process(record);
+            }
+        }
+        return engine.Counters.Events;
     }
 
     private static void Report(string what, long events, TimeSpan elapsed) =>

@@ -58,14 +58,7 @@ internal sealed class DemoScenario
             while (late.TryPeek(out var due, out var at) && at <= time)
             {
                 late.Dequeue();
-                json.Reset(output);
-                json.WriteStartObject();
-                json.WriteString("id", due.Id);
-                json.WriteNumber("label", due.Label);
-                json.WriteString("time", due.Time);
-                json.WriteEndObject();
-                json.Flush();
-                output.WriteByte((byte)'\n');
+                WriteLabel(json, output, due);
             }
             int malformed = Array.IndexOf(malformedAt, n);
             if (malformed >= 0)
@@ -144,15 +137,21 @@ internal sealed class DemoScenario
         }
         while (late.TryDequeue(out var due, out _))
         {
-            json.Reset(output);
-            json.WriteStartObject();
-            json.WriteString("id", due.Id);
-            json.WriteNumber("label", due.Label);
-            json.WriteString("time", due.Time);
-            json.WriteEndObject();
-            json.Flush();
-            output.WriteByte((byte)'\n');
+            WriteLabel(json, output, due);
         }
+    }
+
+    // A label-only record: the outcome of an earlier order, as it becomes known.
+    private static void WriteLabel(Utf8JsonWriter json, Stream output, (string Id, int Label, DateTime Time) due)
+    {
+        json.Reset(output);
+        json.WriteStartObject();
+        json.WriteString("id", due.Id);
+        json.WriteNumber("label", due.Label);
+        json.WriteString("time", due.Time);
+        json.WriteEndObject();
+        json.Flush();
+        output.WriteByte((byte)'\n');
     }
 
     private static byte[] Malformed(int which) => which switch
