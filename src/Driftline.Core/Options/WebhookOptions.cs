@@ -15,7 +15,11 @@ internal sealed class WebhookOptions
     /// <summary>Attempts per alert, the first included; 1 means no retry. Default 5.</summary>
     public int MaxAttempts { get; set; } = 5;
 
-    /// <summary>Wait before the second attempt; each later wait doubles, up to <see cref="MaxRetryDelay"/>. Default 1 second.</summary>
+    /// <summary>
+    /// Back-off before the second attempt; each later one doubles, up to <see cref="MaxRetryDelay"/>.
+    /// The wait actually taken is a random point between half the back-off and all of it, so
+    /// workers that failed together do not retry together. Default 1 second.
+    /// </summary>
     public TimeSpan FirstRetryDelay { get; set; } = TimeSpan.FromSeconds(1);
 
     /// <summary>Longest wait between attempts, also the cap on a receiver's <c>Retry-After</c>. Default 60 seconds.</summary>
