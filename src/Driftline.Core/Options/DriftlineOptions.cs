@@ -1,3 +1,4 @@
+using System.Text.Json.Serialization;
 using Driftline.Core.Alerts;
 
 namespace Driftline.Core.Options;
@@ -17,6 +18,14 @@ internal sealed class DriftlineOptions
     /// <summary>Alert rules; null means <see cref="AlertRuleOptions.Defaults"/>, an empty list means none.</summary>
     public List<AlertRuleOptions>? Alerts { get; set; }
 
+    /// <summary>
+    /// Where alerts are POSTed besides the run's own outputs; off unless <c>Webhook:Url</c> is
+    /// set. Delivery settings, not engine state, so left out of snapshots: a webhook address
+    /// often carries a secret and must not end up in <c>model.json</c> or a checkpoint.
+    /// </summary>
+    [JsonIgnore]
+    public WebhookOptions Webhook { get; set; } = new();
+
     /// <summary>The rules in force.</summary>
     public IReadOnlyList<AlertRuleOptions> EffectiveAlerts => Alerts ?? AlertRuleOptions.Defaults();
 
@@ -27,6 +36,7 @@ internal sealed class DriftlineOptions
         errors.AddRange(Model.Validate());
         errors.AddRange(Labels.Validate());
         errors.AddRange(Monitor.Validate());
+        errors.AddRange(Webhook.Validate());
         var rules = EffectiveAlerts;
         for (int i = 0; i < rules.Count; i++)
         {

@@ -49,6 +49,12 @@ internal sealed class CheckCommand(CommandContext context)
         o.WriteLine(m.Interactions.Count == 0 ? "  no interactions." : $"  interactions: {string.Join(", ", m.Interactions)}.");
         o.WriteLine($"Late labels: up to {options.Labels.MaxPending:N0} predictions wait, each for at most {options.Labels.MaxAge} of event time.");
         o.WriteLine($"Monitor: rolling window of {options.Monitor.Window:N0} labels, {options.Monitor.Bins} reliability bins, a metrics row every {options.Monitor.MetricsEvery:N0} labels.");
+        // Only scheme, host and port: the path and query of a webhook address often hold a secret,
+        // and this text goes into report.html.
+        var w = options.Webhook;
+        o.WriteLine(w.Address() is { } hook
+            ? $"Webhook: each alert POSTed to {hook.Scheme}://{hook.Authority}/…, up to {w.MaxAttempts} attempts of at most {w.Timeout.TotalSeconds:0.###} s each, backing off from {w.FirstRetryDelay.TotalSeconds:0.###} s to {w.MaxRetryDelay.TotalSeconds:0.###} s; at most {w.QueueLimit:N0} alerts wait, {w.ShutdownGrace.TotalSeconds:0.###} s to drain at shutdown."
+            : "Webhook: off.");
         var rules = options.EffectiveAlerts;
         o.WriteLine(rules.Count == 0 ? "Alerts: none." : $"Alerts{(options.Alerts is null ? " (defaults)" : "")}:");
         foreach (var r in rules)

@@ -129,6 +129,13 @@ internal sealed class ReplayCommand(CommandContext context)
             AfterBatch = engine => Report(progress, pipeline!, done: false),
         };
 
+        // One sender per configuration, fed by that configuration's writer (never the scoring thread).
+        var webhooks = configs.Select(c => c.Options.Webhook.Address() is null ? null : new WebhookAlertSink(c.Options.Webhook)).ToArray();
+        for (int i = 0; i < outputs.Count; i++)
+        {
+            outputs[i].Webhook = webhooks[i];
+        }
+
         var clock = Stopwatch.StartNew();
         try
         {
@@ -141,7 +148,16 @@ internal sealed class ReplayCommand(CommandContext context)
         }
         finally
         {
+            // Replay time is the pipeline's; waiting for a slow receiver to drain is not part of it.
+            clock.Stop();
             outputs.ForEach(o => o.Dispose());
+            foreach (var webhook in webhooks)
+            {
+                if (webhook is not null)
+                {
+                    await webhook.DisposeAsync().ConfigureAwait(false);
+                }
+            }
         }
         clock.Stop();
         Report(progress, pipeline, done: true);
@@ -151,7 +167,7 @@ internal sealed class ReplayCommand(CommandContext context)
         {
             var engine = lanes[i].Engine;
             var folder = folders[i];
-            SummaryWriter.Write(Path.Combine(folder, "summary.json"), engine, lanes[i].DeadLetters, clock.Elapsed);
+            SummaryWriter.Write(Path.Combine(folder, "summary.json"), engine, lanes[i].DeadLetters, clock.Elapsed, webhooks[i]);
             if (!MonitorOnly)
             {
                 var snapshot = engine.Snapshot();
@@ -170,6 +186,10 @@ internal sealed class ReplayCommand(CommandContext context)
                 o.WriteLine($"[{configs[i].Name}]");
             }
             WriteResult(o, pipeline, lanes[i], outputs[i], clock.Elapsed, folder);
+            if (webhooks[i] is { } hook)
+            {
+                o.WriteLine($"Webhook: {hook.Sent:N0} alerts delivered, {hook.Failed:N0} failed, {hook.Dropped:N0} dropped.");
+            }
         }
         if (compare)
         {

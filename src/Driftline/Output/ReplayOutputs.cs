@@ -42,6 +42,12 @@ internal sealed class ReplayOutputs : IDisposable
     /// <summary>Alerts written, for the summary.</summary>
     public List<AlertTransition> AlertsWritten { get; } = [];
 
+    /// <summary>
+    /// Also hands every alert written to this webhook (it queues and returns at once); null
+    /// sends none. Set before the run; the caller owns and drains the sink.
+    /// </summary>
+    public WebhookAlertSink? Webhook { get; set; }
+
     /// <summary>Writes one batch's results.</summary>
     public void Write(OutputBatch batch)
     {
@@ -59,6 +65,7 @@ internal sealed class ReplayOutputs : IDisposable
         {
             AlertsWritten.Add(alert);
             WriteLine(_alerts, w => RecordJson.WriteAlert(w, alert));
+            Webhook?.Enqueue(alert);
         }
         foreach (var dead in batch.DeadLetters)
         {

@@ -6,8 +6,12 @@ namespace Driftline.Output;
 /// <summary>Writes <c>summary.json</c>: the run's figures in one small object.</summary>
 internal static class SummaryWriter
 {
-    /// <summary>Writes the summary of <paramref name="engine"/>'s run to <paramref name="path"/>.</summary>
-    public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed)
+    /// <summary>
+    /// Writes the summary of <paramref name="engine"/>'s run to <paramref name="path"/>, with
+    /// <c>webhook_sent</c>, <c>webhook_failed</c> and <c>webhook_dropped</c> when a
+    /// <paramref name="webhook"/> was in use (read them after it has drained).
+    /// </summary>
+    public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook = null)
     {
         using var file = File.Create(path);
         using var w = new Utf8JsonWriter(file, new JsonWriterOptions { Indented = true });
@@ -40,6 +44,12 @@ internal static class SummaryWriter
             w.WriteStringValue(rule.Options.Name);
         }
         w.WriteEndArray();
+        if (webhook is not null)
+        {
+            w.WriteNumber("webhook_sent", webhook.Sent);
+            w.WriteNumber("webhook_failed", webhook.Failed);
+            w.WriteNumber("webhook_dropped", webhook.Dropped);
+        }
         w.WriteNumber("models", engine.Models.Count);
         w.WriteNumber("refused_updates", engine.Models.Sum(m => m.Learner.RefusedUpdates));
         w.WriteNumber("seconds", Math.Round(elapsed.TotalSeconds, 3));
