@@ -1,0 +1,498 @@
+using System.Collections.Concurrent;
+using Confluent.Kafka;
+using Driftline.Core.Options;
+using Driftline.Core.Scoring;
+using Driftline.Kafka.Checkpoints;
+using Driftline.Kafka.Options;
+using Serilog;
+
+namespace Driftline.Kafka.Worker;
+
+/// <summary>
+/// The live worker: one member of the consumer group. It owns the events partitions the
+/// group gives it, one engine per partition, follows them on the labels topic, and writes
+/// predictions, alerts and dead letters through one producer.
+/// </summary>
+/// <remarks>
+/// <para>One loop thread parses, scores and learns; librdkafka's own threads fetch ahead and
+/// send behind it through bounded queues (fetch queue, send queue), so the three stages
+/// overlap with backpressure on both sides. The rebalance callbacks run on the same thread,
+/// inside Consume, which is what makes "finish the in-flight work, then give the partition
+/// up" exact without locks.</para>
+/// <para>Commit rule: a partition's offset is committed only after the producer has flushed
+/// (every prediction before it acknowledged by the broker) and the checkpoint holding the
+/// engine state at that offset, labels included, is on disk. On assignment the worker
+/// restores the checkpoint and seeks both partitions to the offsets it reflects, so a
+/// restart or a move never loses or doubles a label; predictions after the checkpoint may be
+/// emitted again (at least once).</para>
+/// </remarks>
+internal sealed class KafkaWorker
+{
+    private const int MaxPull = 2_000;
+    private static readonly TimeSpan IdleWait = TimeSpan.FromMilliseconds(50);
+    private static readonly TimeSpan FlushLimit = TimeSpan.FromSeconds(60);
+
+    private readonly KafkaOptions _options;
+    private readonly DriftlineOptions _core;
+    private readonly CheckpointStore _store;
+    private readonly Dictionary<int, PartitionState> _partitions = [];
+    private KafkaOutputs? _outputs;
+    private RecordProcessor? _processor;
+    private IProducer<byte[]?, byte[]>? _producer;
+    private IConsumer<byte[]?, byte[]>? _labels;
+    private string? _fatal;
+    private bool _failed;
+    private DateTime _lastCheckpoint = DateTime.UtcNow;
+
+    /// <summary>Creates a worker; both option sets must have been validated.</summary>
+    public KafkaWorker(KafkaOptions options, DriftlineOptions core, WorkerStats? stats = null)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        ArgumentNullException.ThrowIfNull(core);
+        _options = options;
+        _core = core;
+        _store = new CheckpointStore(options.CheckpointDir);
+        Stats = stats ?? new WorkerStats();
+    }
+
+    /// <summary>Running counts.</summary>
+    public WorkerStats Stats { get; }
+
+    /// <summary>Each model key this worker has created a model for, with its partition (for tests and operators).</summary>
+    public ConcurrentDictionary<string, int> ModelKeys { get; } = new(StringComparer.Ordinal);
+
+    /// <summary>Partitions owned now.</summary>
+    public ConcurrentDictionary<int, bool> Owned { get; } = new();
+
+    private bool HasLabels => _options.LabelsTopic is not null;
+
+    /// <summary>
+    /// Runs until <paramref name="stop"/> is cancelled, then checkpoints, commits, leaves the
+    /// group and returns. Throws <see cref="KafkaWorkerException"/> on a fatal error, after
+    /// leaving without committing anything more.
+    /// </summary>
+    public void Run(CancellationToken stop)
+    {
+        Log.Information("Worker joining group {Group} at {Bootstrap}: events {EventsTopic}, labels {LabelsTopic}, predictions {PredictionsTopic}, alerts {AlertsTopic}, dead letters {DeadLetterTopic}, checkpoints in {CheckpointDir}; client settings {@Client}",
+            _options.Group, _options.Bootstrap, _options.EventsTopic, _options.LabelsTopic ?? "(events topic)", _options.PredictionsTopic, _options.AlertsTopic ?? "(log only)", _options.DeadLetterTopic, _store.Directory, ClientSettings.Masked(_options));
+        try
+        {
+            using var producer = Build(new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(_options))
+                .SetErrorHandler((_, e) => OnError("producer", e))
+                .SetLogHandler((_, m) => OnLog("producer", m)));
+            _producer = producer;
+            _outputs = new KafkaOutputs(producer, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, Stats);
+            _processor = new RecordProcessor(_outputs, Stats);
+            CheckCoPartitioned(producer);
+            using var labels = HasLabels ? Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.LabelsConsumer(_options))
+                .SetErrorHandler((_, e) => OnError("labels consumer", e))
+                .SetLogHandler((_, m) => OnLog("labels consumer", m))) : null;
+            _labels = labels;
+            using var events = Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.EventsConsumer(_options))
+                .SetErrorHandler((_, e) => OnError("events consumer", e))
+                .SetLogHandler((_, m) => OnLog("events consumer", m))
+                .SetPartitionsAssignedHandler((_, assigned) => OnAssigned(assigned))
+                .SetPartitionsRevokedHandler((c, revoked) => OnRevoked(c, revoked))
+                .SetPartitionsLostHandler((_, lost) => OnLost(lost)));
+            try
+            {
+                events.Subscribe(_options.EventsTopic);
+                Stats.Running = true;
+                Loop(events, stop);
+                CheckpointAndCommit(events, _partitions.Values.ToList());
+                Drop(_partitions.Keys.ToList());
+            }
+            catch
+            {
+                _failed = true;
+                throw;
+            }
+            finally
+            {
+                Stats.Running = false;
+                // Close leaves the group now (a rebalance in milliseconds, not a session timeout).
+                events.Close();
+                labels?.Close();
+            }
+            Log.Information("Worker left group {Group}: {Events} events in, {Predictions} predictions, {Labels} labels joined, {DeadLetters} dead letters, {Checkpoints} checkpoints",
+                _options.Group, Stats.EventsIn, Stats.Predictions, Stats.LabelsJoined, Stats.DeadLetters, Stats.Checkpoints);
+        }
+        catch (KafkaException ex) when (ex is not ConsumeException)
+        {
+            throw new KafkaWorkerException($"Kafka client error: {ex.Error.Reason} ({ex.Error.Code})", ex);
+        }
+        catch (ConsumeException ex) when (ex.InnerException is KafkaWorkerException inner)
+        {
+            // Thrown in a rebalance callback, which the client wraps.
+            throw new KafkaWorkerException(inner.Message, inner);
+        }
+        catch (ConsumeException ex)
+        {
+            throw new KafkaWorkerException(_fatal ?? $"Kafka consume failed: {ex.Error.Reason} ({ex.Error.Code})", ex.InnerException ?? ex);
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        {
+            throw new KafkaWorkerException($"cannot write a checkpoint in '{_store.Directory}': {ex.Message}", ex);
+        }
+        catch (ArgumentException ex)
+        {
+            throw new KafkaWorkerException($"Kafka client setting rejected: {ex.Message}", ex);
+        }
+    }
+
+    private void Loop(IConsumer<byte[]?, byte[]> events, CancellationToken stop)
+    {
+        bool idle = false;
+        while (!stop.IsCancellationRequested)
+        {
+            ThrowIfFatal();
+            int got = Pull(events, fromLabels: false, idle ? IdleWait : TimeSpan.Zero);
+            if (_labels is not null)
+            {
+                got += Pull(_labels, fromLabels: true, TimeSpan.Zero);
+            }
+            int done = ProcessReady(events);
+            idle = got == 0 && done == 0;
+            var now = DateTime.UtcNow;
+            if (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
+                || (now - _lastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty)))
+            {
+                CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList());
+                UpdateLag(events);
+            }
+        }
+    }
+
+    private int Pull(IConsumer<byte[]?, byte[]> consumer, bool fromLabels, TimeSpan firstWait)
+    {
+        int got = 0;
+        for (int i = 0; i < MaxPull; i++)
+        {
+            var result = consumer.Consume(i == 0 ? firstWait : TimeSpan.Zero);
+            if (result is null)
+            {
+                break;
+            }
+            if (!_partitions.TryGetValue(result.Partition.Value, out var state))
+            {
+                continue; // fetched before the partition was given up
+            }
+            long next = fromLabels ? state.LabelsNext : state.EventsNext;
+            if (result.IsPartitionEOF)
+            {
+                if (fromLabels)
+                {
+                    state.LabelsAtEnd = true;
+                    state.LabelsNext = next == PartitionState.Unknown && state.Labels.Count == 0 ? result.Offset.Value : next;
+                }
+                else
+                {
+                    state.EventsAtEnd = true;
+                    state.EventsNext = next == PartitionState.Unknown && state.Events.Count == 0 ? result.Offset.Value : next;
+                }
+                continue;
+            }
+            var queue = fromLabels ? state.Labels : state.Events;
+            long queuedUpTo = fromLabels ? state.LabelsQueuedUpTo : state.EventsQueuedUpTo;
+            if (queuedUpTo != PartitionState.Unknown && result.Offset.Value < queuedUpTo)
+            {
+                continue; // already processed or queued (a re-fetch after a seek)
+            }
+            got++;
+            if (fromLabels)
+            {
+                state.LabelsQueuedUpTo = result.Offset.Value + 1;
+            }
+            else
+            {
+                state.EventsQueuedUpTo = result.Offset.Value + 1;
+            }
+            queue.Enqueue(new BufferedRecord(result.Offset.Value, result.Message.Timestamp.UnixTimestampMs, result.Message.Key, result.Message.Value ?? []));
+            if (fromLabels)
+            {
+                state.LabelsAtEnd = false;
+                Stats.LabelsIn++;
+            }
+            else
+            {
+                state.EventsAtEnd = false;
+                Stats.EventsIn++;
+            }
+            if (queue.Count >= _options.MaxBufferedPerPartition)
+            {
+                // Backpressure: the other side is behind; stop fetching this side until the merge catches up.
+                consumer.Pause([result.TopicPartition]);
+                if (fromLabels)
+                {
+                    state.LabelsPaused = true;
+                }
+                else
+                {
+                    state.EventsPaused = true;
+                }
+            }
+        }
+        return got;
+    }
+
+    private int ProcessReady(IConsumer<byte[]?, byte[]> events)
+    {
+        int done = 0;
+        foreach (var state in _partitions.Values)
+        {
+            int models = state.Engine.Models.Count;
+            while (state.TryTakeNext(out var record, out bool fromLabels))
+            {
+                string topic = fromLabels ? _options.LabelsTopic! : _options.EventsTopic;
+                if (_processor!.Process(state.Engine, record, topic, state.Partition))
+                {
+                    state.LabelsSinceCheckpoint++;
+                }
+                if (fromLabels)
+                {
+                    state.LabelsNext = record.Offset + 1;
+                }
+                else
+                {
+                    state.EventsNext = record.Offset + 1;
+                }
+                done++;
+            }
+            for (int i = models; i < state.Engine.Models.Count; i++)
+            {
+                ModelKeys[state.Engine.Models[i].Key] = state.Partition;
+            }
+            Resume(events, state, fromLabels: false);
+            Resume(_labels, state, fromLabels: true);
+        }
+        return done;
+    }
+
+    private void Resume(IConsumer<byte[]?, byte[]>? consumer, PartitionState state, bool fromLabels)
+    {
+        bool paused = fromLabels ? state.LabelsPaused : state.EventsPaused;
+        int queued = fromLabels ? state.Labels.Count : state.Events.Count;
+        if (consumer is null || !paused || queued > _options.MaxBufferedPerPartition / 2)
+        {
+            return;
+        }
+        consumer.Resume([new TopicPartition(fromLabels ? _options.LabelsTopic! : _options.EventsTopic, state.Partition)]);
+        if (fromLabels)
+        {
+            state.LabelsPaused = false;
+        }
+        else
+        {
+            state.EventsPaused = false;
+        }
+    }
+
+    /// <summary>Flush, then checkpoint, then commit: the order the commit rule needs.</summary>
+    private void CheckpointAndCommit(IConsumer<byte[]?, byte[]> events, List<PartitionState> states)
+    {
+        var started = DateTime.UtcNow;
+        while (_producer!.Flush(TimeSpan.FromMilliseconds(500)) > 0)
+        {
+            ThrowIfFatal();
+            if (DateTime.UtcNow - started > FlushLimit)
+            {
+                throw new KafkaWorkerException($"the broker has not acknowledged the predictions within {FlushLimit.TotalSeconds:0} s; stopping without committing (a restart resumes from the last checkpoint)");
+            }
+        }
+        ThrowIfFatal();
+        var now = DateTime.UtcNow;
+        var commits = new List<TopicPartitionOffset>();
+        foreach (var state in states.Where(s => s.Dirty))
+        {
+            _store.Write(state.ToCheckpoint(_options.EventsTopic, _options.LabelsTopic, now));
+            state.CheckpointedEvents = state.EventsNext;
+            state.CheckpointedLabels = state.LabelsNext;
+            state.LabelsSinceCheckpoint = 0;
+            Stats.Checkpoints++;
+            if (state.EventsNext >= 0)
+            {
+                commits.Add(new TopicPartitionOffset(_options.EventsTopic, state.Partition, state.EventsNext));
+            }
+        }
+        _lastCheckpoint = now;
+        Stats.LastCheckpointAt = now;
+        if (commits.Count == 0)
+        {
+            return;
+        }
+        try
+        {
+            events.Commit(commits);
+        }
+        catch (KafkaException ex)
+        {
+            // The checkpoint, not the committed offset, is where a restart resumes; the commit
+            // shows lag to operators and is retried with the next checkpoint.
+            Log.Warning("Offset commit failed ({Reason}); the checkpoints hold the positions", ex.Error.Reason);
+        }
+    }
+
+    private List<TopicPartitionOffset> OnAssigned(List<TopicPartition> assigned)
+    {
+        var start = new List<TopicPartitionOffset>();
+        var labels = new List<TopicPartitionOffset>();
+        foreach (var tp in assigned)
+        {
+            PartitionCheckpoint? checkpoint;
+            try
+            {
+                checkpoint = _store.Read(tp.Topic, tp.Partition.Value);
+            }
+            catch (InvalidDataException ex)
+            {
+                _fatal = $"{ex.Message}; move it aside to start that partition with fresh models";
+                throw new KafkaWorkerException(_fatal, ex);
+            }
+            var engine = checkpoint is null ? new ScoringEngine(_core, _outputs!) : ScoringEngine.Restore(checkpoint.Snapshot, _outputs!);
+            var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels);
+            _partitions[state.Partition] = state;
+            Owned[state.Partition] = true;
+            foreach (var model in engine.Models)
+            {
+                ModelKeys[model.Key] = state.Partition;
+            }
+            start.Add(new TopicPartitionOffset(tp, state.EventsNext >= 0 ? new Offset(state.EventsNext) : Offset.Unset));
+            if (HasLabels)
+            {
+                labels.Add(new TopicPartitionOffset(_options.LabelsTopic!, tp.Partition, state.LabelsNext >= 0 ? new Offset(state.LabelsNext) : Offset.Beginning));
+            }
+            if (checkpoint is null)
+            {
+                Log.Information("Partition {Partition} assigned: no checkpoint, fresh models from the group's committed offset (or the start)", state.Partition);
+            }
+            else
+            {
+                Log.Information("Partition {Partition} assigned: restored {Models} models from the checkpoint of {WrittenAt:o}, resuming at events offset {EventsOffset}, labels offset {LabelsOffset}",
+                    state.Partition, engine.Models.Count, checkpoint.WrittenAt, checkpoint.EventsOffset, checkpoint.LabelsOffset);
+            }
+        }
+        _labels?.IncrementalAssign(labels);
+        Stats.Partitions = _partitions.Count;
+        return start;
+    }
+
+    private void OnRevoked(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> revoked)
+    {
+        var states = revoked.Select(tp => _partitions.GetValueOrDefault(tp.Partition.Value)).OfType<PartitionState>().ToList();
+        if (states.Count == 0)
+        {
+            return;
+        }
+        if (_failed || _fatal is not null)
+        {
+            Drop(states.Select(s => s.Partition).ToList());
+            return;
+        }
+        // Finish what is in flight (records the merge can take now), make it durable, commit, give up.
+        ProcessReady(events);
+        CheckpointAndCommit(events, states);
+        Drop(states.Select(s => s.Partition).ToList());
+        Log.Information("Partitions {Partitions} revoked: checkpointed and committed", states.Select(s => s.Partition).ToArray());
+    }
+
+    private void OnLost(List<TopicPartitionOffset> lost)
+    {
+        // Another member may own them already: no checkpoint, no commit, just forget them.
+        var partitions = lost.Select(tp => tp.Partition.Value).Where(_partitions.ContainsKey).ToList();
+        Drop(partitions);
+        Log.Warning("Partitions {Partitions} lost (fell out of the group): dropped without committing", partitions.ToArray());
+    }
+
+    private void Drop(List<int> partitions)
+    {
+        if (partitions.Count == 0)
+        {
+            return;
+        }
+        foreach (int p in partitions)
+        {
+            _partitions.Remove(p);
+            Owned.TryRemove(p, out _);
+        }
+        if (_labels is not null && !_failed)
+        {
+            _labels.IncrementalUnassign(partitions.Select(p => new TopicPartition(_options.LabelsTopic!, p)).ToList());
+        }
+        Stats.Partitions = _partitions.Count;
+    }
+
+    private void CheckCoPartitioned(IProducer<byte[]?, byte[]> producer)
+    {
+        if (!HasLabels)
+        {
+            return;
+        }
+        using var admin = new DependentAdminClientBuilder(producer.Handle).Build();
+        int Count(string topic)
+        {
+            var metadata = admin.GetMetadata(topic, TimeSpan.FromSeconds(10));
+            var t = metadata.Topics.FirstOrDefault(x => x.Topic == topic);
+            return t is null || t.Error.IsError ? -1 : t.Partitions.Count;
+        }
+        int events = Count(_options.EventsTopic);
+        int labels = Count(_options.LabelsTopic!);
+        if (labels < 0)
+        {
+            throw new KafkaWorkerException($"labels topic '{_options.LabelsTopic}' does not exist; create it with the same number of partitions as '{_options.EventsTopic}' and key each label like its event");
+        }
+        if (events >= 0 && events != labels)
+        {
+            throw new KafkaWorkerException($"labels topic '{_options.LabelsTopic}' has {labels} partitions but events topic '{_options.EventsTopic}' has {events}: they must be co-partitioned (same count, labels keyed like their events)");
+        }
+    }
+
+    private void UpdateLag(IConsumer<byte[]?, byte[]> events)
+    {
+        long lag = 0;
+        foreach (var state in _partitions.Values)
+        {
+            var marks = events.GetWatermarkOffsets(new TopicPartition(_options.EventsTopic, state.Partition));
+            if (marks.High.Value >= 0 && state.EventsNext >= 0)
+            {
+                lag += Math.Max(0, marks.High.Value - state.EventsNext);
+            }
+        }
+        Stats.Lag = lag;
+    }
+
+    private void OnError(string client, Error error)
+    {
+        if (error.IsFatal)
+        {
+            Interlocked.CompareExchange(ref _fatal, $"fatal Kafka error in the {client}: {error.Reason} ({error.Code})", null);
+            return;
+        }
+        // librdkafka recovers from the rest by itself (brokers down, reconnects): tell the operator only.
+        Log.Warning("Kafka {Client}: {Reason} ({Code})", client, error.Reason, error.Code);
+    }
+
+    private static void OnLog(string client, LogMessage message)
+    {
+        var level = message.Level switch
+        {
+            SyslogLevel.Emergency or SyslogLevel.Alert or SyslogLevel.Critical or SyslogLevel.Error => Serilog.Events.LogEventLevel.Error,
+            SyslogLevel.Warning => Serilog.Events.LogEventLevel.Warning,
+            SyslogLevel.Notice or SyslogLevel.Info => Serilog.Events.LogEventLevel.Information,
+            _ => Serilog.Events.LogEventLevel.Debug,
+        };
+        Log.Write(level, "librdkafka {Client} {Facility}: {Message}", client, message.Facility, message.Message);
+    }
+
+    private void ThrowIfFatal()
+    {
+        string? fatal = Volatile.Read(ref _fatal) ?? _outputs?.DeliveryError;
+        if (fatal is not null)
+        {
+            throw new KafkaWorkerException(fatal);
+        }
+    }
+
+    private static IProducer<byte[]?, byte[]> Build(ProducerBuilder<byte[]?, byte[]> builder) => builder.Build();
+
+    private static IConsumer<byte[]?, byte[]> Build(ConsumerBuilder<byte[]?, byte[]> builder) => builder.Build();
+}
