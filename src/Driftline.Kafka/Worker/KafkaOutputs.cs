@@ -66,6 +66,7 @@ internal sealed class KafkaOutputs : IScoringSink
     {
         Log.Warning("Alert {Rule} {State}: {Message}", alert.Rule, alert.Raised ? "raised" : "cleared", RecordJson.Describe(alert));
         _stats.Alerts++;
+        _stats.AlertsActive += alert.Raised ? 1 : -1;
         if (_alerts is null)
         {
             return;

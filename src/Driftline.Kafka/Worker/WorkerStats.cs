@@ -26,6 +26,9 @@ internal sealed class WorkerStats
     /// <summary>Alerts raised or cleared.</summary>
     public long Alerts { get; set; }
 
+    /// <summary>Alert rules raised and not cleared, over the partitions' engines.</summary>
+    public long AlertsActive { get; set; }
+
     /// <summary>Times the producer's queue was full and the loop waited.</summary>
     public long ProduceWaits { get; set; }
 

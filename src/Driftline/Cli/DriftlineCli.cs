@@ -13,6 +13,7 @@ internal static class DriftlineCli
             new ReplayCommand(context).Build(),
             new DemoCommand(context).Build(),
             new CheckCommand(context).Build(),
+            new RunCommand(context).Build(),
         };
         var parsed = root.Parse(args);
         if (parsed.Errors.Count > 0)

@@ -11,7 +11,7 @@ namespace Driftline.Pipeline;
 /// source → parse + score/learn → write, three stages joined by bounded channels. Batches
 /// circulate through pools, so memory is fixed whatever the input size, and a slow disk
 /// slows the reader instead of filling memory. A failing stage completes its downstream
-/// channel with the exception, which surfaces from <see cref="RunAsync"/>.
+/// channel with the exception, which surfaces from <c>RunAsync</c>.
 /// </summary>
 internal sealed class ReplayPipeline
 {
@@ -42,7 +42,14 @@ internal sealed class ReplayPipeline
     public Action<ScoringEngine>? AfterBatch { get; init; }
 
     /// <summary>Runs the whole input through the engine into <paramref name="outputs"/>.</summary>
-    public async Task RunAsync(Stream input, ReplayOutputs outputs, CancellationToken cancellation)
+    public Task RunAsync(Stream input, ReplayOutputs outputs, CancellationToken cancellation)
+    {
+        ArgumentNullException.ThrowIfNull(outputs);
+        return RunAsync(input, outputs.Write, cancellation);
+    }
+
+    /// <summary>Runs the whole input through the engine, handing each result batch to <paramref name="write"/> (on the writer stage).</summary>
+    public async Task RunAsync(Stream input, Action<OutputBatch> write, CancellationToken cancellation)
     {
         var linePool = Pool<LineBatch>();
         var outputPool = Pool<OutputBatch>();
@@ -56,7 +63,7 @@ internal sealed class ReplayPipeline
         [
             Stage(() => LineReader.RunAsync(input, linePool.Reader, lines.Writer, token), stop),
             Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, results.Writer, token), stop),
-            Stage(() => WriteAsync(results.Reader, outputPool.Writer, outputs, token), stop),
+            Stage(() => WriteAsync(results.Reader, outputPool.Writer, write, token), stop),
         ];
         try
         {
@@ -149,13 +156,13 @@ internal sealed class ReplayPipeline
         result.DeadLetters.Add(new DeadLetter(lineNumber, reason, raw));
     }
 
-    private static async Task WriteAsync(ChannelReader<OutputBatch> input, ChannelWriter<OutputBatch> pool, ReplayOutputs outputs, CancellationToken cancellation)
+    private static async Task WriteAsync(ChannelReader<OutputBatch> input, ChannelWriter<OutputBatch> pool, Action<OutputBatch> write, CancellationToken cancellation)
     {
         while (await input.WaitToReadAsync(cancellation).ConfigureAwait(false))
         {
             while (input.TryRead(out var batch))
             {
-                outputs.Write(batch);
+                write(batch);
                 await pool.WriteAsync(batch, cancellation).ConfigureAwait(false);
             }
         }
