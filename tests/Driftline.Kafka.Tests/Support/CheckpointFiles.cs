@@ -11,5 +11,12 @@ internal static class CheckpointFiles
         return Enumerable.Range(0, MockCluster.Partitions).Select(p => store.Read(eventsTopic, p)).OfType<PartitionCheckpoint>().ToList();
     }
 
+    /// <summary>True when the checkpoints plus what the worker did since cover every event and label.</summary>
+    public static bool Done(string directory, string eventsTopic, int events, Driftline.Kafka.Worker.WorkerStats stats)
+    {
+        // A resumed worker counts only its own work; the engines' counters cover both runs.
+        return stats.Checkpoints > 0 && All(directory, eventsTopic).Sum(c => c.Snapshot.Counters.Labels) >= events && stats.Partitions == MockCluster.Partitions;
+    }
+
     public static string Id(string json) => System.Text.Json.JsonDocument.Parse(json).RootElement.GetProperty("id").GetString()!;
 }
