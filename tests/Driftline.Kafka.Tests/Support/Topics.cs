@@ -61,13 +61,18 @@ internal static class Topics
         var deadline = DateTime.UtcNow + limit;
         var quietSince = DateTime.UtcNow;
         // Once enough has arrived, keep reading until the topic is quiet, so extra copies show.
-        while (DateTime.UtcNow < deadline && !(until(values) && DateTime.UtcNow - quietSince > TimeSpan.FromMilliseconds(500)))
+        // The condition is checked only when no message came (it may be costly on big lists).
+        while (DateTime.UtcNow < deadline)
         {
             var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
             if (r is not null && !r.IsPartitionEOF)
             {
                 values.Add(Encoding.UTF8.GetString(r.Message.Value));
                 quietSince = DateTime.UtcNow;
+            }
+            else if (DateTime.UtcNow - quietSince > TimeSpan.FromMilliseconds(500) && until(values))
+            {
+                break;
             }
         }
         consumer.Close();
