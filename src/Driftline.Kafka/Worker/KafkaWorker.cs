@@ -492,7 +492,20 @@ internal sealed class KafkaWorker
         }
     }
 
-    private static IProducer<byte[]?, byte[]> Build(ProducerBuilder<byte[]?, byte[]> builder) => builder.Build();
+    private static IProducer<byte[]?, byte[]> Build(ProducerBuilder<byte[]?, byte[]> builder) => Build(builder.Build);
 
-    private static IConsumer<byte[]?, byte[]> Build(ConsumerBuilder<byte[]?, byte[]> builder) => builder.Build();
+    private static IConsumer<byte[]?, byte[]> Build(ConsumerBuilder<byte[]?, byte[]> builder) => Build(builder.Build);
+
+    private static T Build<T>(Func<T> build)
+    {
+        try
+        {
+            return build();
+        }
+        catch (Exception ex) when (ex is InvalidOperationException or ArgumentException)
+        {
+            // librdkafka refuses unknown or malformed settings here, before any connection.
+            throw new KafkaWorkerException($"Kafka client setting rejected: {ex.Message}", ex);
+        }
+    }
 }

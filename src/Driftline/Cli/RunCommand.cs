@@ -104,7 +104,8 @@ internal sealed class RunCommand(CommandContext context)
         }
         catch (KafkaWorkerException ex)
         {
-            Log.Error(ex, "Worker stopped: {Reason}", ex.Message);
+            // The operator gets one line; the cause chain is there for debug logging.
+            Log.Debug(ex, "Worker stopped: {Reason}", ex.Message);
             await context.Error.WriteLineAsync($"driftline: {ex.Message}").ConfigureAwait(false);
             return ExitCode.Kafka;
         }
@@ -118,7 +119,16 @@ internal sealed class RunCommand(CommandContext context)
         var outputs = new StdioOutputs(context.Out, context.Error);
         try
         {
-            await pipeline.RunAsync(input, outputs.Write, stop).ConfigureAwait(false);
+            var run = pipeline.RunAsync(input, outputs.Write, stop);
+            // A read of an idle terminal or pipe does not observe cancellation, so a signal
+            // ends the wait here instead; what was read is scored and written by then.
+            var stopped = Task.Delay(Timeout.Infinite, stop);
+            if (await Task.WhenAny(run, stopped).ConfigureAwait(false) == stopped)
+            {
+                Log.Information("Stopped by signal");
+                return ExitCode.Ok;
+            }
+            await run.ConfigureAwait(false);
         }
         catch (OperationCanceledException) when (stop.IsCancellationRequested)
         {
