@@ -43,6 +43,9 @@ internal sealed class KafkaWorker
     private string? _fatal;
     private bool _failed;
     private DateTime _lastCheckpoint = DateTime.UtcNow;
+    private Task? _writing;
+    private List<TopicPartitionOffset>? _toCommit;
+    private DateTime _writtenAt;
 
     /// <summary>Creates a worker; both option sets must have been validated.</summary>
     public KafkaWorker(KafkaOptions options, DriftlineOptions core, WorkerStats? stats = null)
@@ -99,7 +102,7 @@ internal sealed class KafkaWorker
                 events.Subscribe(_options.EventsTopic);
                 Stats.Running = true;
                 Loop(events, stop);
-                CheckpointAndCommit(events, _partitions.Values.ToList());
+                CheckpointAndCommit(events, _partitions.Values.ToList(), wait: true);
                 Drop(_partitions.Keys.ToList());
             }
             catch
@@ -153,11 +156,15 @@ internal sealed class KafkaWorker
             }
             int done = ProcessReady(events);
             idle = got == 0 && done == 0;
+            if (_writing is { IsCompleted: true })
+            {
+                FinishWrite(events);
+            }
             var now = DateTime.UtcNow;
             if (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
                 || (now - _lastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty)))
             {
-                CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList());
+                CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList(), wait: false);
                 UpdateLag(events);
             }
         }
@@ -287,35 +294,88 @@ internal sealed class KafkaWorker
         }
     }
 
-    /// <summary>Flush, then checkpoint, then commit: the order the commit rule needs.</summary>
-    private void CheckpointAndCommit(IConsumer<byte[]?, byte[]> events, List<PartitionState> states)
+    /// <summary>
+    /// Flush, then checkpoint, then commit: the order the commit rule needs. The snapshots are
+    /// taken here, on the loop thread; writing them (JSON, fsync, rename) runs on a pool thread
+    /// unless <paramref name="wait"/>, and the commit follows once the files are on disk
+    /// (<see cref="FinishWrite"/>), so the loop keeps scoring meanwhile.
+    /// </summary>
+    private void CheckpointAndCommit(IConsumer<byte[]?, byte[]> events, List<PartitionState> states, bool wait)
     {
-        var started = DateTime.UtcNow;
+        // One write in flight at a time, so two versions of a file never race.
+        FinishWrite(events);
+        var clock = System.Diagnostics.Stopwatch.StartNew();
         while (_producer!.Flush(TimeSpan.FromMilliseconds(500)) > 0)
         {
             ThrowIfFatal();
-            if (DateTime.UtcNow - started > FlushLimit)
+            if (clock.Elapsed > FlushLimit)
             {
                 throw new KafkaWorkerException($"the broker has not acknowledged the predictions within {FlushLimit.TotalSeconds:0} s; stopping without committing (a restart resumes from the last checkpoint)");
             }
         }
         ThrowIfFatal();
+        Stats.LastFlushMs = clock.Elapsed.TotalMilliseconds;
         var now = DateTime.UtcNow;
+        var checkpoints = new List<PartitionCheckpoint>();
         var commits = new List<TopicPartitionOffset>();
         foreach (var state in states.Where(s => s.Dirty))
         {
-            _store.Write(state.ToCheckpoint(_options.EventsTopic, _options.LabelsTopic, now));
+            checkpoints.Add(state.ToCheckpoint(_options.EventsTopic, _options.LabelsTopic, now));
             state.CheckpointedEvents = state.EventsNext;
             state.CheckpointedLabels = state.LabelsNext;
             state.LabelsSinceCheckpoint = 0;
-            Stats.Checkpoints++;
             if (state.EventsNext >= 0)
             {
                 commits.Add(new TopicPartitionOffset(_options.EventsTopic, state.Partition, state.EventsNext));
             }
         }
         _lastCheckpoint = now;
-        Stats.LastCheckpointAt = now;
+        Stats.LastCheckpointMs = clock.Elapsed.TotalMilliseconds;
+        if (checkpoints.Count == 0)
+        {
+            return;
+        }
+        _writing = wait ? null : Task.Run(() => WriteAll(checkpoints));
+        _toCommit = commits;
+        _writtenAt = now;
+        if (wait)
+        {
+            WriteAll(checkpoints);
+            FinishWrite(events);
+        }
+    }
+
+    private void WriteAll(List<PartitionCheckpoint> checkpoints)
+    {
+        foreach (var checkpoint in checkpoints)
+        {
+            _store.Write(checkpoint);
+        }
+    }
+
+    /// <summary>Waits for the checkpoint write in flight, if any, then commits the offsets it makes safe.</summary>
+    private void FinishWrite(IConsumer<byte[]?, byte[]> events)
+    {
+        if (_writing is { } writing)
+        {
+            _writing = null;
+            try
+            {
+                writing.GetAwaiter().GetResult();
+            }
+            catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+            {
+                _toCommit = null;
+                throw new KafkaWorkerException($"cannot write a checkpoint in '{_store.Directory}': {ex.Message}", ex);
+            }
+        }
+        if (_toCommit is not { } commits)
+        {
+            return;
+        }
+        _toCommit = null;
+        Stats.Checkpoints += commits.Count;
+        Stats.LastCheckpointAt = _writtenAt;
         if (commits.Count == 0)
         {
             return;
@@ -390,7 +450,7 @@ internal sealed class KafkaWorker
         }
         // Finish what is in flight (records the merge can take now), make it durable, commit, give up.
         ProcessReady(events);
-        CheckpointAndCommit(events, states);
+        CheckpointAndCommit(events, states, wait: true);
         Drop(states.Select(s => s.Partition).ToList());
         Log.Information("Partitions {Partitions} revoked: checkpointed and committed", states.Select(s => s.Partition).ToArray());
     }

@@ -38,6 +38,12 @@ internal sealed class WorkerStats
     /// <summary>When the last checkpoint was written (UTC), or MinValue before the first.</summary>
     public DateTime LastCheckpointAt { get; set; } = DateTime.MinValue;
 
+    /// <summary>How long the last checkpoint held the loop, flush included, in milliseconds.</summary>
+    public double LastCheckpointMs { get; set; }
+
+    /// <summary>How long the producer flush of the last checkpoint took, in milliseconds.</summary>
+    public double LastFlushMs { get; set; }
+
     /// <summary>Partitions owned now.</summary>
     public int Partitions { get; set; }
 
