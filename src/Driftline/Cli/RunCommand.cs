@@ -6,7 +6,6 @@ using Driftline.Kafka.Options;
 using Driftline.Kafka.Worker;
 using Driftline.Output;
 using Driftline.Pipeline;
-using Microsoft.Extensions.Configuration;
 using Serilog;
 using Serilog.Formatting.Compact;
 
@@ -57,24 +56,12 @@ internal sealed class RunCommand(CommandContext context)
     /// <summary>Runs the worker; returns the exit code. <paramref name="overrides"/> are Kafka options from the command line (null = not given).</summary>
     public async Task<int> RunAsync(string? configPath, IReadOnlyDictionary<string, string?> overrides, CancellationToken cancellation)
     {
-        var root = ConfigLoader.Build(configPath, context.Environment, out var fileError);
-        if (root is null)
-        {
-            return ConfigErrors.Report(context.Error, configPath, [fileError!]);
-        }
-        var errors = new List<OptionError>();
-        var core = ConfigLoader.Bind(root, out var coreErrors);
-        errors.AddRange(coreErrors);
-        var kafka = BindSection<KafkaOptions>(root, "Kafka", errors);
-        var worker = BindSection<WorkerOptions>(root, "Worker", errors);
-        var overridden = new ConfigurationBuilder().AddInMemoryCollection(overrides.Where(kv => kv.Value is not null)).Build();
-        overridden.Bind(kafka);
-        errors.AddRange(kafka.Validate());
-        errors.AddRange(worker.Validate());
-        if (errors.Count > 0 || core is null)
+        var settings = RunSettings.Load(configPath, context.Environment, overrides, out var errors);
+        if (settings is null)
         {
             return ConfigErrors.Report(context.Error, configPath, errors);
         }
+        var (core, kafka, worker) = settings;
         if (worker.LogFormat == "json")
         {
             Log.Logger = new LoggerConfiguration().WriteTo.Console(new CompactJsonFormatter(), standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
@@ -143,19 +130,5 @@ internal sealed class RunCommand(CommandContext context)
         Log.Information("Input ended: {Events} events scored, {Labels} labels ({Late} late), {DeadLetters} dead letters, {Alerts} alerts",
             c.Events, c.Labels, c.LateLabels, pipeline.DeadLetters, outputs.Alerts);
         return ExitCode.Ok;
-    }
-
-    private static T BindSection<T>(IConfiguration root, string section, List<OptionError> errors) where T : new()
-    {
-        var options = new T();
-        try
-        {
-            root.GetSection(section).Bind(options, o => o.ErrorOnUnknownConfiguration = true);
-        }
-        catch (InvalidOperationException ex)
-        {
-            errors.Add(new OptionError(section, ex.InnerException is null ? ex.Message : $"{ex.Message} ({ex.InnerException.Message})", "Remove or correct it; the options of the section are listed in docs and `driftline run --help`"));
-        }
-        return options;
     }
 }
