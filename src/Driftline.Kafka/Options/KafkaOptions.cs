@@ -51,6 +51,13 @@ internal sealed class KafkaOptions
     public int MaxBufferedPerPartition { get; set; } = 20_000;
 
     /// <summary>
+    /// Longest a label later than every event seen on its partition waits for the events
+    /// side to catch up (its event may be written but not fetched yet) while no new event
+    /// arrives. Default 2 seconds.
+    /// </summary>
+    public TimeSpan LabelHold { get; set; } = TimeSpan.FromSeconds(2);
+
+    /// <summary>
     /// Any other librdkafka setting, passed through as given (security.protocol, sasl.*,
     /// ssl.*, timeouts). Values whose name holds password, secret or sasl.jaas are never logged.
     /// <c>enable.auto.commit</c> and <c>enable.auto.offset.store</c> are forced off.
@@ -95,6 +102,10 @@ internal sealed class KafkaOptions
         if (CheckpointEvery <= TimeSpan.Zero)
         {
             errors.Add(new("Kafka:CheckpointEvery", $"{CheckpointEvery} is not a positive duration", "Write it as hours:minutes:seconds, e.g. \"00:00:10\""));
+        }
+        if (LabelHold < TimeSpan.Zero || LabelHold > TimeSpan.FromMinutes(10))
+        {
+            errors.Add(new("Kafka:LabelHold", $"{LabelHold} is outside 0–10 minutes", "Use a few seconds, e.g. \"00:00:02\""));
         }
         if (MaxBufferedPerPartition < 100)
         {

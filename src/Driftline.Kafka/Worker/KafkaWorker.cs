@@ -194,6 +194,10 @@ internal sealed class KafkaWorker
                 }
                 else
                 {
+                    if (!state.EventsAtEnd)
+                    {
+                        state.EventsAtEndSince = Environment.TickCount64;
+                    }
                     state.EventsAtEnd = true;
                     state.EventsNext = next == PartitionState.Unknown && state.Events.Count == 0 ? result.Offset.Value : next;
                 }
@@ -223,6 +227,7 @@ internal sealed class KafkaWorker
             else
             {
                 state.EventsAtEnd = false;
+                state.EventsWatermarkMs = Math.Max(state.EventsWatermarkMs, result.Message.Timestamp.UnixTimestampMs);
                 Stats.EventsIn++;
             }
             if (queue.Count >= _options.MaxBufferedPerPartition)
@@ -245,10 +250,12 @@ internal sealed class KafkaWorker
     private int ProcessReady(IConsumer<byte[]?, byte[]> events)
     {
         int done = 0;
+        long now = Environment.TickCount64;
+        long hold = (long)_options.LabelHold.TotalMilliseconds;
         foreach (var state in _partitions.Values)
         {
             int models = state.Engine.Models.Count;
-            while (state.TryTakeNext(out var record, out bool fromLabels))
+            while (state.TryTakeNext(now, hold, out var record, out bool fromLabels))
             {
                 string topic = fromLabels ? _options.LabelsTopic! : _options.EventsTopic;
                 if (_processor!.Process(state.Engine, record, topic, state.Partition))

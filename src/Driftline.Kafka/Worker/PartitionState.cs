@@ -13,8 +13,9 @@ namespace Driftline.Kafka.Worker;
 /// taken only when the other side has a record queued (so nothing earlier can still come)
 /// or has reached its end; that makes the order a function of the data, not of fetch
 /// timing, whenever the data is already there, so a restart replays the same order. A label
-/// whose timestamp is earlier than its event's (producer clocks apart) finds no prediction
-/// and is dead-lettered as unknown.
+/// later than every event seen also waits (a bounded time) for the events side to pass its
+/// timestamp. A label stamped earlier than its event (producer clocks apart by more than the
+/// gap between them) still finds no prediction and is dead-lettered as unknown.
 /// </remarks>
 internal sealed class PartitionState
 {
@@ -86,16 +87,26 @@ internal sealed class PartitionState
     /// <summary>True when records were processed since the last checkpoint.</summary>
     public bool Dirty => EventsNext != CheckpointedEvents || LabelsNext != CheckpointedLabels;
 
+    /// <summary>Latest message timestamp of the events queued so far (ms), the events side's watermark.</summary>
+    public long EventsWatermarkMs { get; set; } = long.MinValue;
+
+    /// <summary>Since when (<see cref="Environment.TickCount64"/>) the events side has been at its end.</summary>
+    public long EventsAtEndSince { get; set; }
+
     /// <summary>
     /// Takes the next record in merged order, or returns false when the merge must wait for
-    /// more input. <paramref name="fromLabels"/> tells which partition it came from.
+    /// more input. <paramref name="fromLabels"/> tells which partition it came from. A label
+    /// later than every event seen waits up to <paramref name="labelHoldMs"/> of quiet on the
+    /// events side: its event may be in the log but not fetched yet (the partition's end is
+    /// reported before it arrives), and joining it now would find no prediction.
     /// </summary>
-    public bool TryTakeNext(out BufferedRecord record, out bool fromLabels)
+    public bool TryTakeNext(long nowTicks, long labelHoldMs, out BufferedRecord record, out bool fromLabels)
     {
         bool haveEvent = Events.Count > 0;
         bool haveLabel = Labels.Count > 0;
         if (!HasLabels || (haveEvent && !haveLabel && LabelsAtEnd))
         {
+            // Predictions never wait for labels that are not there.
             fromLabels = false;
             return Events.TryDequeue(out record);
         }
@@ -105,7 +116,7 @@ internal sealed class PartitionState
             record = fromLabels ? Labels.Dequeue() : Events.Dequeue();
             return true;
         }
-        if (haveLabel && EventsAtEnd)
+        if (haveLabel && EventsAtEnd && (Labels.Peek().TimestampMs <= EventsWatermarkMs || nowTicks - EventsAtEndSince >= labelHoldMs))
         {
             fromLabels = true;
             record = Labels.Dequeue();

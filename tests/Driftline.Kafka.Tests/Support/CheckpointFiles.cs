@@ -18,5 +18,12 @@ internal static class CheckpointFiles
         return stats.Checkpoints > 0 && All(directory, eventsTopic).Sum(c => c.Snapshot.Counters.Labels) >= events && stats.Partitions == MockCluster.Partitions;
     }
 
+    public static string SnapshotJson(PartitionCheckpoint checkpoint)
+    {
+        using var stream = new MemoryStream();
+        Driftline.Core.Snapshots.SnapshotCodec.Write(checkpoint.Snapshot, stream);
+        return System.Text.Encoding.UTF8.GetString(stream.ToArray());
+    }
+
     public static string Id(string json) => System.Text.Json.JsonDocument.Parse(json).RootElement.GetProperty("id").GetString()!;
 }

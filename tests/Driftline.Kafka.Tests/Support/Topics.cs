@@ -39,7 +39,8 @@ internal static class Topics
 
     public static void ProduceStream(string bootstrap, string eventsTopic, string labelsTopic, IEnumerable<TestRecord> records)
     {
-        var list = records.ToList();
+        // Each topic in time order, as events and their outcomes happen.
+        var list = records.OrderBy(r => r.TimestampMs).ToList();
         Produce(bootstrap, eventsTopic, list.Where(r => !r.IsLabel).Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
         Produce(bootstrap, labelsTopic, list.Where(r => r.IsLabel).Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
     }

@@ -46,6 +46,7 @@ internal sealed class WorkerHost : IDisposable
         CheckpointDir = checkpoints,
         CheckpointEveryLabels = 500,
         CheckpointEvery = TimeSpan.FromSeconds(2),
+        LabelHold = TimeSpan.FromMilliseconds(200),
         Client = new() { ["group.protocol"] = "consumer" },
     };
 
