@@ -59,13 +59,12 @@ public sealed class PartitionStateTests
         Assert.True(state.TryTakeNext(0, 1_000, out _, out _));
         state.EventsWatermarkMs = 100;
         state.EventsAtEnd = true;
-        state.EventsAtEndSince = 0;
-        state.Labels.Enqueue(At(0, 50));
-        state.Labels.Enqueue(At(1, 900));
-        Assert.True(state.TryTakeNext(10, 1_000, out var early, out _));
+        state.Labels.Enqueue(At(0, 50) with { QueuedAt = 5_000 });
+        state.Labels.Enqueue(At(1, 900) with { QueuedAt = 5_000 });
+        Assert.True(state.TryTakeNext(5_010, 1_000, out var early, out _));
         Assert.Equal(0, early.Offset); // at or before the watermark: its event has been seen
-        Assert.False(state.TryTakeNext(999, 1_000, out _, out _)); // its event may still be on the way
-        Assert.True(state.TryTakeNext(1_000, 1_000, out var late, out bool fromLabels));
+        Assert.False(state.TryTakeNext(5_999, 1_000, out _, out _)); // its event may still be on the way
+        Assert.True(state.TryTakeNext(6_000, 1_000, out var late, out bool fromLabels));
         Assert.True(fromLabels);
         Assert.Equal(1, late.Offset);
     }

@@ -16,10 +16,24 @@ public sealed class WorkerGroupTests
         var options = WorkerHost.OptionsFor(cluster.Bootstrap, "grp", dir.Path);
         using var a = new WorkerHost(options);
         using var b = new WorkerHost(options);
+        // The group hands partitions over in steps: wait until the split has held for a second.
         var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(30);
-        while (a.Worker.Owned.Count + b.Worker.Owned.Count != MockCluster.Partitions || a.Worker.Owned.IsEmpty || b.Worker.Owned.IsEmpty)
+        string split = "";
+        var since = DateTime.UtcNow;
+        while (true)
         {
-            Assert.True(DateTime.UtcNow < deadline, $"partitions not split: a owns {a.Worker.Owned.Count}, b owns {b.Worker.Owned.Count}");
+            string now = string.Join(",", a.Worker.Owned.Keys.Order()) + "|" + string.Join(",", b.Worker.Owned.Keys.Order());
+            bool complete = a.Worker.Owned.Count + b.Worker.Owned.Count == MockCluster.Partitions && !a.Worker.Owned.IsEmpty && !b.Worker.Owned.IsEmpty;
+            if (now != split)
+            {
+                split = now;
+                since = DateTime.UtcNow;
+            }
+            else if (complete && DateTime.UtcNow - since > TimeSpan.FromSeconds(1))
+            {
+                break;
+            }
+            Assert.True(DateTime.UtcNow < deadline, $"partitions not split: {split}");
             Thread.Sleep(20);
         }
 

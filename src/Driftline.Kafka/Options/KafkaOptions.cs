@@ -51,9 +51,9 @@ internal sealed class KafkaOptions
     public int MaxBufferedPerPartition { get; set; } = 20_000;
 
     /// <summary>
-    /// Longest a label later than every event seen on its partition waits for the events
-    /// side to catch up (its event may be written but not fetched yet) while no new event
-    /// arrives. Default 2 seconds.
+    /// Longest a label later than every event seen on its partition waits, from when it was
+    /// consumed, for the events side to catch up (its event may be written but not fetched
+    /// yet). Labels whose events have been seen never wait. Default 2 seconds.
     /// </summary>
     public TimeSpan LabelHold { get; set; } = TimeSpan.FromSeconds(2);
 

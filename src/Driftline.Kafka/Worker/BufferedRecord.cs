@@ -5,4 +5,5 @@ namespace Driftline.Kafka.Worker;
 /// <param name="TimestampMs">The message timestamp (ms since the Unix epoch): the merge's order.</param>
 /// <param name="Key">The message key, kept for the dead letter.</param>
 /// <param name="Value">The record's bytes (JSON).</param>
-internal readonly record struct BufferedRecord(long Offset, long TimestampMs, byte[]? Key, byte[] Value);
+/// <param name="QueuedAt">When it was queued (<see cref="Environment.TickCount64"/>), for the label hold.</param>
+internal readonly record struct BufferedRecord(long Offset, long TimestampMs, byte[]? Key, byte[] Value, long QueuedAt = 0);

@@ -61,7 +61,7 @@ internal sealed class KafkaWorker
     /// <summary>Running counts.</summary>
     public WorkerStats Stats { get; }
 
-    /// <summary>Each model key this worker has created a model for, with its partition (for tests and operators).</summary>
+    /// <summary>The model keys of the partitions owned now, each with its partition (for tests and operators).</summary>
     public ConcurrentDictionary<string, int> ModelKeys { get; } = new(StringComparer.Ordinal);
 
     /// <summary>Partitions owned now.</summary>
@@ -194,10 +194,6 @@ internal sealed class KafkaWorker
                 }
                 else
                 {
-                    if (!state.EventsAtEnd)
-                    {
-                        state.EventsAtEndSince = Environment.TickCount64;
-                    }
                     state.EventsAtEnd = true;
                     state.EventsNext = next == PartitionState.Unknown && state.Events.Count == 0 ? result.Offset.Value : next;
                 }
@@ -218,7 +214,7 @@ internal sealed class KafkaWorker
             {
                 state.EventsQueuedUpTo = result.Offset.Value + 1;
             }
-            queue.Enqueue(new BufferedRecord(result.Offset.Value, result.Message.Timestamp.UnixTimestampMs, result.Message.Key, result.Message.Value ?? []));
+            queue.Enqueue(new BufferedRecord(result.Offset.Value, result.Message.Timestamp.UnixTimestampMs, result.Message.Key, result.Message.Value ?? [], Environment.TickCount64));
             if (fromLabels)
             {
                 state.LabelsAtEnd = false;
@@ -480,6 +476,10 @@ internal sealed class KafkaWorker
         {
             _partitions.Remove(p);
             Owned.TryRemove(p, out _);
+            foreach (var key in ModelKeys.Where(kv => kv.Value == p).Select(kv => kv.Key).ToList())
+            {
+                ModelKeys.TryRemove(key, out _);
+            }
         }
         if (_labels is not null && !_failed)
         {

@@ -90,15 +90,13 @@ internal sealed class PartitionState
     /// <summary>Latest message timestamp of the events queued so far (ms), the events side's watermark.</summary>
     public long EventsWatermarkMs { get; set; } = long.MinValue;
 
-    /// <summary>Since when (<see cref="Environment.TickCount64"/>) the events side has been at its end.</summary>
-    public long EventsAtEndSince { get; set; }
-
     /// <summary>
     /// Takes the next record in merged order, or returns false when the merge must wait for
     /// more input. <paramref name="fromLabels"/> tells which partition it came from. A label
-    /// later than every event seen waits up to <paramref name="labelHoldMs"/> of quiet on the
-    /// events side: its event may be in the log but not fetched yet (the partition's end is
-    /// reported before it arrives), and joining it now would find no prediction.
+    /// later than every event seen waits up to <paramref name="labelHoldMs"/> after it was
+    /// queued for the events side to pass it: its event may be in the log but not fetched yet
+    /// (the end reported for the partition can be older than the label), and joining it now
+    /// would find no prediction.
     /// </summary>
     public bool TryTakeNext(long nowTicks, long labelHoldMs, out BufferedRecord record, out bool fromLabels)
     {
@@ -116,7 +114,7 @@ internal sealed class PartitionState
             record = fromLabels ? Labels.Dequeue() : Events.Dequeue();
             return true;
         }
-        if (haveLabel && EventsAtEnd && (Labels.Peek().TimestampMs <= EventsWatermarkMs || nowTicks - EventsAtEndSince >= labelHoldMs))
+        if (haveLabel && EventsAtEnd && (Labels.Peek().TimestampMs <= EventsWatermarkMs || nowTicks - Labels.Peek().QueuedAt >= labelHoldMs))
         {
             fromLabels = true;
             record = Labels.Dequeue();

@@ -1,6 +1,7 @@
 using Driftline.Core.Options;
 using Driftline.Kafka.Options;
 using Driftline.Kafka.Worker;
+using Serilog;
 
 namespace Driftline.Kafka.Tests.Support;
 
@@ -9,6 +10,15 @@ internal sealed class WorkerHost : IDisposable
 {
     private readonly CancellationTokenSource _stop = new();
     private readonly Thread _thread;
+
+    static WorkerHost()
+    {
+        // DRIFTLINE_TEST_LOG=1 shows the workers' logs (assignments, checkpoints) when a test needs explaining.
+        if (Environment.GetEnvironmentVariable("DRIFTLINE_TEST_LOG") == "1")
+        {
+            Serilog.Log.Logger = new Serilog.LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
+        }
+    }
 
     public WorkerHost(KafkaOptions options, DriftlineOptions? core = null)
     {
@@ -46,8 +56,9 @@ internal sealed class WorkerHost : IDisposable
         CheckpointDir = checkpoints,
         CheckpointEveryLabels = 500,
         CheckpointEvery = TimeSpan.FromSeconds(2),
-        LabelHold = TimeSpan.FromMilliseconds(200),
-        Client = new() { ["group.protocol"] = "consumer" },
+        // The mock answers an idle fetch only at fetch.wait.max.ms; keep that well under the label hold.
+        LabelHold = TimeSpan.FromMilliseconds(500),
+        Client = new() { ["group.protocol"] = "consumer", ["fetch.wait.max.ms"] = "50" },
     };
 
     /// <summary>Waits until <paramref name="condition"/> holds or the time is up; fails the test on a worker failure.</summary>
