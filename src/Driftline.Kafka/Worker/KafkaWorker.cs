@@ -30,7 +30,6 @@ internal sealed class KafkaWorker
 {
     private const int MaxPull = 2_000;
     private static readonly TimeSpan IdleWait = TimeSpan.FromMilliseconds(50);
-    private static readonly TimeSpan FlushLimit = TimeSpan.FromSeconds(60);
 
     private readonly KafkaOptions _options;
     private readonly DriftlineOptions _core;
@@ -42,10 +41,7 @@ internal sealed class KafkaWorker
     private IConsumer<byte[]?, byte[]>? _labels;
     private string? _fatal;
     private bool _failed;
-    private DateTime _lastCheckpoint = DateTime.UtcNow;
-    private Task? _writing;
-    private List<TopicPartitionOffset>? _toCommit;
-    private DateTime _writtenAt;
+    private CheckpointCommitter? _committer;
 
     /// <summary>Creates a worker; both option sets must have been validated.</summary>
     public KafkaWorker(KafkaOptions options, DriftlineOptions core, WorkerStats? stats = null)
@@ -82,18 +78,19 @@ internal sealed class KafkaWorker
         {
             using var producer = Build(new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(_options))
                 .SetErrorHandler((_, e) => OnError("producer", e))
-                .SetLogHandler((_, m) => OnLog("producer", m)));
+                .SetLogHandler((_, m) => ClientLog.Write("producer", m)));
             _producer = producer;
             _outputs = new KafkaOutputs(producer, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, Stats);
             _processor = new RecordProcessor(_outputs, Stats);
-            CheckCoPartitioned(producer);
+            _committer = new CheckpointCommitter(_options, _store, Stats, producer, ThrowIfFatal);
+            TopicChecks.RequireCoPartitioned(producer, _options);
             using var labels = HasLabels ? Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.LabelsConsumer(_options))
                 .SetErrorHandler((_, e) => OnError("labels consumer", e))
-                .SetLogHandler((_, m) => OnLog("labels consumer", m))) : null;
+                .SetLogHandler((_, m) => ClientLog.Write("labels consumer", m))) : null;
             _labels = labels;
             using var events = Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.EventsConsumer(_options))
                 .SetErrorHandler((_, e) => OnError("events consumer", e))
-                .SetLogHandler((_, m) => OnLog("events consumer", m))
+                .SetLogHandler((_, m) => ClientLog.Write("events consumer", m))
                 .SetPartitionsAssignedHandler((_, assigned) => OnAssigned(assigned))
                 .SetPartitionsRevokedHandler((c, revoked) => OnRevoked(c, revoked))
                 .SetPartitionsLostHandler((_, lost) => OnLost(lost)));
@@ -102,7 +99,7 @@ internal sealed class KafkaWorker
                 events.Subscribe(_options.EventsTopic);
                 Stats.Running = true;
                 Loop(events, stop);
-                CheckpointAndCommit(events, _partitions.Values.ToList(), wait: true);
+                _committer!.CheckpointAndCommit(events, _partitions.Values.ToList(), wait: true);
                 Drop(_partitions.Keys.ToList());
             }
             catch
@@ -156,16 +153,16 @@ internal sealed class KafkaWorker
             }
             int done = ProcessReady(events);
             idle = got == 0 && done == 0;
-            if (_writing is { IsCompleted: true })
+            if (_committer!.WriteCompleted)
             {
-                FinishWrite(events);
+                _committer.FinishWrite(events);
             }
             var now = DateTime.UtcNow;
             if (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
-                || (now - _lastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty)))
+                || (now - _committer.LastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty)))
             {
-                CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList(), wait: false);
-                UpdateLag(events);
+                _committer!.CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList(), wait: false);
+                Stats.Lag = TopicChecks.Lag(events, _options.EventsTopic, _partitions.Values);
             }
         }
     }
@@ -297,104 +294,6 @@ internal sealed class KafkaWorker
         }
     }
 
-    /// <summary>
-    /// Flush, then checkpoint, then commit: the order the commit rule needs. The snapshots are
-    /// taken here, on the loop thread; writing them (JSON, fsync, rename) runs on a pool thread
-    /// unless <paramref name="wait"/>, and the commit follows once the files are on disk
-    /// (<see cref="FinishWrite"/>), so the loop keeps scoring meanwhile.
-    /// </summary>
-    private void CheckpointAndCommit(IConsumer<byte[]?, byte[]> events, List<PartitionState> states, bool wait)
-    {
-        // One write in flight at a time, so two versions of a file never race.
-        FinishWrite(events);
-        var clock = System.Diagnostics.Stopwatch.StartNew();
-        while (_producer!.Flush(TimeSpan.FromMilliseconds(500)) > 0)
-        {
-            ThrowIfFatal();
-            if (clock.Elapsed > FlushLimit)
-            {
-                throw new KafkaWorkerException($"the broker has not acknowledged the predictions within {FlushLimit.TotalSeconds:0} s; stopping without committing (a restart resumes from the last checkpoint)");
-            }
-        }
-        ThrowIfFatal();
-        Stats.LastFlushMs = clock.Elapsed.TotalMilliseconds;
-        var now = DateTime.UtcNow;
-        var checkpoints = new List<PartitionCheckpoint>();
-        var commits = new List<TopicPartitionOffset>();
-        foreach (var state in states.Where(s => s.Dirty))
-        {
-            checkpoints.Add(state.ToCheckpoint(_options.EventsTopic, _options.LabelsTopic, now));
-            state.CheckpointedEvents = state.EventsNext;
-            state.CheckpointedLabels = state.LabelsNext;
-            state.LabelsSinceCheckpoint = 0;
-            if (state.EventsNext >= 0)
-            {
-                commits.Add(new TopicPartitionOffset(_options.EventsTopic, state.Partition, state.EventsNext));
-            }
-        }
-        _lastCheckpoint = now;
-        Stats.LastCheckpointMs = clock.Elapsed.TotalMilliseconds;
-        if (checkpoints.Count == 0)
-        {
-            return;
-        }
-        _writing = wait ? null : Task.Run(() => WriteAll(checkpoints));
-        _toCommit = commits;
-        _writtenAt = now;
-        if (wait)
-        {
-            WriteAll(checkpoints);
-            FinishWrite(events);
-        }
-    }
-
-    private void WriteAll(List<PartitionCheckpoint> checkpoints)
-    {
-        foreach (var checkpoint in checkpoints)
-        {
-            _store.Write(checkpoint);
-        }
-    }
-
-    /// <summary>Waits for the checkpoint write in flight, if any, then commits the offsets it makes safe.</summary>
-    private void FinishWrite(IConsumer<byte[]?, byte[]> events)
-    {
-        if (_writing is { } writing)
-        {
-            _writing = null;
-            try
-            {
-                writing.GetAwaiter().GetResult();
-            }
-            catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
-            {
-                _toCommit = null;
-                throw new KafkaWorkerException($"cannot write a checkpoint in '{_store.Directory}': {ex.Message}", ex);
-            }
-        }
-        if (_toCommit is not { } commits)
-        {
-            return;
-        }
-        _toCommit = null;
-        Stats.Checkpoints += commits.Count;
-        Stats.LastCheckpointAt = _writtenAt;
-        if (commits.Count == 0)
-        {
-            return;
-        }
-        try
-        {
-            events.Commit(commits);
-        }
-        catch (KafkaException ex)
-        {
-            // The checkpoint, not the committed offset, is where a restart resumes; the commit
-            // shows lag to operators and is retried with the next checkpoint.
-            Log.Warning("Offset commit failed ({Reason}); the checkpoints hold the positions", ex.Error.Reason);
-        }
-    }
-
     private List<TopicPartitionOffset> OnAssigned(List<TopicPartition> assigned)
     {
         var start = new List<TopicPartitionOffset>();
@@ -453,7 +352,7 @@ internal sealed class KafkaWorker
         }
         // Finish what is in flight (records the merge can take now), make it durable, commit, give up.
         ProcessReady(events);
-        CheckpointAndCommit(events, states, wait: true);
+        _committer!.CheckpointAndCommit(events, states, wait: true);
         Drop(states.Select(s => s.Partition).ToList());
         Log.Information("Partitions {Partitions} revoked: checkpointed and committed", states.Select(s => s.Partition).ToArray());
     }
@@ -488,45 +387,6 @@ internal sealed class KafkaWorker
         Stats.Partitions = _partitions.Count;
     }
 
-    private void CheckCoPartitioned(IProducer<byte[]?, byte[]> producer)
-    {
-        if (!HasLabels)
-        {
-            return;
-        }
-        using var admin = new DependentAdminClientBuilder(producer.Handle).Build();
-        int Count(string topic)
-        {
-            var metadata = admin.GetMetadata(topic, TimeSpan.FromSeconds(10));
-            var t = metadata.Topics.FirstOrDefault(x => x.Topic == topic);
-            return t is null || t.Error.IsError ? -1 : t.Partitions.Count;
-        }
-        int events = Count(_options.EventsTopic);
-        int labels = Count(_options.LabelsTopic!);
-        if (labels < 0)
-        {
-            throw new KafkaWorkerException($"labels topic '{_options.LabelsTopic}' does not exist; create it with the same number of partitions as '{_options.EventsTopic}' and key each label like its event");
-        }
-        if (events >= 0 && events != labels)
-        {
-            throw new KafkaWorkerException($"labels topic '{_options.LabelsTopic}' has {labels} partitions but events topic '{_options.EventsTopic}' has {events}: they must be co-partitioned (same count, labels keyed like their events)");
-        }
-    }
-
-    private void UpdateLag(IConsumer<byte[]?, byte[]> events)
-    {
-        long lag = 0;
-        foreach (var state in _partitions.Values)
-        {
-            var marks = events.GetWatermarkOffsets(new TopicPartition(_options.EventsTopic, state.Partition));
-            if (marks.High.Value >= 0 && state.EventsNext >= 0)
-            {
-                lag += Math.Max(0, marks.High.Value - state.EventsNext);
-            }
-        }
-        Stats.Lag = lag;
-    }
-
     private void OnError(string client, Error error)
     {
         if (error.IsFatal)
@@ -536,18 +396,6 @@ internal sealed class KafkaWorker
         }
         // librdkafka recovers from the rest by itself (brokers down, reconnects): tell the operator only.
         Log.Warning("Kafka {Client}: {Reason} ({Code})", client, error.Reason, error.Code);
-    }
-
-    private static void OnLog(string client, LogMessage message)
-    {
-        var level = message.Level switch
-        {
-            SyslogLevel.Emergency or SyslogLevel.Alert or SyslogLevel.Critical or SyslogLevel.Error => Serilog.Events.LogEventLevel.Error,
-            SyslogLevel.Warning => Serilog.Events.LogEventLevel.Warning,
-            SyslogLevel.Notice or SyslogLevel.Info => Serilog.Events.LogEventLevel.Information,
-            _ => Serilog.Events.LogEventLevel.Debug,
-        };
-        Log.Write(level, "librdkafka {Client} {Facility}: {Message}", client, message.Facility, message.Message);
     }
 
     private void ThrowIfFatal()
