@@ -111,8 +111,11 @@ internal sealed class KafkaWorker
             {
                 Stats.Running = false;
                 // Close leaves the group now (a rebalance in milliseconds, not a session timeout).
-                events.Close();
-                labels?.Close();
+                Close(events, "events consumer");
+                if (labels is not null)
+                {
+                    Close(labels, "labels consumer");
+                }
             }
             Log.Information("Worker left group {Group}: {Events} events in, {Predictions} predictions, {Labels} labels joined, {DeadLetters} dead letters, {Checkpoints} checkpoints",
                 _options.Group, Stats.EventsIn, Stats.Predictions, Stats.LabelsJoined, Stats.DeadLetters, Stats.Checkpoints);
@@ -396,6 +399,19 @@ internal sealed class KafkaWorker
         }
         // librdkafka recovers from the rest by itself (brokers down, reconnects): tell the operator only.
         Log.Warning("Kafka {Client}: {Reason} ({Code})", client, error.Reason, error.Code);
+    }
+
+    private static void Close(IConsumer<byte[]?, byte[]> consumer, string client)
+    {
+        try
+        {
+            consumer.Close();
+        }
+        catch (KafkaException ex)
+        {
+            // Leaving late is harmless (the group notices at the session timeout) and must not hide why the loop ended.
+            Log.Warning("Closing the {Client} failed: {Reason}", client, ex.Error.Reason);
+        }
     }
 
     private void ThrowIfFatal()
