@@ -49,6 +49,7 @@ public sealed class WorkerProcessTests
             first.Kill();
             labelsAtKill = CheckpointFiles.All(checkpoints, "kill-events").Sum(c => c.Snapshot.Counters.Labels);
         }
+        TestContext.Current.SendDiagnosticMessage($"killed with {labelsAtKill} of {events} labels checkpointed");
         Assert.True(labelsAtKill < events, $"the first run was killed mid-stream ({labelsAtKill} of {events} labels checkpointed)");
 
         // The restarted worker checkpoints at the usual pace (an environment override, as an operator would).
