@@ -29,6 +29,8 @@ public sealed class WorkerRestartTests
         using var resumedDir = new TempDir();
         var resumed = WorkerHost.OptionsFor(cluster.Bootstrap, "rs", resumedDir.Path, group: "resumed");
         resumed.PredictionsTopic = "rs-predictions-resumed";
+        // Frequent checkpoints slow the first run down enough to stop it partway.
+        resumed.CheckpointEveryLabels = 20;
         using (var first = new WorkerHost(resumed))
         {
             first.WaitFor(s => s.Predictions >= events / 3, TimeSpan.FromSeconds(60));
@@ -36,6 +38,7 @@ public sealed class WorkerRestartTests
             Assert.True(first.Worker.Stats.Predictions < events, "the first run stopped before the end");
         }
         Assert.NotEmpty(CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic));
+        resumed.CheckpointEveryLabels = 500;
         using (var second = new WorkerHost(resumed))
         {
             second.WaitFor(s => s.Partitions > 0 && CheckpointFiles.Done(resumedDir.Path, resumed.EventsTopic, events, second.Worker.Stats), TimeSpan.FromSeconds(60));

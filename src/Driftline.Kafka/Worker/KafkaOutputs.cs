@@ -11,9 +11,10 @@ using Serilog;
 namespace Driftline.Kafka.Worker;
 
 /// <summary>
-/// The worker's sinks on one producer: predictions (keyed by model key), alerts and dead
-/// letters. Used by the worker loop only. Every message gets a delivery report; a failed
-/// delivery is fatal, because committing past a lost prediction would lose it for good.
+/// One partition's sinks on the shared producer: predictions (keyed by model key), alerts
+/// and dead letters. Used by one thread at a time (whichever drains the partition). Every
+/// message gets a delivery report; a failed delivery is fatal, because committing past a
+/// lost prediction would lose it for good.
 /// </summary>
 internal sealed class KafkaOutputs : IScoringSink
 {
@@ -23,34 +24,23 @@ internal sealed class KafkaOutputs : IScoringSink
     private readonly string _predictions;
     private readonly string? _alerts;
     private readonly string _deadLetters;
-    private readonly WorkerStats _stats;
+    private readonly OutputCounts _stats;
+    private readonly DeliveryFailure _failure;
     private readonly ArrayBufferWriter<byte> _buffer = new(4096);
     private readonly Utf8JsonWriter _json;
     private readonly Dictionary<string, byte[]> _keys = new(StringComparer.Ordinal);
-    private readonly Action<DeliveryReport<byte[]?, byte[]>> _onDelivery;
-    private string? _deliveryError;
 
     /// <summary>Creates the sinks; <paramref name="alerts"/> may be null (alerts are then only logged).</summary>
-    public KafkaOutputs(IProducer<byte[]?, byte[]> producer, string predictions, string? alerts, string deadLetters, WorkerStats stats)
+    public KafkaOutputs(IProducer<byte[]?, byte[]> producer, string predictions, string? alerts, string deadLetters, OutputCounts stats, DeliveryFailure failure)
     {
         _producer = producer;
         _predictions = predictions;
         _alerts = alerts;
         _deadLetters = deadLetters;
         _stats = stats;
+        _failure = failure;
         _json = new Utf8JsonWriter(_buffer, WriterOptions);
-        // One delegate for every message: a closure per message would allocate on the hot path.
-        _onDelivery = report =>
-        {
-            if (report.Error.IsError)
-            {
-                Interlocked.CompareExchange(ref _deliveryError, $"delivery to {report.Topic} failed: {report.Error.Reason} ({report.Error.Code})", null);
-            }
-        };
     }
-
-    /// <summary>The first delivery failure, or null; read after a flush.</summary>
-    public string? DeliveryError => Volatile.Read(ref _deliveryError);
 
     /// <inheritdoc />
     public void OnPrediction(in Prediction prediction)
@@ -119,7 +109,7 @@ internal sealed class KafkaOutputs : IScoringSink
         {
             try
             {
-                _producer.Produce(topic, message, _onDelivery);
+                _producer.Produce(topic, message, _failure.Handler);
                 return;
             }
             catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)

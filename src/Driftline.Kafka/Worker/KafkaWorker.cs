@@ -35,8 +35,7 @@ internal sealed class KafkaWorker
     private readonly DriftlineOptions _core;
     private readonly CheckpointStore _store;
     private readonly Dictionary<int, PartitionState> _partitions = [];
-    private KafkaOutputs? _outputs;
-    private RecordProcessor? _processor;
+    private readonly DeliveryFailure _delivery = new();
     private IProducer<byte[]?, byte[]>? _producer;
     private IConsumer<byte[]?, byte[]>? _labels;
     private string? _fatal;
@@ -80,8 +79,6 @@ internal sealed class KafkaWorker
                 .SetErrorHandler((_, e) => OnError("producer", e))
                 .SetLogHandler((_, m) => ClientLog.Write("producer", m)));
             _producer = producer;
-            _outputs = new KafkaOutputs(producer, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, Stats);
-            _processor = new RecordProcessor(_outputs, Stats);
             _committer = new CheckpointCommitter(_options, _store, Stats, producer, ThrowIfFatal);
             TopicChecks.RequireCoPartitioned(producer, _options);
             using var labels = HasLabels ? Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.LabelsConsumer(_options))
@@ -245,35 +242,57 @@ internal sealed class KafkaWorker
 
     private int ProcessReady(IConsumer<byte[]?, byte[]> events)
     {
-        int done = 0;
         long now = Environment.TickCount64;
         long hold = (long)_options.LabelHold.TotalMilliseconds;
-        foreach (var state in _partitions.Values)
+        var busy = _partitions.Values.Where(s => s.Events.Count + s.Labels.Count > 0).ToList();
+        int done = 0;
+        if (busy.Count > 1 && Environment.ProcessorCount > 1)
         {
-            int models = state.Engine.Models.Count;
-            while (state.TryTakeNext(now, hold, out var record, out bool fromLabels))
+            // Engines are independent, one per partition: drain them side by side.
+            Parallel.ForEach(busy, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, state =>
+                Interlocked.Add(ref done, Drain(state, now, hold)));
+        }
+        else
+        {
+            foreach (var state in busy)
             {
-                string topic = fromLabels ? _options.LabelsTopic! : _options.EventsTopic;
-                if (_processor!.Process(state.Engine, record, topic, state.Partition))
-                {
-                    state.LabelsSinceCheckpoint++;
-                }
-                if (fromLabels)
-                {
-                    state.LabelsNext = record.Offset + 1;
-                }
-                else
-                {
-                    state.EventsNext = record.Offset + 1;
-                }
-                done++;
+                done += Drain(state, now, hold);
             }
-            for (int i = models; i < state.Engine.Models.Count; i++)
+        }
+        foreach (var state in busy)
+        {
+            state.Counts.MoveTo(Stats);
+            foreach (var model in state.Engine.Models.Skip(state.KnownModels))
             {
-                ModelKeys[state.Engine.Models[i].Key] = state.Partition;
+                ModelKeys[model.Key] = state.Partition;
             }
+            state.KnownModels = state.Engine.Models.Count;
             Resume(events, state, fromLabels: false);
             Resume(_labels, state, fromLabels: true);
+        }
+        return done;
+    }
+
+    /// <summary>Runs one partition's records in merged order as far as the merge allows.</summary>
+    private int Drain(PartitionState state, long now, long hold)
+    {
+        int done = 0;
+        while (state.TryTakeNext(now, hold, out var record, out bool fromLabels))
+        {
+            string topic = fromLabels ? _options.LabelsTopic! : _options.EventsTopic;
+            if (state.Processor!.Process(state.Engine, record, topic, state.Partition))
+            {
+                state.LabelsSinceCheckpoint++;
+            }
+            if (fromLabels)
+            {
+                state.LabelsNext = record.Offset + 1;
+            }
+            else
+            {
+                state.EventsNext = record.Offset + 1;
+            }
+            done++;
         }
         return done;
     }
@@ -313,8 +332,15 @@ internal sealed class KafkaWorker
                 _fatal = $"{ex.Message}; move it aside to start that partition with fresh models";
                 throw new KafkaWorkerException(_fatal, ex);
             }
-            var engine = checkpoint is null ? new ScoringEngine(_core, _outputs!) : ScoringEngine.Restore(checkpoint.Snapshot, _outputs!);
-            var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels);
+            var counts = new OutputCounts();
+            var outputs = new KafkaOutputs(_producer!, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, counts, _delivery);
+            var engine = checkpoint is null ? new ScoringEngine(_core, outputs) : ScoringEngine.Restore(checkpoint.Snapshot, outputs);
+            var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels)
+            {
+                Processor = new RecordProcessor(outputs, counts),
+                Counts = counts,
+                KnownModels = engine.Models.Count,
+            };
             _partitions[state.Partition] = state;
             Owned[state.Partition] = true;
             foreach (var model in engine.Models)
@@ -416,7 +442,7 @@ internal sealed class KafkaWorker
 
     private void ThrowIfFatal()
     {
-        string? fatal = Volatile.Read(ref _fatal) ?? _outputs?.DeliveryError;
+        string? fatal = Volatile.Read(ref _fatal) ?? _delivery.Error;
         if (fatal is not null)
         {
             throw new KafkaWorkerException(fatal);

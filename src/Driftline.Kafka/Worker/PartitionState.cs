@@ -42,6 +42,12 @@ internal sealed class PartitionState
     /// <summary>The partition's engine.</summary>
     public ScoringEngine Engine { get; }
 
+    /// <summary>Parses and runs the partition's records (set at assignment).</summary>
+    public RecordProcessor? Processor { get; init; }
+
+    /// <summary>The partition's counts since the loop last collected them (set at assignment).</summary>
+    public OutputCounts Counts { get; init; } = new();
+
     /// <summary>True when a separate labels partition is merged in.</summary>
     public bool HasLabels { get; }
 
@@ -74,6 +80,9 @@ internal sealed class PartitionState
 
     /// <summary>Labels offset in the last checkpoint.</summary>
     public long CheckpointedLabels { get; set; }
+
+    /// <summary>Models already listed in the worker's model keys.</summary>
+    public int KnownModels { get; set; }
 
     /// <summary>Labels graded since the last checkpoint.</summary>
     public long LabelsSinceCheckpoint { get; set; }

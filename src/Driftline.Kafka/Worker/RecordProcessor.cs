@@ -6,9 +6,10 @@ namespace Driftline.Kafka.Worker;
 /// <summary>
 /// Parses one consumed record and runs it through its partition's engine; whatever the
 /// engine refuses (or a label that grades nothing) goes to the dead-letter topic, so bad
-/// input never stops the worker and never touches a model.
+/// input never stops the worker and never touches a model. One per partition (it reuses
+/// its parse buffers).
 /// </summary>
-internal sealed class RecordProcessor(KafkaOutputs outputs, WorkerStats stats)
+internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats)
 {
     private readonly EventParser _parser = new();
     private readonly ParsedRecord _record = new();
