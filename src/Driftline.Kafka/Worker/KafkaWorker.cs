@@ -14,11 +14,13 @@ namespace Driftline.Kafka.Worker;
 /// predictions, alerts and dead letters through one producer.
 /// </summary>
 /// <remarks>
-/// <para>One loop thread parses, scores and learns; librdkafka's own threads fetch ahead and
-/// send behind it through bounded queues (fetch queue, send queue), so the three stages
-/// overlap with backpressure on both sides. The rebalance callbacks run on the same thread,
-/// inside Consume, which is what makes "finish the in-flight work, then give the partition
-/// up" exact without locks.</para>
+/// <para>One loop thread consumes, routes records to their partitions and runs the
+/// rebalance callbacks (inside Consume), which is what makes "finish the in-flight work, then
+/// give the partition up" exact without locks. The partitions' engines are independent, so
+/// each batch is drained partition by partition side by side on the pool, and the loop waits
+/// for them before it consumes again. librdkafka's own threads fetch ahead and send behind
+/// through bounded queues (fetch queue, send queue), with pausing and a full send queue as
+/// backpressure.</para>
 /// <para>Commit rule: a partition's offset is committed only after the producer has flushed
 /// (every prediction before it acknowledged by the broker) and the checkpoint holding the
 /// engine state at that offset, labels included, is on disk. On assignment the worker
