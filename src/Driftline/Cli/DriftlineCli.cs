@@ -16,6 +16,7 @@ internal static class DriftlineCli
             new FitCommand(context).Build(),
             new InspectCommand(context).Build(),
             new MonitorCommand(context).Build(),
+            new RunCommand(context).Build(),
         };
         var parsed = root.Parse(args);
         if (parsed.Errors.Count > 0)

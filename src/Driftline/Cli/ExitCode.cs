@@ -17,4 +17,7 @@ internal static class ExitCode
 
     /// <summary>An input file cannot be read, or an output folder cannot be written.</summary>
     public const int Input = 4;
+
+    /// <summary>The live worker stopped on a fatal Kafka error (nothing was committed past safe work).</summary>
+    public const int Kafka = 5;
 }

@@ -15,6 +15,12 @@ internal static class ConfigLoader
     public const string EnvironmentPrefix = "DRIFTLINE_";
 
     /// <summary>
+    /// Sections read by the live worker's host, not by the core (<c>run</c> binds them
+    /// itself), so one file serves <c>run</c>, <c>replay</c> and <c>check</c>.
+    /// </summary>
+    public static readonly string[] HostSections = ["Kafka", "Worker"];
+
+    /// <summary>
     /// Loads and validates. Returns the options, or null with every mistake found in
     /// <paramref name="errors"/> (each names the option and the fix).
     /// </summary>
@@ -33,9 +39,12 @@ internal static class ConfigLoader
     public static DriftlineOptions? Bind(IConfiguration configuration, out IReadOnlyList<OptionError> errors)
     {
         var options = new DriftlineOptions();
+        var core = new ConfigurationBuilder()
+            .AddInMemoryCollection(configuration.AsEnumerable().Where(kv => !HostSections.Any(h => kv.Key.Equals(h, StringComparison.OrdinalIgnoreCase) || kv.Key.StartsWith(h + ":", StringComparison.OrdinalIgnoreCase))))
+            .Build();
         try
         {
-            configuration.Bind(options, o => o.ErrorOnUnknownConfiguration = true);
+            core.Bind(options, o => o.ErrorOnUnknownConfiguration = true);
         }
         catch (InvalidOperationException ex)
         {

@@ -51,6 +51,14 @@ internal static class LineReader
                         batch.FirstLine = lineNumber;
                     }
                 }
+                if (!end && batch.Count > 0 && filled < buffer.Length / 2 && read < buffer.Length / 2)
+                {
+                    // A short read means the source has nothing more ready (a live pipe):
+                    // hand the lines on now rather than wait for a full batch.
+                    await output.WriteAsync(batch, cancellation).ConfigureAwait(false);
+                    batch = await TakeAsync(pool, cancellation).ConfigureAwait(false);
+                    batch.FirstLine = lineNumber;
+                }
                 if (end)
                 {
                     if (consumed < filled)

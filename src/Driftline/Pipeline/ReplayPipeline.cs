@@ -12,10 +12,9 @@ namespace Driftline.Pipeline;
 /// source → parse → score/learn → write, four stages joined by bounded channels. Batches
 /// circulate through pools, so memory is fixed whatever the input size, and a slow disk
 /// slows the reader instead of filling memory. A failing stage completes its downstream
-/// channel with the exception, which surfaces from
-/// <see cref="RunAsync(Stream, IReadOnlyList{ReplayOutputs}, CancellationToken)"/>. Several
-/// configurations run as lanes of one pipeline: each record is parsed once and handed to every
-/// lane's engine, so they are compared on identical input at the cost of one parse.
+/// channel with the exception, which surfaces from <c>RunAsync</c>. Several configurations
+/// run as lanes of one pipeline: each record is parsed once and handed to every lane's engine,
+/// so they are compared on identical input at the cost of one parse.
 /// </summary>
 internal sealed class ReplayPipeline
 {
@@ -78,15 +77,33 @@ internal sealed class ReplayPipeline
     /// <summary>Runs the whole input through the engine into <paramref name="outputs"/>.</summary>
     public Task RunAsync(Stream input, ReplayOutputs outputs, CancellationToken cancellation) => RunAsync(input, [outputs], cancellation);
 
+    /// <summary>Runs the whole input through the first lane, handing each result batch to <paramref name="write"/> (on the writer stage).</summary>
+    public Task RunAsync(Stream input, Action<OutputBatch> write, CancellationToken cancellation)
+    {
+        ArgumentNullException.ThrowIfNull(write);
+        return RunCoreAsync(input, batches => write(batches[0]), cancellation);
+    }
+
     /// <summary>Runs the whole input through every lane, lane i writing into <paramref name="outputs"/>[i].</summary>
     /// <exception cref="ArgumentException">There is not one output per lane.</exception>
-    public async Task RunAsync(Stream input, IReadOnlyList<ReplayOutputs> outputs, CancellationToken cancellation)
+    public Task RunAsync(Stream input, IReadOnlyList<ReplayOutputs> outputs, CancellationToken cancellation)
     {
         ArgumentNullException.ThrowIfNull(outputs);
         if (outputs.Count != _lanes.Length)
         {
             throw new ArgumentException($"{outputs.Count} outputs for {_lanes.Length} lanes", nameof(outputs));
         }
+        return RunCoreAsync(input, batches =>
+        {
+            for (int l = 0; l < batches.Length; l++)
+            {
+                outputs[l].Write(batches[l]);
+            }
+        }, cancellation);
+    }
+
+    private async Task RunCoreAsync(Stream input, Action<OutputBatch[]> write, CancellationToken cancellation)
+    {
         var linePool = Pool<LineBatch>();
         var outputPool = Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight + 2) { SingleReader = true, SingleWriter = false, FullMode = BoundedChannelFullMode.Wait });
         for (int i = 0; i < BatchesInFlight + 2; i++)
@@ -105,7 +122,7 @@ internal sealed class ReplayPipeline
             Stage(() => LineReader.RunAsync(input, linePool.Reader, lines.Writer, token), stop),
             Stage(() => ParseAsync(lines.Reader, parsed.Writer, token), stop),
             Stage(() => ScoreAsync(parsed.Reader, linePool.Writer, outputPool.Reader, results.Writer, token), stop),
-            Stage(() => WriteAsync(results.Reader, outputPool.Writer, outputs, token), stop),
+            Stage(() => WriteAsync(results.Reader, outputPool.Writer, write, token), stop),
         ];
         try
         {
@@ -247,16 +264,13 @@ internal sealed class ReplayPipeline
         result.DeadLetters.Add(new DeadLetter(lineNumber, reason, raw));
     }
 
-    private static async Task WriteAsync(ChannelReader<OutputBatch[]> input, ChannelWriter<OutputBatch[]> pool, IReadOnlyList<ReplayOutputs> outputs, CancellationToken cancellation)
+    private static async Task WriteAsync(ChannelReader<OutputBatch[]> input, ChannelWriter<OutputBatch[]> pool, Action<OutputBatch[]> write, CancellationToken cancellation)
     {
         while (await input.WaitToReadAsync(cancellation).ConfigureAwait(false))
         {
             while (input.TryRead(out var batch))
             {
-                for (int l = 0; l < batch.Length; l++)
-                {
-                    outputs[l].Write(batch[l]);
-                }
+                write(batch);
                 await pool.WriteAsync(batch, cancellation).ConfigureAwait(false);
             }
         }

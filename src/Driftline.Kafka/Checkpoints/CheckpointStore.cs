@@ -1,0 +1,90 @@
+using System.Text.Json;
+using System.Text.Json.Serialization;
+using Driftline.Core.Snapshots;
+
+namespace Driftline.Kafka.Checkpoints;
+
+/// <summary>
+/// Per-partition checkpoints as JSON files in one folder, named after the events topic and
+/// partition. A write goes to a temporary file that is flushed to disk and then renamed over
+/// the old one, so a crash leaves either the old checkpoint or the new one, never half of one.
+/// </summary>
+internal sealed class CheckpointStore
+{
+    private static readonly JsonSerializerOptions Json = new()
+    {
+        PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower,
+        Converters = { new JsonStringEnumConverter() },
+        NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
+    };
+
+    private readonly string _directory;
+
+    /// <summary>Uses (and creates) <paramref name="directory"/>.</summary>
+    public CheckpointStore(string directory)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(directory);
+        _directory = Path.GetFullPath(directory);
+        System.IO.Directory.CreateDirectory(_directory);
+    }
+
+    /// <summary>The folder.</summary>
+    public string Directory => _directory;
+
+    /// <summary>The file of one partition.</summary>
+    public string PathOf(string eventsTopic, int partition) =>
+        Path.Combine(_directory, $"{Sanitise(eventsTopic)}-{partition}.checkpoint.json");
+
+    /// <summary>
+    /// Reads a partition's checkpoint, or null when there is none. Throws
+    /// <see cref="InvalidDataException"/> when the file is not a readable checkpoint: resuming
+    /// from nothing would double-apply labels, so that is an operator's call.
+    /// </summary>
+    public PartitionCheckpoint? Read(string eventsTopic, int partition)
+    {
+        string path = PathOf(eventsTopic, partition);
+        if (!File.Exists(path))
+        {
+            return null;
+        }
+        PartitionCheckpoint? checkpoint;
+        try
+        {
+            using var file = File.OpenRead(path);
+            checkpoint = JsonSerializer.Deserialize<PartitionCheckpoint>(file, Json);
+        }
+        catch (JsonException ex)
+        {
+            throw new InvalidDataException($"checkpoint '{path}' is not readable: {ex.Message}", ex);
+        }
+        if (checkpoint is null || checkpoint.Format != PartitionCheckpoint.FormatName || checkpoint.FormatVersion != PartitionCheckpoint.CurrentVersion)
+        {
+            throw new InvalidDataException($"checkpoint '{path}' is not a version {PartitionCheckpoint.CurrentVersion} Driftline partition checkpoint");
+        }
+        if (checkpoint.Snapshot.Format != EngineSnapshot.FormatName || checkpoint.Snapshot.FormatVersion != EngineSnapshot.CurrentVersion)
+        {
+            throw new InvalidDataException($"checkpoint '{path}' holds a model snapshot of another format version");
+        }
+        return checkpoint;
+    }
+
+    /// <summary>Writes a checkpoint atomically (temporary file, flush to disk, rename).</summary>
+    public void Write(PartitionCheckpoint checkpoint)
+    {
+        ArgumentNullException.ThrowIfNull(checkpoint);
+        // The snapshot's own marker is stamped by its writer; this file embeds it directly.
+        checkpoint.Snapshot.Format = EngineSnapshot.FormatName;
+        checkpoint.Snapshot.FormatVersion = EngineSnapshot.CurrentVersion;
+        string path = PathOf(checkpoint.EventsTopic, checkpoint.Partition);
+        string temporary = path + ".tmp";
+        using (var file = new FileStream(temporary, FileMode.Create, FileAccess.Write, FileShare.None, 1 << 16))
+        {
+            JsonSerializer.Serialize(file, checkpoint, Json);
+            file.Flush(flushToDisk: true);
+        }
+        File.Move(temporary, path, overwrite: true);
+    }
+
+    private static string Sanitise(string topic) =>
+        string.Concat(topic.Select(c => char.IsLetterOrDigit(c) || c is '-' or '_' or '.' ? c : '_'));
+}

@@ -1,0 +1,45 @@
+using Driftline.Core.Snapshots;
+
+namespace Driftline.Kafka.Checkpoints;
+
+/// <summary>
+/// One partition's state and the input positions it reflects: the engine after every
+/// record before <see cref="EventsOffset"/> on the events partition and before
+/// <see cref="LabelsOffset"/> on the labels partition, and nothing after. Restoring it and
+/// seeking both partitions there continues as if the worker had never stopped.
+/// </summary>
+internal sealed class PartitionCheckpoint
+{
+    /// <summary>Marks the file as a Driftline partition checkpoint.</summary>
+    public string Format { get; set; } = FormatName;
+
+    /// <summary>Version of this layout; readers refuse versions they do not know.</summary>
+    public int FormatVersion { get; set; } = CurrentVersion;
+
+    /// <summary>The events topic.</summary>
+    public string EventsTopic { get; set; } = "";
+
+    /// <summary>The partition, of the events topic and of the co-partitioned labels topic.</summary>
+    public int Partition { get; set; }
+
+    /// <summary>Next events offset to process.</summary>
+    public long EventsOffset { get; set; }
+
+    /// <summary>The labels topic, or null when labels come on the events topic.</summary>
+    public string? LabelsTopic { get; set; }
+
+    /// <summary>Next labels offset to process (ignored without a labels topic).</summary>
+    public long LabelsOffset { get; set; }
+
+    /// <summary>When it was written (UTC), for the checkpoint-age metric and operators.</summary>
+    public DateTime WrittenAt { get; set; }
+
+    /// <summary>The engine's whole state.</summary>
+    public EngineSnapshot Snapshot { get; set; } = new();
+
+    /// <summary>Value of <see cref="Format"/>.</summary>
+    public const string FormatName = "driftline-partition-checkpoint";
+
+    /// <summary>The layout this build writes.</summary>
+    public const int CurrentVersion = 1;
+}

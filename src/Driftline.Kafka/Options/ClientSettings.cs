@@ -1,0 +1,99 @@
+using Confluent.Kafka;
+
+namespace Driftline.Kafka.Options;
+
+/// <summary>
+/// Turns <see cref="KafkaOptions"/> into librdkafka configurations: the pass-through
+/// settings first, then what the worker's correctness depends on, forced.
+/// </summary>
+internal static class ClientSettings
+{
+    /// <summary>Settings the worker forces: offsets follow checkpoints, never a timer.</summary>
+    public static readonly IReadOnlyDictionary<string, string> Forced = new Dictionary<string, string>(StringComparer.Ordinal)
+    {
+        ["enable.auto.commit"] = "false",
+        ["enable.auto.offset.store"] = "false",
+    };
+
+    /// <summary>The events consumer: in the group, partition ends reported (the time-order merge needs them).</summary>
+    public static ConsumerConfig EventsConsumer(KafkaOptions options)
+    {
+        var config = new ConsumerConfig(Base(options))
+        {
+            GroupId = options.Group,
+            EnablePartitionEof = true,
+        };
+        config.Set("auto.offset.reset", Get(options, "auto.offset.reset") ?? "earliest");
+        foreach (var (name, value) in Forced)
+        {
+            config.Set(name, value);
+        }
+        return config;
+    }
+
+    /// <summary>
+    /// The labels consumer: assigned by hand to the partitions the group gave the events
+    /// consumer, so co-partitioned labels follow their events whatever the assignor. Its
+    /// positions live in the checkpoints only, so it has no group.
+    /// </summary>
+    public static ConsumerConfig LabelsConsumer(KafkaOptions options)
+    {
+        var settings = Base(options);
+        // Group-membership settings mean nothing to a consumer outside the group and some are refused there.
+        foreach (var name in settings.Keys.Where(k => k.StartsWith("group.", StringComparison.Ordinal) || k is "session.timeout.ms" or "heartbeat.interval.ms" or "partition.assignment.strategy").ToList())
+        {
+            settings.Remove(name);
+        }
+        var config = new ConsumerConfig(settings) { EnablePartitionEof = true };
+        config.Set("group.id", options.Group + ".labels");
+        foreach (var (name, value) in Forced)
+        {
+            config.Set(name, value);
+        }
+        return config;
+    }
+
+    /// <summary>The producer of predictions, alerts and dead letters: idempotent, so retries do not duplicate.</summary>
+    public static ProducerConfig Producer(KafkaOptions options)
+    {
+        var settings = Base(options);
+        foreach (var name in settings.Keys.Where(IsConsumerOnly).ToList())
+        {
+            settings.Remove(name);
+        }
+        var config = new ProducerConfig(settings);
+        config.Set("enable.idempotence", Get(options, "enable.idempotence") ?? "true");
+        config.Set("linger.ms", Get(options, "linger.ms") ?? "5");
+        // Only the outcome of each delivery is read; copying key and value back costs throughput.
+        config.Set("dotnet.producer.delivery.report.fields", Get(options, "dotnet.producer.delivery.report.fields") ?? "status");
+        return config;
+    }
+
+    /// <summary>The pass-through settings with secrets masked, for the start-up log.</summary>
+    public static IReadOnlyDictionary<string, string> Masked(KafkaOptions options) =>
+        options.Client.ToDictionary(kv => kv.Key, kv => IsSecret(kv.Key) ? "*****" : kv.Value, StringComparer.Ordinal);
+
+    /// <summary>True for settings whose value must never be logged.</summary>
+    public static bool IsSecret(string name) =>
+        name.Contains("password", StringComparison.OrdinalIgnoreCase)
+        || name.Contains("secret", StringComparison.OrdinalIgnoreCase)
+        || name.Contains("sasl.jaas", StringComparison.OrdinalIgnoreCase)
+        || name.Contains("sasl.oauthbearer.config", StringComparison.OrdinalIgnoreCase);
+
+    private static Dictionary<string, string> Base(KafkaOptions options)
+    {
+        var settings = new Dictionary<string, string>(options.Client, StringComparer.Ordinal)
+        {
+            ["bootstrap.servers"] = options.Bootstrap!,
+        };
+        settings.TryAdd("client.id", "driftline");
+        return settings;
+    }
+
+    private static bool IsConsumerOnly(string name) =>
+        name.StartsWith("group.", StringComparison.Ordinal) || name.StartsWith("fetch.", StringComparison.Ordinal)
+        || name is "session.timeout.ms" or "heartbeat.interval.ms" or "auto.offset.reset" or "partition.assignment.strategy"
+            or "max.poll.interval.ms" or "enable.partition.eof" or "isolation.level" or "enable.auto.commit" or "enable.auto.offset.store";
+
+    private static string? Get(KafkaOptions options, string name) => options.Client.GetValueOrDefault(name);
+}

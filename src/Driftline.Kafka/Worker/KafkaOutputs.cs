@@ -1,0 +1,136 @@
+using System.Buffers;
+using System.Text;
+using System.Text.Encodings.Web;
+using System.Text.Json;
+using Confluent.Kafka;
+using Driftline.Core.Alerts;
+using Driftline.Core.Events;
+using Driftline.Core.Scoring;
+using Serilog;
+
+namespace Driftline.Kafka.Worker;
+
+/// <summary>
+/// One partition's sinks on the shared producer: predictions (keyed by model key), alerts
+/// and dead letters. Used by one thread at a time (whichever drains the partition). Every
+/// message gets a delivery report; a failed delivery is fatal, because committing past a
+/// lost prediction would lose it for good.
+/// </summary>
+internal sealed class KafkaOutputs : IScoringSink
+{
+    private static readonly JsonWriterOptions WriterOptions = new() { SkipValidation = true, Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
+
+    private readonly IProducer<byte[]?, byte[]> _producer;
+    private readonly string _predictions;
+    private readonly string? _alerts;
+    private readonly string _deadLetters;
+    private readonly OutputCounts _stats;
+    private readonly DeliveryFailure _failure;
+    private readonly ArrayBufferWriter<byte> _buffer = new(4096);
+    private readonly Utf8JsonWriter _json;
+    private readonly Dictionary<string, byte[]> _keys = new(StringComparer.Ordinal);
+
+    /// <summary>Creates the sinks; <paramref name="alerts"/> may be null (alerts are then only logged).</summary>
+    public KafkaOutputs(IProducer<byte[]?, byte[]> producer, string predictions, string? alerts, string deadLetters, OutputCounts stats, DeliveryFailure failure)
+    {
+        _producer = producer;
+        _predictions = predictions;
+        _alerts = alerts;
+        _deadLetters = deadLetters;
+        _stats = stats;
+        _failure = failure;
+        _json = new Utf8JsonWriter(_buffer, WriterOptions);
+    }
+
+    /// <inheritdoc />
+    public void OnPrediction(in Prediction prediction)
+    {
+        Begin();
+        RecordJson.WritePrediction(_json, prediction);
+        Send(_predictions, KeyBytes(prediction.Key));
+        _stats.Predictions++;
+    }
+
+    /// <inheritdoc />
+    public void OnAlert(AlertTransition alert)
+    {
+        Log.Warning("Alert {Rule} {State}: {Message}", alert.Rule, alert.Raised ? "raised" : "cleared", RecordJson.Describe(alert));
+        _stats.Alerts++;
+        _stats.AlertsActive += alert.Raised ? 1 : -1;
+        if (_alerts is null)
+        {
+            return;
+        }
+        Begin();
+        RecordJson.WriteAlert(_json, alert);
+        Send(_alerts, KeyBytes(alert.Rule));
+    }
+
+    /// <inheritdoc />
+    public void OnMetrics(in MetricsRow row) => _stats.LastMetrics = row;
+
+    /// <summary>Sends a rejected record to the dead-letter topic with why and where it came from.</summary>
+    public void DeadLetter(string reason, string topic, int partition, long offset, byte[]? key, ReadOnlySpan<byte> value)
+    {
+        _stats.DeadLetters++;
+        Begin();
+        _json.WriteStartObject();
+        _json.WriteString("reason"u8, reason);
+        _json.WriteString("source_topic"u8, topic);
+        _json.WriteNumber("partition"u8, partition);
+        _json.WriteNumber("offset"u8, offset);
+        // The record as text when it is UTF-8, so a person can read it; cut like the file dead letters.
+        string raw;
+        try
+        {
+            raw = new UTF8Encoding(false, true).GetString(value.Length > 8_000 ? value[..8_000] : value);
+        }
+        catch (DecoderFallbackException)
+        {
+            raw = Convert.ToBase64String(value.Length > 6_000 ? value[..6_000] : value);
+            _json.WriteString("raw_encoding"u8, "base64");
+        }
+        _json.WriteString("raw"u8, raw);
+        _json.WriteEndObject();
+        Send(_deadLetters, key);
+    }
+
+    private void Begin()
+    {
+        _buffer.ResetWrittenCount();
+        _json.Reset(_buffer);
+    }
+
+    private void Send(string topic, byte[]? key)
+    {
+        _json.Flush();
+        var message = new Message<byte[]?, byte[]> { Key = key, Value = _buffer.WrittenSpan.ToArray() };
+        while (true)
+        {
+            try
+            {
+                _producer.Produce(topic, message, _failure.Handler);
+                return;
+            }
+            catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
+            {
+                // Backpressure: the send queue is full, so wait for the broker to take some.
+                _stats.ProduceWaits++;
+                Thread.Sleep(5);
+            }
+        }
+    }
+
+    private byte[] KeyBytes(string key)
+    {
+        if (!_keys.TryGetValue(key, out var bytes))
+        {
+            bytes = Encoding.UTF8.GetBytes(key);
+            if (_keys.Count < 10_000)
+            {
+                _keys.Add(key, bytes);
+            }
+        }
+        return bytes;
+    }
+}

@@ -1,0 +1,470 @@
+using System.Collections.Concurrent;
+using Confluent.Kafka;
+using Driftline.Core.Options;
+using Driftline.Core.Scoring;
+using Driftline.Kafka.Checkpoints;
+using Driftline.Kafka.Options;
+using Serilog;
+
+namespace Driftline.Kafka.Worker;
+
+/// <summary>
+/// The live worker: one member of the consumer group. It owns the events partitions the
+/// group gives it, one engine per partition, follows them on the labels topic, and writes
+/// predictions, alerts and dead letters through one producer.
+/// </summary>
+/// <remarks>
+/// <para>One loop thread consumes, routes records to their partitions and runs the
+/// rebalance callbacks (inside Consume), which is what makes "finish the in-flight work, then
+/// give the partition up" exact without locks. The partitions' engines are independent, so
+/// each batch is drained partition by partition side by side on the pool, and the loop waits
+/// for them before it consumes again. librdkafka's own threads fetch ahead and send behind
+/// through bounded queues (fetch queue, send queue), with pausing and a full send queue as
+/// backpressure.</para>
+/// <para>Commit rule: a partition's offset is committed only after the producer has flushed
+/// (every prediction before it acknowledged by the broker) and the checkpoint holding the
+/// engine state at that offset, labels included, is on disk. On assignment the worker
+/// restores the checkpoint and seeks both partitions to the offsets it reflects, so a
+/// restart or a move never loses or doubles a label; predictions after the checkpoint may be
+/// emitted again (at least once).</para>
+/// </remarks>
+internal sealed class KafkaWorker
+{
+    private const int MaxPull = 2_000;
+    private static readonly TimeSpan IdleWait = TimeSpan.FromMilliseconds(50);
+
+    private readonly KafkaOptions _options;
+    private readonly DriftlineOptions _core;
+    private readonly CheckpointStore _store;
+    private readonly Dictionary<int, PartitionState> _partitions = [];
+    private readonly DeliveryFailure _delivery = new();
+    private IProducer<byte[]?, byte[]>? _producer;
+    private IConsumer<byte[]?, byte[]>? _labels;
+    private string? _fatal;
+    private bool _failed;
+    private CheckpointCommitter? _committer;
+
+    /// <summary>Creates a worker; both option sets must have been validated.</summary>
+    public KafkaWorker(KafkaOptions options, DriftlineOptions core, WorkerStats? stats = null)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        ArgumentNullException.ThrowIfNull(core);
+        _options = options;
+        _core = core;
+        _store = new CheckpointStore(options.CheckpointDir);
+        Stats = stats ?? new WorkerStats();
+    }
+
+    /// <summary>Running counts.</summary>
+    public WorkerStats Stats { get; }
+
+    /// <summary>The model keys of the partitions owned now, each with its partition (for tests and operators).</summary>
+    public ConcurrentDictionary<string, int> ModelKeys { get; } = new(StringComparer.Ordinal);
+
+    /// <summary>Partitions owned now.</summary>
+    public ConcurrentDictionary<int, bool> Owned { get; } = new();
+
+    private bool HasLabels => _options.LabelsTopic is not null;
+
+    /// <summary>
+    /// Runs until <paramref name="stop"/> is cancelled, then checkpoints, commits, leaves the
+    /// group and returns. Throws <see cref="KafkaWorkerException"/> on a fatal error, after
+    /// leaving without committing anything more.
+    /// </summary>
+    public void Run(CancellationToken stop)
+    {
+        Log.Information("Worker joining group {Group} at {Bootstrap}: events {EventsTopic}, labels {LabelsTopic}, predictions {PredictionsTopic}, alerts {AlertsTopic}, dead letters {DeadLetterTopic}, checkpoints in {CheckpointDir}; client settings {@Client}",
+            _options.Group, _options.Bootstrap, _options.EventsTopic, _options.LabelsTopic ?? "(events topic)", _options.PredictionsTopic, _options.AlertsTopic ?? "(log only)", _options.DeadLetterTopic, _store.Directory, ClientSettings.Masked(_options));
+        try
+        {
+            using var producer = Build(new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(_options))
+                .SetErrorHandler((_, e) => OnError("producer", e))
+                .SetLogHandler((_, m) => ClientLog.Write("producer", m)));
+            _producer = producer;
+            _committer = new CheckpointCommitter(_options, _store, Stats, producer, ThrowIfFatal);
+            TopicChecks.RequireCoPartitioned(producer, _options);
+            using var labels = HasLabels ? Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.LabelsConsumer(_options))
+                .SetErrorHandler((_, e) => OnError("labels consumer", e))
+                .SetLogHandler((_, m) => ClientLog.Write("labels consumer", m))) : null;
+            _labels = labels;
+            using var events = Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.EventsConsumer(_options))
+                .SetErrorHandler((_, e) => OnError("events consumer", e))
+                .SetLogHandler((_, m) => ClientLog.Write("events consumer", m))
+                .SetPartitionsAssignedHandler((_, assigned) => OnAssigned(assigned))
+                .SetPartitionsRevokedHandler((c, revoked) => OnRevoked(c, revoked))
+                .SetPartitionsLostHandler((_, lost) => OnLost(lost)));
+            try
+            {
+                events.Subscribe(_options.EventsTopic);
+                Stats.Running = true;
+                Loop(events, stop);
+                _committer!.CheckpointAndCommit(events, _partitions.Values.ToList(), wait: true);
+                Drop(_partitions.Keys.ToList());
+            }
+            catch
+            {
+                _failed = true;
+                throw;
+            }
+            finally
+            {
+                Stats.Running = false;
+                // Close leaves the group now (a rebalance in milliseconds, not a session timeout).
+                Close(events, "events consumer");
+                if (labels is not null)
+                {
+                    Close(labels, "labels consumer");
+                }
+            }
+            Log.Information("Worker left group {Group}: {Events} events in, {Predictions} predictions, {Labels} labels joined, {DeadLetters} dead letters, {Checkpoints} checkpoints",
+                _options.Group, Stats.EventsIn, Stats.Predictions, Stats.LabelsJoined, Stats.DeadLetters, Stats.Checkpoints);
+        }
+        catch (KafkaException ex) when (ex is not ConsumeException)
+        {
+            throw new KafkaWorkerException($"Kafka client error: {ex.Error.Reason} ({ex.Error.Code})", ex);
+        }
+        catch (ConsumeException ex) when (ex.InnerException is KafkaWorkerException inner)
+        {
+            // Thrown in a rebalance callback, which the client wraps.
+            throw new KafkaWorkerException(inner.Message, inner);
+        }
+        catch (ConsumeException ex)
+        {
+            throw new KafkaWorkerException(_fatal ?? $"Kafka consume failed: {ex.Error.Reason} ({ex.Error.Code})", ex.InnerException ?? ex);
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        {
+            throw new KafkaWorkerException($"cannot write a checkpoint in '{_store.Directory}': {ex.Message}", ex);
+        }
+        catch (ArgumentException ex)
+        {
+            throw new KafkaWorkerException($"Kafka client setting rejected: {ex.Message}", ex);
+        }
+    }
+
+    private void Loop(IConsumer<byte[]?, byte[]> events, CancellationToken stop)
+    {
+        bool idle = false;
+        while (!stop.IsCancellationRequested)
+        {
+            ThrowIfFatal();
+            int got = Pull(events, fromLabels: false, idle ? IdleWait : TimeSpan.Zero);
+            if (_labels is not null)
+            {
+                got += Pull(_labels, fromLabels: true, TimeSpan.Zero);
+            }
+            int done = ProcessReady(events);
+            idle = got == 0 && done == 0;
+            if (_committer!.WriteCompleted)
+            {
+                _committer.FinishWrite(events);
+            }
+            var now = DateTime.UtcNow;
+            if (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
+                || (now - _committer.LastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty)))
+            {
+                _committer!.CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList(), wait: false);
+                Stats.Lag = TopicChecks.Lag(events, _options.EventsTopic, _partitions.Values);
+            }
+        }
+    }
+
+    private int Pull(IConsumer<byte[]?, byte[]> consumer, bool fromLabels, TimeSpan firstWait)
+    {
+        int got = 0;
+        for (int i = 0; i < MaxPull; i++)
+        {
+            var result = consumer.Consume(i == 0 ? firstWait : TimeSpan.Zero);
+            if (result is null)
+            {
+                break;
+            }
+            if (!_partitions.TryGetValue(result.Partition.Value, out var state))
+            {
+                continue; // fetched before the partition was given up
+            }
+            long next = fromLabels ? state.LabelsNext : state.EventsNext;
+            if (result.IsPartitionEOF)
+            {
+                if (fromLabels)
+                {
+                    state.LabelsAtEnd = true;
+                    state.LabelsNext = next == PartitionState.Unknown && state.Labels.Count == 0 ? result.Offset.Value : next;
+                }
+                else
+                {
+                    state.EventsAtEnd = true;
+                    state.EventsNext = next == PartitionState.Unknown && state.Events.Count == 0 ? result.Offset.Value : next;
+                }
+                continue;
+            }
+            var queue = fromLabels ? state.Labels : state.Events;
+            long queuedUpTo = fromLabels ? state.LabelsQueuedUpTo : state.EventsQueuedUpTo;
+            if (queuedUpTo != PartitionState.Unknown && result.Offset.Value < queuedUpTo)
+            {
+                continue; // already processed or queued (a re-fetch after a seek)
+            }
+            got++;
+            if (fromLabels)
+            {
+                state.LabelsQueuedUpTo = result.Offset.Value + 1;
+            }
+            else
+            {
+                state.EventsQueuedUpTo = result.Offset.Value + 1;
+            }
+            queue.Enqueue(new BufferedRecord(result.Offset.Value, result.Message.Timestamp.UnixTimestampMs, result.Message.Key, result.Message.Value ?? [], Environment.TickCount64));
+            if (fromLabels)
+            {
+                state.LabelsAtEnd = false;
+                Stats.LabelsIn++;
+            }
+            else
+            {
+                state.EventsAtEnd = false;
+                state.EventsWatermarkMs = Math.Max(state.EventsWatermarkMs, result.Message.Timestamp.UnixTimestampMs);
+                Stats.EventsIn++;
+            }
+            if (queue.Count >= _options.MaxBufferedPerPartition)
+            {
+                // Backpressure: the other side is behind; stop fetching this side until the merge catches up.
+                consumer.Pause([result.TopicPartition]);
+                if (fromLabels)
+                {
+                    state.LabelsPaused = true;
+                }
+                else
+                {
+                    state.EventsPaused = true;
+                }
+            }
+        }
+        return got;
+    }
+
+    private int ProcessReady(IConsumer<byte[]?, byte[]> events)
+    {
+        long now = Environment.TickCount64;
+        long hold = (long)_options.LabelHold.TotalMilliseconds;
+        var busy = _partitions.Values.Where(s => s.Events.Count + s.Labels.Count > 0).ToList();
+        int done = 0;
+        if (busy.Count > 1 && Environment.ProcessorCount > 1)
+        {
+            // Engines are independent, one per partition: drain them side by side.
+            Parallel.ForEach(busy, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, state =>
+                Interlocked.Add(ref done, Drain(state, now, hold)));
+        }
+        else
+        {
+            foreach (var state in busy)
+            {
+                done += Drain(state, now, hold);
+            }
+        }
+        foreach (var state in busy)
+        {
+            state.Counts.MoveTo(Stats);
+            foreach (var model in state.Engine.Models.Skip(state.KnownModels))
+            {
+                ModelKeys[model.Key] = state.Partition;
+            }
+            state.KnownModels = state.Engine.Models.Count;
+            Resume(events, state, fromLabels: false);
+            Resume(_labels, state, fromLabels: true);
+        }
+        return done;
+    }
+
+    /// <summary>Runs one partition's records in merged order as far as the merge allows.</summary>
+    private int Drain(PartitionState state, long now, long hold)
+    {
+        int done = 0;
+        while (state.TryTakeNext(now, hold, out var record, out bool fromLabels))
+        {
+            string topic = fromLabels ? _options.LabelsTopic! : _options.EventsTopic;
+            if (state.Processor!.Process(state.Engine, record, topic, state.Partition))
+            {
+                state.LabelsSinceCheckpoint++;
+            }
+            if (fromLabels)
+            {
+                state.LabelsNext = record.Offset + 1;
+            }
+            else
+            {
+                state.EventsNext = record.Offset + 1;
+            }
+            done++;
+        }
+        return done;
+    }
+
+    private void Resume(IConsumer<byte[]?, byte[]>? consumer, PartitionState state, bool fromLabels)
+    {
+        bool paused = fromLabels ? state.LabelsPaused : state.EventsPaused;
+        int queued = fromLabels ? state.Labels.Count : state.Events.Count;
+        if (consumer is null || !paused || queued > _options.MaxBufferedPerPartition / 2)
+        {
+            return;
+        }
+        consumer.Resume([new TopicPartition(fromLabels ? _options.LabelsTopic! : _options.EventsTopic, state.Partition)]);
+        if (fromLabels)
+        {
+            state.LabelsPaused = false;
+        }
+        else
+        {
+            state.EventsPaused = false;
+        }
+    }
+
+    private List<TopicPartitionOffset> OnAssigned(List<TopicPartition> assigned)
+    {
+        var start = new List<TopicPartitionOffset>();
+        var labels = new List<TopicPartitionOffset>();
+        foreach (var tp in assigned)
+        {
+            PartitionCheckpoint? checkpoint;
+            try
+            {
+                checkpoint = _store.Read(tp.Topic, tp.Partition.Value);
+            }
+            catch (InvalidDataException ex)
+            {
+                _fatal = $"{ex.Message}; move it aside to start that partition with fresh models";
+                throw new KafkaWorkerException(_fatal, ex);
+            }
+            var counts = new OutputCounts();
+            var outputs = new KafkaOutputs(_producer!, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, counts, _delivery);
+            var engine = checkpoint is null ? new ScoringEngine(_core, outputs) : ScoringEngine.Restore(checkpoint.Snapshot, outputs);
+            var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels)
+            {
+                Processor = new RecordProcessor(outputs, counts),
+                Counts = counts,
+                KnownModels = engine.Models.Count,
+            };
+            _partitions[state.Partition] = state;
+            Owned[state.Partition] = true;
+            foreach (var model in engine.Models)
+            {
+                ModelKeys[model.Key] = state.Partition;
+            }
+            start.Add(new TopicPartitionOffset(tp, state.EventsNext >= 0 ? new Offset(state.EventsNext) : Offset.Unset));
+            if (HasLabels)
+            {
+                labels.Add(new TopicPartitionOffset(_options.LabelsTopic!, tp.Partition, state.LabelsNext >= 0 ? new Offset(state.LabelsNext) : Offset.Beginning));
+            }
+            if (checkpoint is null)
+            {
+                Log.Information("Partition {Partition} assigned: no checkpoint, fresh models from the group's committed offset (or the start)", state.Partition);
+            }
+            else
+            {
+                Log.Information("Partition {Partition} assigned: restored {Models} models from the checkpoint of {WrittenAt:o}, resuming at events offset {EventsOffset}, labels offset {LabelsOffset}",
+                    state.Partition, engine.Models.Count, checkpoint.WrittenAt, checkpoint.EventsOffset, checkpoint.LabelsOffset);
+            }
+        }
+        _labels?.IncrementalAssign(labels);
+        Stats.Partitions = _partitions.Count;
+        return start;
+    }
+
+    private void OnRevoked(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> revoked)
+    {
+        var states = revoked.Select(tp => _partitions.GetValueOrDefault(tp.Partition.Value)).OfType<PartitionState>().ToList();
+        if (states.Count == 0)
+        {
+            return;
+        }
+        if (_failed || _fatal is not null)
+        {
+            Drop(states.Select(s => s.Partition).ToList());
+            return;
+        }
+        // Finish what is in flight (records the merge can take now), make it durable, commit, give up.
+        ProcessReady(events);
+        _committer!.CheckpointAndCommit(events, states, wait: true);
+        Drop(states.Select(s => s.Partition).ToList());
+        Log.Information("Partitions {Partitions} revoked: checkpointed and committed", states.Select(s => s.Partition).ToArray());
+    }
+
+    private void OnLost(List<TopicPartitionOffset> lost)
+    {
+        // Another member may own them already: no checkpoint, no commit, just forget them.
+        var partitions = lost.Select(tp => tp.Partition.Value).Where(_partitions.ContainsKey).ToList();
+        Drop(partitions);
+        Log.Warning("Partitions {Partitions} lost (fell out of the group): dropped without committing", partitions.ToArray());
+    }
+
+    private void Drop(List<int> partitions)
+    {
+        if (partitions.Count == 0)
+        {
+            return;
+        }
+        foreach (int p in partitions)
+        {
+            _partitions.Remove(p);
+            Owned.TryRemove(p, out _);
+            foreach (var key in ModelKeys.Where(kv => kv.Value == p).Select(kv => kv.Key).ToList())
+            {
+                ModelKeys.TryRemove(key, out _);
+            }
+        }
+        if (_labels is not null && !_failed)
+        {
+            _labels.IncrementalUnassign(partitions.Select(p => new TopicPartition(_options.LabelsTopic!, p)).ToList());
+        }
+        Stats.Partitions = _partitions.Count;
+    }
+
+    private void OnError(string client, Error error)
+    {
+        if (error.IsFatal)
+        {
+            Interlocked.CompareExchange(ref _fatal, $"fatal Kafka error in the {client}: {error.Reason} ({error.Code})", null);
+            return;
+        }
+        // librdkafka recovers from the rest by itself (brokers down, reconnects): tell the operator only.
+        Log.Warning("Kafka {Client}: {Reason} ({Code})", client, error.Reason, error.Code);
+    }
+
+    private static void Close(IConsumer<byte[]?, byte[]> consumer, string client)
+    {
+        try
+        {
+            consumer.Close();
+        }
+        catch (KafkaException ex)
+        {
+            // Leaving late is harmless (the group notices at the session timeout) and must not hide why the loop ended.
+            Log.Warning("Closing the {Client} failed: {Reason}", client, ex.Error.Reason);
+        }
+    }
+
+    private void ThrowIfFatal()
+    {
+        string? fatal = Volatile.Read(ref _fatal) ?? _delivery.Error;
+        if (fatal is not null)
+        {
+            throw new KafkaWorkerException(fatal);
+        }
+    }
+
+    private static IProducer<byte[]?, byte[]> Build(ProducerBuilder<byte[]?, byte[]> builder) => Build(builder.Build);
+
+    private static IConsumer<byte[]?, byte[]> Build(ConsumerBuilder<byte[]?, byte[]> builder) => Build(builder.Build);
+
+    private static T Build<T>(Func<T> build)
+    {
+        try
+        {
+            return build();
+        }
+        catch (Exception ex) when (ex is InvalidOperationException or ArgumentException)
+        {
+            // librdkafka refuses unknown or malformed settings here, before any connection.
+            throw new KafkaWorkerException($"Kafka client setting rejected: {ex.Message}", ex);
+        }
+    }
+}

@@ -1,0 +1,52 @@
+using Driftline.Core.Events;
+using Driftline.Core.Scoring;
+
+namespace Driftline.Kafka.Worker;
+
+/// <summary>
+/// Parses one consumed record and runs it through its partition's engine; whatever the
+/// engine refuses (or a label that grades nothing) goes to the dead-letter topic, so bad
+/// input never stops the worker and never touches a model. One per partition (it reuses
+/// its parse buffers).
+/// </summary>
+internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats)
+{
+    private readonly EventParser _parser = new();
+    private readonly ParsedRecord _record = new();
+
+    /// <summary>Processes <paramref name="record"/> from <paramref name="topic"/>; returns true when it graded a prediction.</summary>
+    public bool Process(ScoringEngine engine, in BufferedRecord record, string topic, int partition)
+    {
+        var value = record.Value.AsSpan();
+        if (value.Trim(" \t\r\n"u8).IsEmpty)
+        {
+            outputs.DeadLetter("empty message", topic, partition, record.Offset, record.Key, value);
+            return false;
+        }
+        if (!_parser.TryParse(value, _record, out string? error))
+        {
+            outputs.DeadLetter(error!, topic, partition, record.Offset, record.Key, value);
+            return false;
+        }
+        switch (engine.Process(_record))
+        {
+            case StepOutcome.ScoredAndLearned:
+            case StepOutcome.LateLabelJoined:
+                stats.LabelsJoined++;
+                return true;
+            case StepOutcome.ProbabilityRecorded:
+                return _record.HasLabel;
+            case StepOutcome.Rejected:
+                outputs.DeadLetter(engine.RejectReason!, topic, partition, record.Offset, record.Key, value);
+                return false;
+            case StepOutcome.UnknownLabel:
+                outputs.DeadLetter("label for an id with no pending prediction (never scored on this partition, label earlier than its event, or dropped after Labels:MaxAge or Labels:MaxPending)", topic, partition, record.Offset, record.Key, value);
+                return false;
+            case StepOutcome.DuplicateLabel:
+                outputs.DeadLetter("second label for a prediction that was already graded", topic, partition, record.Offset, record.Key, value);
+                return false;
+            default:
+                return false;
+        }
+    }
+}

@@ -1,0 +1,58 @@
+using Driftline.Core.Scoring;
+
+namespace Driftline.Kafka.Worker;
+
+/// <summary>
+/// The worker's running counts, written by the worker loop only and read by the metrics
+/// endpoint and the tests (64-bit reads do not tear; a count a moment old is fine there).
+/// </summary>
+internal sealed class WorkerStats
+{
+    /// <summary>Records consumed from the events topic.</summary>
+    public long EventsIn { get; set; }
+
+    /// <summary>Records consumed from the labels topic.</summary>
+    public long LabelsIn { get; set; }
+
+    /// <summary>Predictions produced.</summary>
+    public long Predictions { get; set; }
+
+    /// <summary>Labels that graded a prediction (inline or late).</summary>
+    public long LabelsJoined { get; set; }
+
+    /// <summary>Records sent to the dead-letter topic.</summary>
+    public long DeadLetters { get; set; }
+
+    /// <summary>Alerts raised or cleared.</summary>
+    public long Alerts { get; set; }
+
+    /// <summary>Alert rules raised and not cleared, over the partitions' engines.</summary>
+    public long AlertsActive { get; set; }
+
+    /// <summary>Times the producer's queue was full and the loop waited.</summary>
+    public long ProduceWaits { get; set; }
+
+    /// <summary>Checkpoints written.</summary>
+    public long Checkpoints { get; set; }
+
+    /// <summary>When the last checkpoint was written (UTC), or MinValue before the first.</summary>
+    public DateTime LastCheckpointAt { get; set; } = DateTime.MinValue;
+
+    /// <summary>How long the last checkpoint held the loop, flush included, in milliseconds.</summary>
+    public double LastCheckpointMs { get; set; }
+
+    /// <summary>How long the producer flush of the last checkpoint took, in milliseconds.</summary>
+    public double LastFlushMs { get; set; }
+
+    /// <summary>Partitions owned now.</summary>
+    public int Partitions { get; set; }
+
+    /// <summary>Events behind the high watermark, summed over owned partitions, at the last look.</summary>
+    public long Lag { get; set; }
+
+    /// <summary>The latest metrics row any engine reported.</summary>
+    public MetricsRow? LastMetrics { get; set; }
+
+    /// <summary>True once the loop runs; false again when it stops.</summary>
+    public bool Running { get; set; }
+}

@@ -1,0 +1,134 @@
+using System.CommandLine;
+using System.Runtime.InteropServices;
+using Driftline.Configuration;
+using Driftline.Core.Options;
+using Driftline.Kafka.Options;
+using Driftline.Kafka.Worker;
+using Driftline.Output;
+using Driftline.Pipeline;
+using Serilog;
+using Serilog.Formatting.Compact;
+
+namespace Driftline.Cli;
+
+/// <summary>
+/// <c>driftline run</c>: the live worker. With a broker configured it joins the consumer
+/// group and scores the events topic into the predictions topic; without one it reads events
+/// on standard input and writes predictions to standard output, alerts and logs to standard
+/// error. SIGINT and SIGTERM stop it cleanly (checkpoint, commit, leave; exit 0).
+/// </summary>
+internal sealed class RunCommand(CommandContext context)
+{
+    /// <summary>The command-line definition.</summary>
+    public Command Build()
+    {
+        var bootstrap = new Option<string?>("--bootstrap") { Description = "Kafka brokers, host:port[,host:port]; without it events are read from standard input" };
+        var group = new Option<string?>("--group") { Description = "Consumer group the workers share (default driftline)" };
+        var events = new Option<string?>("--events-topic") { Description = "Topic of events to score (default events)" };
+        var labels = new Option<string?>("--labels-topic") { Description = "Separate topic of late labels, co-partitioned with the events topic (default: labels come on the events topic)" };
+        var predictions = new Option<string?>("--predictions-topic") { Description = "Topic the probabilities go to (default predictions)" };
+        var alerts = new Option<string?>("--alerts-topic") { Description = "Topic alerts go to (default alerts)" };
+        var deadLetters = new Option<string?>("--dead-letter-topic") { Description = "Topic rejected records go to (default dead-letters)" };
+        var checkpoints = new Option<string?>("--checkpoint-dir") { Description = "Folder of the per-partition checkpoints (default checkpoints)" };
+        var config = new Option<string?>("--config") { Description = "JSON configuration file; the Kafka section holds the topics and client settings" };
+        var command = new Command("run", "Run the live worker: score every event, learn from labels, publish predictions and alerts")
+        {
+            bootstrap, group, events, labels, predictions, alerts, deadLetters, checkpoints, config,
+        };
+        command.SetAction((result, token) =>
+        {
+            var overrides = new Dictionary<string, string?>(StringComparer.Ordinal)
+            {
+                ["Bootstrap"] = result.GetValue(bootstrap),
+                ["Group"] = result.GetValue(group),
+                ["EventsTopic"] = result.GetValue(events),
+                ["LabelsTopic"] = result.GetValue(labels),
+                ["PredictionsTopic"] = result.GetValue(predictions),
+                ["AlertsTopic"] = result.GetValue(alerts),
+                ["DeadLetterTopic"] = result.GetValue(deadLetters),
+                ["CheckpointDir"] = result.GetValue(checkpoints),
+            };
+            return RunAsync(result.GetValue(config), overrides, token);
+        });
+        return command;
+    }
+
+    /// <summary>Runs the worker; returns the exit code. <paramref name="overrides"/> are Kafka options from the command line (null = not given).</summary>
+    public async Task<int> RunAsync(string? configPath, IReadOnlyDictionary<string, string?> overrides, CancellationToken cancellation)
+    {
+        var settings = RunSettings.Load(configPath, context.Environment, overrides, out var errors);
+        if (settings is null)
+        {
+            return ConfigErrors.Report(context.Error, configPath, errors);
+        }
+        var (core, kafka, worker) = settings;
+        if (worker.LogFormat == "json")
+        {
+            Log.Logger = new LoggerConfiguration().WriteTo.Console(new CompactJsonFormatter(), standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
+        }
+
+        using var stop = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
+        // SIGTERM (docker stop, Kubernetes) gets the same clean stop as Ctrl+C.
+        using var terminate = PosixSignalRegistration.Create(PosixSignal.SIGTERM, signal =>
+        {
+            signal.Cancel = true;
+            stop.Cancel();
+        });
+        return kafka.UsesKafka
+            ? await RunKafkaAsync(kafka, core, worker, stop.Token).ConfigureAwait(false)
+            : await RunStdioAsync(core, stop.Token).ConfigureAwait(false);
+    }
+
+    private async Task<int> RunKafkaAsync(KafkaOptions kafka, DriftlineOptions core, WorkerOptions host, CancellationToken stop)
+    {
+        var worker = new KafkaWorker(kafka, core);
+        using var endpoint = host.MetricsPort > 0 ? MetricsEndpoint.Start(host, worker) : null;
+        try
+        {
+            // The Kafka loop blocks in Consume, so it gets a thread of its own, not a pool thread.
+            await Task.Factory.StartNew(() => worker.Run(stop), CancellationToken.None, TaskCreationOptions.LongRunning, TaskScheduler.Default).ConfigureAwait(false);
+            return ExitCode.Ok;
+        }
+        catch (KafkaWorkerException ex)
+        {
+            // The operator gets one line; the cause chain is there for debug logging.
+            Log.Debug(ex, "Worker stopped: {Reason}", ex.Message);
+            await context.Error.WriteLineAsync($"driftline: {ex.Message}").ConfigureAwait(false);
+            return ExitCode.Kafka;
+        }
+    }
+
+    private async Task<int> RunStdioAsync(DriftlineOptions core, CancellationToken stop)
+    {
+        Log.Information("No Kafka bootstrap configured: reading events on standard input, writing predictions to standard output");
+        using var input = context.StandardInput();
+        var pipeline = new ReplayPipeline(core);
+        var outputs = new StdioOutputs(context.Out, context.Error);
+        try
+        {
+            var run = pipeline.RunAsync(input, outputs.Write, stop);
+            // A read of an idle terminal or pipe does not observe cancellation, so a signal
+            // ends the wait here instead; what was read is scored and written by then.
+            var stopped = Task.Delay(Timeout.Infinite, stop);
+            if (await Task.WhenAny(run, stopped).ConfigureAwait(false) == stopped)
+            {
+                Log.Information("Stopped by signal");
+                return ExitCode.Ok;
+            }
+            await run.ConfigureAwait(false);
+        }
+        catch (OperationCanceledException) when (stop.IsCancellationRequested)
+        {
+            // A signal is a normal end for a worker.
+        }
+        catch (IOException ex)
+        {
+            await context.Error.WriteLineAsync($"driftline: reading standard input failed: {ex.Message}").ConfigureAwait(false);
+            return ExitCode.Input;
+        }
+        var c = pipeline.Engine.Counters;
+        Log.Information("Input ended: {Events} events scored, {Labels} labels ({Late} late), {DeadLetters} dead letters, {Alerts} alerts",
+            c.Events, c.Labels, c.LateLabels, pipeline.DeadLetters, outputs.Alerts);
+        return ExitCode.Ok;
+    }
+}

@@ -1,0 +1,237 @@
+using System.Diagnostics;
+using System.Globalization;
+using System.Text;
+using Confluent.Kafka;
+using Driftline.Core.Options;
+using Driftline.Kafka.Options;
+using Driftline.Kafka.Worker;
+
+namespace Driftline.Kafka.Benchmarks;
+
+/// <summary>Consume → score → produce against consume only, and event-to-prediction latency at a fixed rate.</summary>
+internal sealed class PipelineBenchmark : IDisposable
+{
+    private readonly IProducer<byte[]?, byte[]> _host;
+    private readonly string _bootstrap;
+    private readonly string _checkpoints = Path.Combine(Path.GetTempPath(), "driftline-bench-" + Guid.NewGuid().ToString("N"));
+    private int _run;
+
+    public PipelineBenchmark()
+    {
+        var config = new ProducerConfig();
+        config.Set("test.mock.num.brokers", "3");
+        _host = new ProducerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        using var admin = new DependentAdminClientBuilder(_host.Handle).Build();
+        _bootstrap = string.Join(",", admin.GetMetadata(TimeSpan.FromSeconds(10)).Brokers.Select(b => $"{b.Host}:{b.Port}"));
+    }
+
+    public void Throughput(int events, int repeats)
+    {
+        int records = Produce("bench-events", events, ratePerSecond: 0);
+        RunWorker("bench-events", events, records); // warm-up: JIT tiers and the first group join
+        var raw = new List<double>();
+        var worker = new List<double>();
+        for (int i = 0; i < repeats; i++)
+        {
+            raw.Add(RawConsume("bench-events", records));
+            worker.Add(RunWorker("bench-events", events, records));
+        }
+        double r = Median(raw), w = Median(worker);
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"throughput, {events:N0} events + {records - events:N0} late labels, median of {repeats}: raw consume {r:N0} msg/s; consume→score→learn→produce {w:N0} msg/s; ratio {w / r:0.00} (raw runs {string.Join(", ", raw.Select(x => x.ToString("N0", CultureInfo.InvariantCulture)))}; worker runs {string.Join(", ", worker.Select(x => x.ToString("N0", CultureInfo.InvariantCulture)))})"));
+    }
+
+    public void Latency(int rate, TimeSpan duration)
+    {
+        string topic = "lat-events";
+        int events = (int)(rate * duration.TotalSeconds);
+        var options = Options(topic);
+        // The mock broker answers a fetch only when fetch.wait.max.ms (default 500) runs out, not
+        // when data arrives as a real broker does; a short wait keeps that out of the figure.
+        options.Client["fetch.wait.max.ms"] = "10";
+        using var stop = new CancellationTokenSource();
+        var kafka = new KafkaWorker(options, new DriftlineOptions());
+        var thread = new Thread(() => kafka.Run(stop.Token)) { IsBackground = true };
+        // Warm up on the same keys first, so the timed stream meets a running, allocated, jitted worker.
+        int warm = Produce(topic, 20_000, 0, firstIndex: 1_000_000);
+        thread.Start();
+        while (kafka.Stats.Partitions < 4 || kafka.Stats.EventsIn < warm)
+        {
+            Thread.Sleep(5);
+        }
+        var sent = new long[events + 1];
+        var latencies = new List<double>(events);
+        var reader = new Thread(() => ReadLatencies(options.PredictionsTopic, sent, events, latencies)) { IsBackground = true };
+        reader.Start();
+        Thread.Sleep(500); // the reader joins its group
+        Produce(topic, events, rate, sent, firstIndex: 1);
+        reader.Join(TimeSpan.FromSeconds(60));
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"checkpoints {kafka.Stats.Checkpoints}, last one held the loop {kafka.Stats.LastCheckpointMs:0.0} ms (flush {kafka.Stats.LastFlushMs:0.0} ms)"));
+        stop.Cancel();
+        thread.Join();
+        latencies.Sort();
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"latency at {rate:N0} ev/s for {duration.TotalSeconds:0} s ({latencies.Count:N0} of {events:N0} predictions read): p50 {Pct(latencies, 0.50):0.0} ms, p99 {Pct(latencies, 0.99):0.0} ms, max {latencies[^1]:0.0} ms (event produced → prediction consumed)"));
+    }
+
+    private KafkaOptions Options(string topic) => new()
+    {
+        Bootstrap = _bootstrap,
+        Group = "bench-worker-" + _run++,
+        EventsTopic = topic,
+        PredictionsTopic = topic + "-predictions-" + _run,
+        AlertsTopic = topic + "-alerts",
+        DeadLetterTopic = topic + "-dead",
+        CheckpointDir = _checkpoints + "-" + _run,
+        Client = new() { ["group.protocol"] = "consumer" },
+    };
+
+    private double RunWorker(string topic, int events, int records)
+    {
+        using var stop = new CancellationTokenSource();
+        var worker = new KafkaWorker(Options(topic), new DriftlineOptions());
+        var thread = new Thread(() => worker.Run(stop.Token)) { IsBackground = true };
+        thread.Start();
+        // Poll with sleeps: a spinning observer would take one of the two cores from the worker.
+        // Steady state: time the last two thirds, after start-up (group join, model allocation, JIT).
+        while (worker.Stats.EventsIn < records / 3)
+        {
+            Thread.Sleep(1);
+        }
+        long from = worker.Stats.EventsIn;
+        var clock = Stopwatch.StartNew();
+        while (worker.Stats.Predictions < events || worker.Stats.EventsIn < records)
+        {
+            Thread.Sleep(1);
+        }
+        double seconds = clock.Elapsed.TotalSeconds;
+        stop.Cancel();
+        thread.Join();
+        return (records - from) / seconds;
+    }
+
+    private double RawConsume(string topic, int events)
+    {
+        var config = new ConsumerConfig { BootstrapServers = _bootstrap, GroupId = "bench-raw-" + _run++, AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false };
+        config.Set("group.protocol", "consumer");
+        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        consumer.Subscribe(topic);
+        int got = 0;
+        Stopwatch? clock = null;
+        while (got < events)
+        {
+            var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
+            if (r is null || r.IsPartitionEOF)
+            {
+                continue;
+            }
+            got++;
+            if (got == events / 3)
+            {
+                clock = Stopwatch.StartNew(); // the same steady-state window as the worker's
+            }
+        }
+        double seconds = clock!.Elapsed.TotalSeconds;
+        consumer.Close();
+        return (events - events / 3) / seconds;
+    }
+
+    /// <summary>
+    /// Produces <paramref name="events"/> events keyed over 64 models; even ones carry their
+    /// label, odd ones get a label-only record 50 events later. Returns the records produced.
+    /// </summary>
+    private int Produce(string topic, int events, int ratePerSecond, long[]? sent = null, int firstIndex = 0)
+    {
+        int produced = 0;
+        using var producer = new ProducerBuilder<byte[]?, byte[]>(new ProducerConfig { BootstrapServers = _bootstrap, LingerMs = 1 }).SetLogHandler((_, _) => { }).Build();
+        var clock = Stopwatch.StartNew();
+        var zones = new[] { "north", "south", "east", "west" };
+        for (int i = 0; i < events; i++)
+        {
+            if (ratePerSecond > 0)
+            {
+                // Paced: hold each event until its slot comes (a steady stream, not bursts).
+                double due = i / (double)ratePerSecond;
+                while (clock.Elapsed.TotalSeconds < due)
+                {
+                    Thread.SpinWait(20);
+                }
+            }
+            int index = firstIndex + i;
+            string key = "k" + (index % 64);
+            string value = string.Create(CultureInfo.InvariantCulture,
+                $"{{\"id\":\"{index}\",\"key\":\"{key}\",\"features\":{{\"zone\":\"{zones[index % 4]}\",\"distance_km\":{index % 97 / 10.0},\"items\":{index % 7},\"raining\":{(index % 3 == 0 ? "true" : "false")},\"tags\":[\"t{index % 5}\"]}}{(index % 2 == 0 ? ",\"label\":" + (index % 5 == 0 ? 1 : 0) : "")}}}");
+            if (sent is not null)
+            {
+                sent[index] = Stopwatch.GetTimestamp();
+            }
+            Send(producer, topic, key, value);
+            produced++;
+            int labelled = index - 50;
+            if (labelled >= firstIndex && labelled % 2 == 1)
+            {
+                Send(producer, topic, "k" + (labelled % 64), string.Create(CultureInfo.InvariantCulture, $"{{\"id\":\"{labelled}\",\"label\":{(labelled % 5 == 0 ? 1 : 0)}}}"));
+                produced++;
+            }
+        }
+        producer.Flush(TimeSpan.FromSeconds(60));
+        return produced;
+    }
+
+    private static void Send(IProducer<byte[]?, byte[]> producer, string topic, string key, string value)
+    {
+        var message = new Message<byte[]?, byte[]> { Key = Encoding.UTF8.GetBytes(key), Value = Encoding.UTF8.GetBytes(value) };
+        while (true)
+        {
+            try
+            {
+                producer.Produce(topic, message);
+                return;
+            }
+            catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
+            {
+                Thread.Sleep(1);
+            }
+        }
+    }
+
+    private void ReadLatencies(string topic, long[] sent, int events, List<double> latencies)
+    {
+        var config = new ConsumerConfig { BootstrapServers = _bootstrap, GroupId = "bench-lat-" + _run++, AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false, FetchWaitMaxMs = 5 };
+        config.Set("group.protocol", "consumer");
+        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        consumer.Subscribe(topic);
+        var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(60);
+        while (latencies.Count < events && DateTime.UtcNow < deadline)
+        {
+            var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
+            if (r is null || r.IsPartitionEOF)
+            {
+                continue;
+            }
+            long now = Stopwatch.GetTimestamp();
+            var value = r.Message.Value.AsSpan();
+            int start = value.IndexOf("\"id\":\""u8) + 6;
+            int end = value[start..].IndexOf((byte)'"');
+            int index = int.Parse(value.Slice(start, end), CultureInfo.InvariantCulture);
+            if (index >= 1 && index < sent.Length && sent[index] != 0)
+            {
+                latencies.Add(Stopwatch.GetElapsedTime(sent[index], now).TotalMilliseconds);
+            }
+        }
+        consumer.Close();
+    }
+
+    private static double Median(List<double> values) => values.Order().ElementAt(values.Count / 2);
+
+    private static double Pct(List<double> sorted, double q) => sorted.Count == 0 ? double.NaN : sorted[Math.Min(sorted.Count - 1, (int)(q * sorted.Count))];
+
+    public void Dispose()
+    {
+        _host.Dispose();
+        foreach (var dir in Directory.GetDirectories(Path.GetTempPath(), Path.GetFileName(_checkpoints) + "*"))
+        {
+            Directory.Delete(dir, recursive: true);
+        }
+    }
+}

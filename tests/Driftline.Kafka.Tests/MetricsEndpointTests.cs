@@ -1,0 +1,49 @@
+using System.Net;
+using System.Net.Sockets;
+using Driftline.Cli;
+using Driftline.Configuration;
+using Driftline.Core.Options;
+using Driftline.Kafka.Options;
+using Driftline.Kafka.Tests.Support;
+using Driftline.Kafka.Worker;
+using Xunit;
+
+namespace Driftline.Kafka.Tests;
+
+public sealed class MetricsEndpointTests
+{
+    [Fact]
+    public async Task Start_WorkerCounts_ServedInPrometheusTextAndHealthFollowsTheLoop()
+    {
+        using var dir = new TempDir();
+        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        worker.Stats.EventsIn = 1234;
+        worker.Stats.Partitions = 3;
+        int port = FreePort();
+        using var endpoint = MetricsEndpoint.Start(new WorkerOptions { MetricsPort = port }, worker);
+        Assert.NotNull(endpoint);
+        using var http = new HttpClient { BaseAddress = new Uri($"http://127.0.0.1:{port}") };
+        var token = TestContext.Current.CancellationToken;
+
+        string metrics = await http.GetStringAsync(new Uri("/metrics", UriKind.Relative), token);
+        Assert.Contains("driftline_events_in", metrics, StringComparison.Ordinal);
+        Assert.Contains("1234", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_partitions", metrics, StringComparison.Ordinal);
+
+        using (var stopped = await http.GetAsync(new Uri("/health", UriKind.Relative), token))
+        {
+            Assert.Equal(HttpStatusCode.ServiceUnavailable, stopped.StatusCode);
+        }
+        worker.Stats.Running = true;
+        using var running = await http.GetAsync(new Uri("/health", UriKind.Relative), token);
+        Assert.Equal(HttpStatusCode.OK, running.StatusCode);
+        Assert.Contains("\"partitions\":3", await running.Content.ReadAsStringAsync(token), StringComparison.Ordinal);
+    }
+
+    private static int FreePort()
+    {
+        using var listener = new TcpListener(IPAddress.Loopback, 0);
+        listener.Start();
+        return ((IPEndPoint)listener.LocalEndpoint).Port;
+    }
+}

@@ -1,0 +1,82 @@
+using System.Text;
+using Confluent.Kafka;
+
+namespace Driftline.Kafka.Tests.Support;
+
+/// <summary>Producing test input to, and reading results from, a cluster.</summary>
+internal static class Topics
+{
+    public static void Produce(string bootstrap, string topic, IEnumerable<(string? Key, string Value, long TimestampMs)> records)
+    {
+        using var producer = new ProducerBuilder<byte[]?, byte[]>(new ProducerConfig { BootstrapServers = bootstrap, LingerMs = 5, EnableIdempotence = true })
+            .SetLogHandler((_, _) => { }).Build();
+        foreach (var (key, value, ts) in records)
+        {
+            var message = new Message<byte[]?, byte[]>
+            {
+                Key = key is null ? null : Encoding.UTF8.GetBytes(key),
+                Value = Encoding.UTF8.GetBytes(value),
+                Timestamp = new Timestamp(ts, TimestampType.CreateTime),
+            };
+            while (true)
+            {
+                try
+                {
+                    producer.Produce(topic, message);
+                    break;
+                }
+                catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
+                {
+                    Thread.Sleep(5);
+                }
+            }
+        }
+        if (producer.Flush(TimeSpan.FromSeconds(30)) > 0)
+        {
+            throw new TimeoutException($"producing to {topic} did not finish");
+        }
+    }
+
+    public static void ProduceStream(string bootstrap, string eventsTopic, string labelsTopic, IEnumerable<TestRecord> records)
+    {
+        // Each topic in time order, as events and their outcomes happen.
+        var list = records.OrderBy(r => r.TimestampMs).ToList();
+        Produce(bootstrap, eventsTopic, list.Where(r => !r.IsLabel).Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
+        Produce(bootstrap, labelsTopic, list.Where(r => r.IsLabel).Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
+    }
+
+    /// <summary>Reads <paramref name="topic"/> from the start until <paramref name="until"/> says enough or the time is up.</summary>
+    public static List<string> ReadAll(string bootstrap, string topic, Func<List<string>, bool> until, TimeSpan limit)
+    {
+        var config = new ConsumerConfig
+        {
+            BootstrapServers = bootstrap,
+            GroupId = "reader-" + Guid.NewGuid().ToString("N"),
+            AutoOffsetReset = AutoOffsetReset.Earliest,
+            EnableAutoCommit = false,
+        };
+        config.Set("group.protocol", "consumer");
+        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        consumer.Subscribe(topic);
+        var values = new List<string>();
+        var deadline = DateTime.UtcNow + limit;
+        var quietSince = DateTime.UtcNow;
+        // Once enough has arrived, keep reading until the topic is quiet, so extra copies show.
+        // The condition is checked only when no message came (it may be costly on big lists).
+        while (DateTime.UtcNow < deadline)
+        {
+            var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
+            if (r is not null && !r.IsPartitionEOF)
+            {
+                values.Add(Encoding.UTF8.GetString(r.Message.Value));
+                quietSince = DateTime.UtcNow;
+            }
+            else if (DateTime.UtcNow - quietSince > TimeSpan.FromMilliseconds(500) && until(values))
+            {
+                break;
+            }
+        }
+        consumer.Close();
+        return values;
+    }
+}
