@@ -9,6 +9,7 @@ return args.FirstOrDefault() switch
     "micro" => RunMicro(args.Skip(1).ToArray()),
     "split" => StageSplit.Run(args[1]),
     "engine" => StageSplit.EngineOnly(args[1]),
+    "bare" => PrintCount(BareLoop.Run(args[1])),
     "winprobe" => WinProbe.Run(),
     _ => Usage(),
 };
@@ -16,6 +17,12 @@ return args.FirstOrDefault() switch
 static int RunMicro(string[] rest)
 {
     BenchmarkSwitcher.FromAssembly(typeof(HotPathBenchmarks).Assembly).Run(rest.Length == 0 ? ["--filter", "*"] : rest);
+    return 0;
+}
+
+static int PrintCount(long events)
+{
+    Console.WriteLine(events);
     return 0;
 }
 

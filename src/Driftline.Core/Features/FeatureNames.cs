@@ -21,6 +21,10 @@ internal sealed class FeatureNames
 
     private readonly Dictionary<ulong, string> _names = new();
 
+    // A direct-mapped cache of hashes known to be recorded: the parser asks about every
+    // feature of every event, and one array read is far cheaper than a dictionary probe.
+    private readonly ulong[] _seen = new ulong[1 << 16];
+
     /// <summary>Creates an empty record holding at most <paramref name="capacity"/> names.</summary>
     /// <exception cref="ArgumentOutOfRangeException"><paramref name="capacity"/> is less than 1.</exception>
     public FeatureNames(int capacity = DefaultCapacity)
@@ -42,18 +46,40 @@ internal sealed class FeatureNames
     /// <summary>Records a numeric or boolean feature: the hash is the name's own.</summary>
     public void RecordName(ulong hash, ReadOnlySpan<byte> utf8Name)
     {
+        if (Seen(hash))
+        {
+            return;
+        }
         if (!_names.ContainsKey(hash) && HasRoom())
         {
             _names[hash] = Encoding.UTF8.GetString(utf8Name);
         }
+        Remember(hash);
     }
 
     /// <summary>Records a categorical feature as <c>name=value</c>.</summary>
     public void RecordValue(ulong hash, ReadOnlySpan<byte> utf8Name, ReadOnlySpan<byte> utf8Value)
     {
+        if (Seen(hash))
+        {
+            return;
+        }
         if (!_names.ContainsKey(hash) && HasRoom())
         {
             _names[hash] = string.Concat(Encoding.UTF8.GetString(utf8Name), "=", Encoding.UTF8.GetString(utf8Value));
+        }
+        Remember(hash);
+    }
+
+    // The top bits index the cache: the weight slot uses the low bits, so these spread independently.
+    private bool Seen(ulong hash) => _seen[(int)(hash >> 48)] == hash;
+
+    // Only hashes that are in the record (or that found it full) are cached, so a cache hit never hides a name.
+    private void Remember(ulong hash)
+    {
+        if (_names.ContainsKey(hash) || _names.Count >= Capacity)
+        {
+            _seen[(int)(hash >> 48)] = hash;
         }
     }
 

@@ -268,8 +268,9 @@ internal sealed class ScoringEngine
             P = e.P,
             PriorP = e.PriorP,
             Labelled = e.Labelled,
-            Slots = e.Slots.ToArray(),
-            Values = e.Values.ToArray(),
+            // A graded entry is kept only to recognise a duplicate label; its features are spent.
+            Slots = e.Labelled ? [] : e.Slots.ToArray(),
+            Values = e.Labelled ? [] : e.Values.ToArray(),
         }).ToList(),
         ExpiredLabels = Pending.Expired,
         Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
