@@ -17,6 +17,11 @@ internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats)
     /// <summary>Processes <paramref name="record"/> from <paramref name="topic"/>; returns true when it graded a prediction.</summary>
     public bool Process(ScoringEngine engine, in BufferedRecord record, string topic, int partition)
     {
+        // Segments are named by the engine's configuration; the reference compare is cheap.
+        if (!ReferenceEquals(_parser.SegmentFeature, engine.Options.Monitor.SegmentBy))
+        {
+            _parser.SegmentFeature = engine.Options.Monitor.SegmentBy;
+        }
         var value = record.Value.AsSpan();
         if (value.Trim(" \t\r\n"u8).IsEmpty)
         {
