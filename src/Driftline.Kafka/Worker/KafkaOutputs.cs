@@ -30,9 +30,16 @@ internal sealed class KafkaOutputs : IScoringSink
     private readonly Utf8JsonWriter _json;
     private readonly Dictionary<string, byte[]> _keys = new(StringComparer.Ordinal);
 
-    /// <summary>Creates the sinks; <paramref name="alerts"/> may be null (alerts are then only logged).</summary>
-    public KafkaOutputs(IProducer<byte[]?, byte[]> producer, string predictions, string? alerts, string deadLetters, OutputCounts stats, DeliveryFailure failure)
+    private readonly Action<AlertTransition>? _alertObserver;
+
+    /// <summary>
+    /// Creates the sinks of one partition; <paramref name="alerts"/> may be null (alerts are then
+    /// only logged), and <paramref name="alertObserver"/> also sees every alert (e.g. a webhook) and must not block.
+    /// </summary>
+    public KafkaOutputs(IProducer<byte[]?, byte[]> producer, string predictions, string? alerts, string deadLetters, OutputCounts stats, DeliveryFailure failure,
+        Action<AlertTransition>? alertObserver = null)
     {
+        _alertObserver = alertObserver;
         _producer = producer;
         _predictions = predictions;
         _alerts = alerts;
@@ -55,6 +62,7 @@ internal sealed class KafkaOutputs : IScoringSink
     public void OnAlert(AlertTransition alert)
     {
         Log.Warning("Alert {Rule} {State}: {Message}", alert.Rule, alert.Raised ? "raised" : "cleared", RecordJson.Describe(alert));
+        _alertObserver?.Invoke(alert);
         _stats.Alerts++;
         _stats.AlertsActive += alert.Raised ? 1 : -1;
         if (_alerts is null)

@@ -1,3 +1,4 @@
+using Driftline.Core.Alerts;
 using System.Collections.Concurrent;
 using Confluent.Kafka;
 using Driftline.Core.Options;
@@ -45,6 +46,10 @@ internal sealed class KafkaWorker
     private CheckpointCommitter? _committer;
 
     /// <summary>Creates a worker; both option sets must have been validated.</summary>
+    /// <summary>Also sees every alert of every partition (called from the partitions' threads; must be thread-safe and not block), or null.</summary>
+    public Action<AlertTransition>? AlertObserver { get; init; }
+
+    /// <summary>Creates a worker (nothing connects until <c>Run</c>).</summary>
     public KafkaWorker(KafkaOptions options, DriftlineOptions core, WorkerStats? stats = null)
     {
         ArgumentNullException.ThrowIfNull(options);
@@ -335,7 +340,7 @@ internal sealed class KafkaWorker
                 throw new KafkaWorkerException(_fatal, ex);
             }
             var counts = new OutputCounts();
-            var outputs = new KafkaOutputs(_producer!, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, counts, _delivery);
+            var outputs = new KafkaOutputs(_producer!, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, counts, _delivery, AlertObserver);
             var engine = checkpoint is null ? new ScoringEngine(_core, outputs) : ScoringEngine.Restore(checkpoint.Snapshot, outputs);
             var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels)
             {

@@ -81,7 +81,9 @@ internal sealed class RunCommand(CommandContext context)
 
     private async Task<int> RunKafkaAsync(KafkaOptions kafka, DriftlineOptions core, WorkerOptions host, CancellationToken stop)
     {
-        var worker = new KafkaWorker(kafka, core);
+        // Alerts also go to the webhook when one is configured; its queue never blocks the partitions.
+        await using var webhook = core.Webhook.Address() is not null ? new WebhookAlertSink(core.Webhook) : null;
+        var worker = new KafkaWorker(kafka, core) { AlertObserver = webhook is null ? null : a => webhook.Enqueue(a) };
         using var endpoint = host.MetricsPort > 0 ? MetricsEndpoint.Start(host, worker) : null;
         try
         {
