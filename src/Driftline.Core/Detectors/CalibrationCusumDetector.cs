@@ -67,6 +67,10 @@ namespace Driftline.Core.Detectors;
 internal sealed class CalibrationCusumDetector : IChangeDetector
 {
     private readonly RecalibrationAlternative[] _alternatives;
+
+    // exp(intercept) for the pure shifts (slope 1), NaN for the others: a shift's true odds are
+    // exp(a) times the claimed odds, which saves an exp per shift per label.
+    private readonly double[] _shiftFactor;
     private readonly double[] _statistics;
     private int _raised = -1;
 
@@ -109,11 +113,13 @@ internal sealed class CalibrationCusumDetector : IChangeDetector
         ClearFraction = clearFraction;
         Threshold = Math.Log(labelsPerFalseAlarm * _alternatives.Length);
         _statistics = new double[_alternatives.Length];
+        _shiftFactor = _alternatives.Select(a => a.Slope == 1 ? Math.Exp(a.Intercept) : double.NaN).ToArray();
     }
 
     private CalibrationCusumDetector(CalibrationCusumDetector source)
     {
         _alternatives = source._alternatives;
+        _shiftFactor = source._shiftFactor;
         _statistics = (double[])source._statistics.Clone();
         LabelsPerFalseAlarm = source.LabelsPerFalseAlarm;
         MinLabels = source.MinLabels;
@@ -188,15 +194,19 @@ internal sealed class CalibrationCusumDetector : IChangeDetector
     {
         PredictionScores.Validate(p, y);
         double clipped = Math.Clamp(p, PredictionScores.LogLossEpsilon, 1 - PredictionScores.LogLossEpsilon);
-        double eta = Math.Log(clipped / (1 - clipped));
-        double softplus = LogisticMath.Softplus(eta);
+        double odds = clipped / (1 - clipped);
+        double eta = Math.Log(odds);
+        // softplus(eta) = ln(1 + odds); odds stays below 5e15 after clipping, so this cannot overflow.
+        double softplus = Math.Log(1 + odds);
 
         Count++;
         int best = 0;
         for (int k = 0; k < _alternatives.Length; k++)
         {
             double alternative = _alternatives[k].TrueLogOdds(eta);
-            double ratio = (y == 1 ? alternative - eta : 0) - LogisticMath.Softplus(alternative) + softplus;
+            double factor = _shiftFactor[k];
+            double alternativeSoftplus = double.IsNaN(factor) ? LogisticMath.Softplus(alternative) : Math.Log(1 + factor * odds);
+            double ratio = (y == 1 ? alternative - eta : 0) - alternativeSoftplus + softplus;
             double s = Math.Clamp(_statistics[k] + ratio, 0, Threshold);
             _statistics[k] = s;
             if (s > _statistics[best])

@@ -168,18 +168,25 @@ internal sealed class ReplayCommand(CommandContext context)
             var engine = lanes[i].Engine;
             var folder = folders[i];
             SummaryWriter.Write(Path.Combine(folder, "summary.json"), engine, lanes[i].DeadLetters, clock.Elapsed, webhooks[i]);
+            // The model file and the report are independent: write one while rendering the other.
+            var modelWrite = Task.CompletedTask;
             if (!MonitorOnly)
             {
                 var snapshot = engine.Snapshot();
                 snapshot.FeatureNames = names.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
-                using var model = File.Create(Path.Combine(folder, ModelFile));
-                SnapshotCodec.Write(snapshot, model);
+                string modelPath = Path.Combine(folder, ModelFile);
+                modelWrite = Task.Run(() =>
+                {
+                    using var model = File.Create(modelPath);
+                    SnapshotCodec.Write(snapshot, model);
+                }, CancellationToken.None);
             }
             var recorder = recorders[i];
             recorder.Finish();
             recorder.Data.DeadLetters = lanes[i].DeadLetters;
             recorder.Data.Elapsed = clock.Elapsed;
             ReportWriter.WriteSingle(Path.Combine(folder, ReportWriter.FileName), file, recorder.Data);
+            await modelWrite.ConfigureAwait(false);
 
             if (compare)
             {
