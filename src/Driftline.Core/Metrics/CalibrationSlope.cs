@@ -7,7 +7,8 @@ namespace Driftline.Core.Metrics;
 /// </summary>
 /// <remarks>
 /// Not an accumulator: the fit is iterative, so it runs over a window's contents when a value is
-/// wanted (a few Newton steps over the window, O(n) each, no allocation for a span).
+/// wanted (a few Newton steps over the window, O(n) each; it allocates the design, so it is
+/// for on-demand use such as an alert's explanation, not per label).
 /// </remarks>
 internal static class CalibrationSlope
 {
@@ -15,7 +16,6 @@ internal static class CalibrationSlope
     public const int DefaultMinimumCount = 10;
 
     private const int MaxIterations = 100;
-    private const double StepTolerance = 1e-12;
 
     /// <summary>Fits intercept and slope over the predictions held by <paramref name="window"/>.</summary>
     public static CalibrationFit Fit(CalibrationWindow window, int minimumCount = DefaultMinimumCount)
@@ -90,57 +90,20 @@ internal static class CalibrationSlope
             return CalibrationFit.NotReady(CalibrationFitStatus.Separated, n);
         }
 
-        // Start at perfect calibration: live models are usually close to it, so few steps follow.
-        double a = 0.0, b = 1.0;
-        double logLikelihood = LogLikelihood(predictions, a, b);
-        for (int iteration = 1; iteration <= MaxIterations; iteration++)
+        // The recalibration is a one-feature logistic regression of y on logit(p): the same
+        // Newton/IRLS fit (MathNet.Numerics) as `driftline fit`, started at perfect calibration
+        // (a = 0, b = 1), where live models usually are, so few steps follow.
+        var rows = new double[n][];
+        var labels = new double[n];
+        for (int i = 0; i < n; i++)
         {
-            // Gradient and (negated) Hessian of the log-likelihood in (a, b).
-            double g0 = 0, g1 = 0, h00 = 0, h01 = 0, h11 = 0;
-            foreach (GradedPrediction g in predictions)
-            {
-                double x = Logit(g.P);
-                double mu = Sigmoid(a + b * x);
-                double w = mu * (1.0 - mu);
-                double r = g.Y - mu;
-                g0 += r;
-                g1 += r * x;
-                h00 += w;
-                h01 += w * x;
-                h11 += w * x * x;
-            }
-
-            double det = h00 * h11 - h01 * h01;
-            if (!(det > 0.0))
-            {
-                // Weights underflowed to zero: far from any sensible start; give up honestly.
-                return CalibrationFit.NotReady(CalibrationFitStatus.NotConverged, n, iteration);
-            }
-
-            double da = (h11 * g0 - h01 * g1) / det;
-            double db = (h00 * g1 - h01 * g0) / det;
-
-            // Step halving keeps every accepted step uphill, which plain Newton does not promise
-            // far from the maximum.
-            double scale = 1.0;
-            double next = LogLikelihood(predictions, a + da, b + db);
-            while (next < logLikelihood && scale > 1e-10)
-            {
-                scale *= 0.5;
-                next = LogLikelihood(predictions, a + scale * da, b + scale * db);
-            }
-
-            a += scale * da;
-            b += scale * db;
-            logLikelihood = Math.Max(next, logLikelihood);
-            if (Math.Abs(scale * da) <= StepTolerance * (1.0 + Math.Abs(a))
-                && Math.Abs(scale * db) <= StepTolerance * (1.0 + Math.Abs(b)))
-            {
-                return new CalibrationFit(CalibrationFitStatus.Ready, n, a, b, iteration);
-            }
+            rows[i] = [Logit(predictions[i].P)];
+            labels[i] = predictions[i].Y;
         }
-
-        return CalibrationFit.NotReady(CalibrationFitStatus.NotConverged, n, MaxIterations);
+        var fit = Fitting.LogisticNewtonFit.Fit(rows, labels, start: [0.0, 1.0], maxIterations: MaxIterations);
+        return fit.Converged
+            ? new CalibrationFit(CalibrationFitStatus.Ready, n, fit.Intercept, fit.Coefficients[0], fit.Iterations)
+            : CalibrationFit.NotReady(CalibrationFitStatus.NotConverged, n, fit.Iterations);
     }
 
     /// <summary>log(p / (1 − p)) with p clipped to [ε, 1 − ε], ε = <see cref="PredictionScores.LogLossEpsilon"/>.</summary>
@@ -148,21 +111,5 @@ internal static class CalibrationSlope
     {
         double c = Math.Clamp(p, PredictionScores.LogLossEpsilon, 1.0 - PredictionScores.LogLossEpsilon);
         return Math.Log(c) - Math.Log(1.0 - c);
-    }
-
-    private static double Sigmoid(double z) => z >= 0 ? 1.0 / (1.0 + Math.Exp(-z)) : Math.Exp(z) / (1.0 + Math.Exp(z));
-
-    private static double LogLikelihood(ReadOnlySpan<GradedPrediction> predictions, double a, double b)
-    {
-        double sum = 0;
-        foreach (GradedPrediction g in predictions)
-        {
-            double z = a + b * Logit(g.P);
-            // log σ(z) = −log(1 + e^−z), written to stay finite for large |z|.
-            double logOnePlusExp = z > 0 ? z + Math.Log(1.0 + Math.Exp(-z)) : Math.Log(1.0 + Math.Exp(z));
-            sum += g.Y * z - logOnePlusExp;
-        }
-
-        return sum;
     }
 }
