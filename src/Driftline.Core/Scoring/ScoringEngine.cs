@@ -265,12 +265,13 @@ internal sealed class ScoringEngine
             Id = e.Id!,
             Model = e.Model,
             TimeTicks = e.TimeTicks,
-            P = e.P,
-            PriorP = e.PriorP,
+            // A graded entry is kept only to recognise a duplicate label: its probabilities and
+            // features are spent, so the snapshot keeps just the id, its place and the flag.
+            P = e.Labelled ? 0 : e.P,
+            PriorP = e.Labelled ? 0 : e.PriorP,
             Labelled = e.Labelled,
-            // A graded entry is kept only to recognise a duplicate label; its features are spent.
-            Slots = e.Labelled ? [] : e.Slots.ToArray(),
-            Values = e.Labelled ? [] : e.Values.ToArray(),
+            Slots = e.Labelled ? null : e.Slots.ToArray(),
+            Values = e.Labelled ? null : e.Values.ToArray(),
         }).ToList(),
         ExpiredLabels = Pending.Expired,
         Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
@@ -337,7 +338,7 @@ internal sealed class ScoringEngine
             slot.Model = e.Model;
             slot.P = e.P;
             slot.PriorP = e.PriorP;
-            slot.SetFeatures(e.Slots, e.Values);
+            slot.SetFeatures(e.Slots ?? [], e.Values ?? []);
             if (e.Labelled)
             {
                 Pending.TryJoin(e.Id, out _);

@@ -99,20 +99,24 @@ internal sealed class PendingSnapshot
     /// <summary>Event time (UTC ticks).</summary>
     public long TimeTicks { get; set; }
 
-    /// <summary>Probability emitted.</summary>
+    /// <summary>Probability emitted (left out, as 0, once graded).</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingDefault)]
     public double P { get; set; }
 
-    /// <summary>Baseline probability at the same moment.</summary>
+    /// <summary>Baseline probability at the same moment (left out, as 0, once graded).</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingDefault)]
     public double PriorP { get; set; }
 
     /// <summary>Already graded (kept to recognise duplicates).</summary>
     public bool Labelled { get; set; }
 
-    /// <summary>Feature slots.</summary>
-    public int[] Slots { get; set; } = [];
+    /// <summary>Feature slots; null once graded (a graded entry only recognises a duplicate label).</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public int[]? Slots { get; set; }
 
-    /// <summary>Feature values.</summary>
-    public double[] Values { get; set; } = [];
+    /// <summary>Feature values; null once graded.</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public double[]? Values { get; set; }
 }
 
 /// <summary>The contents of one window size.</summary>
