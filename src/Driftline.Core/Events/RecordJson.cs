@@ -1,3 +1,4 @@
+using System.Buffers;
 using System.Text.Json;
 using Driftline.Core.Alerts;
 using Driftline.Core.Scoring;
@@ -23,6 +24,23 @@ internal static class RecordJson
             w.WriteString("time"u8, new DateTime(p.TimeTicks, DateTimeKind.Utc));
         }
         w.WriteEndObject();
+    }
+
+    /// <summary>
+    /// Appends <paramref name="predictions"/> to <paramref name="buffer"/> as JSON lines (one
+    /// object and a newline each), reusing <paramref name="json"/>.
+    /// </summary>
+    public static void WritePredictionLines(Utf8JsonWriter json, ArrayBufferWriter<byte> buffer, ReadOnlySpan<Prediction> predictions)
+    {
+        ArgumentNullException.ThrowIfNull(json);
+        ArgumentNullException.ThrowIfNull(buffer);
+        foreach (ref readonly var p in predictions)
+        {
+            json.Reset(buffer);
+            WritePrediction(json, p);
+            json.Flush();
+            buffer.Write("\n"u8);
+        }
     }
 
     /// <summary>

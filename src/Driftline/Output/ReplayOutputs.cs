@@ -52,13 +52,7 @@ internal sealed class ReplayOutputs : IDisposable
     public void Write(OutputBatch batch)
     {
         _buffer.ResetWrittenCount();
-        foreach (ref readonly var p in batch.Predictions)
-        {
-            _json.Reset(_buffer);
-            RecordJson.WritePrediction(_json, p);
-            _json.Flush();
-            _buffer.Write("\n"u8);
-        }
+        RecordJson.WritePredictionLines(_json, _buffer, batch.Predictions);
         _predictions.Write(_buffer.WrittenSpan);
 
         foreach (var alert in batch.Alerts)

@@ -27,13 +27,7 @@ internal sealed class StdioOutputs(TextWriter predictions, TextWriter alerts)
     public void Write(OutputBatch batch)
     {
         _buffer.ResetWrittenCount();
-        foreach (ref readonly var p in batch.Predictions)
-        {
-            _json.Reset(_buffer);
-            RecordJson.WritePrediction(_json, p);
-            _json.Flush();
-            _buffer.Write("\n"u8);
-        }
+        RecordJson.WritePredictionLines(_json, _buffer, batch.Predictions);
         Predictions += batch.PredictionCount;
         if (_buffer.WrittenCount > 0)
         {
