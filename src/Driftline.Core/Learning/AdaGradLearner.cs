@@ -51,17 +51,10 @@ internal sealed class AdaGradLearner : OnlineLearner
     /// <inheritdoc />
     public override LearnerState Export()
     {
-        var slots = new List<int>();
-        for (int i = 0; i < _w.Length; i++)
-        {
-            if (_w[i] != 0 || _g2[i] != 0)
-            {
-                slots.Add(i);
-            }
-        }
+        var slots = TouchedSlots(_w, _g2);
         return new LearnerState
         {
-            Slots = [.. slots],
+            Slots = slots,
             First = slots.Select(i => _w[i]).ToArray(),
             Second = slots.Select(i => _g2[i]).ToArray(),
             Inflation = Inflation,

@@ -78,17 +78,10 @@ internal sealed class FtrlProximalLearner : OnlineLearner
     /// <inheritdoc />
     public override LearnerState Export()
     {
-        var slots = new List<int>();
-        for (int i = 0; i < _n.Length; i++)
-        {
-            if (_n[i] != 0 || _z[i] != 0)
-            {
-                slots.Add(i);
-            }
-        }
+        var slots = TouchedSlots(_z, _n);
         return new LearnerState
         {
-            Slots = [.. slots],
+            Slots = slots,
             First = slots.Select(i => _z[i]).ToArray(),
             Second = slots.Select(i => _n[i]).ToArray(),
             Third = slots.Select(i => _sigma[i]).ToArray(),

@@ -122,6 +122,22 @@ internal abstract class OnlineLearner
     /// <summary>Loads a state produced by <see cref="Export"/>.</summary>
     public abstract void Import(LearnerState state);
 
+    /// <summary>The slots where either statistic is non-zero: the ones a snapshot must keep.</summary>
+    protected static int[] TouchedSlots(double[] first, double[] second)
+    {
+        ArgumentNullException.ThrowIfNull(first);
+        ArgumentNullException.ThrowIfNull(second);
+        var slots = new List<int>();
+        for (int i = 0; i < first.Length; i++)
+        {
+            if (first[i] != 0 || second[i] != 0)
+            {
+                slots.Add(i);
+            }
+        }
+        return [.. slots];
+    }
+
     /// <summary>Restores the counters on import.</summary>
     protected void RestoreCounters(LearnerState state)
     {
