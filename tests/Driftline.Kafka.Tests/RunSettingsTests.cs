@@ -15,6 +15,7 @@ public sealed class RunSettingsTests
         Assert.NotNull(settings);
         Assert.Equal("labels", settings.Kafka.LabelsTopic);
         Assert.Equal(TimeSpan.FromSeconds(10), settings.Kafka.CheckpointEvery);
+        Assert.Equal("driftline-checkpoints", settings.Kafka.CheckpointTopic);
         Assert.Equal("30000", settings.Kafka.Client["session.timeout.ms"]);
         Assert.Equal("json", settings.Worker.LogFormat);
         Assert.Equal(50_000, settings.Core.Model.HalfLifeLabels);
@@ -29,6 +30,29 @@ public sealed class RunSettingsTests
         Assert.NotNull(settings);
         Assert.Equal("from-command-line", settings.Kafka.Group);
         Assert.Equal("env-events", settings.Kafka.EventsTopic);
+    }
+
+    [Fact]
+    public void Load_CheckpointTopicFromEnvironment_IsBound()
+    {
+        var env = new Dictionary<string, string?> { ["DRIFTLINE_Kafka__CheckpointTopic"] = "team-checkpoints" };
+        var settings = RunSettings.Load(Example, env, new Dictionary<string, string?>(), out var errors);
+        Assert.Empty(errors);
+        Assert.Equal("team-checkpoints", settings!.Kafka.CheckpointTopic);
+    }
+
+    [Theory]
+    [InlineData("events", "also used")]
+    [InlineData("predictions", "also used")]
+    [InlineData("check points", "not a valid topic name")]
+    public void Load_CheckpointTopicUnusable_NamesTheOptionAndTheFix(string topic, string reason)
+    {
+        var env = new Dictionary<string, string?> { ["DRIFTLINE_Kafka__CheckpointTopic"] = topic };
+        Assert.Null(RunSettings.Load(Example, env, new Dictionary<string, string?>(), out var errors));
+        var error = Assert.Single(errors);
+        Assert.Equal("Kafka:CheckpointTopic", error.Option);
+        Assert.Contains(reason, error.Problem, StringComparison.Ordinal);
+        Assert.Contains("driftline-checkpoints", error.Fix, StringComparison.Ordinal);
     }
 
     [Fact]

@@ -21,13 +21,7 @@ public sealed class WorkerFailureTests
         }
 
         using var host = new WorkerHost(options);
-        var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(30);
-        while (host.Failure is null)
-        {
-            Assert.True(DateTime.UtcNow < deadline, "the worker did not stop");
-            Thread.Sleep(20);
-        }
-        var failure = Assert.IsType<KafkaWorkerException>(host.Failure);
+        var failure = Assert.IsType<KafkaWorkerException>(host.WaitForFailure(TimeSpan.FromSeconds(30)));
         Assert.Contains(".checkpoint.json", failure.Message, StringComparison.Ordinal);
         Assert.Contains("move it aside", failure.Message, StringComparison.Ordinal);
         Assert.Equal(0, host.Worker.Stats.Predictions);

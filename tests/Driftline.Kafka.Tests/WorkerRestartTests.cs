@@ -1,6 +1,3 @@
-using System.Text;
-using Driftline.Core.Snapshots;
-using Driftline.Kafka.Checkpoints;
 using Driftline.Kafka.Tests.Support;
 using Xunit;
 
@@ -12,17 +9,14 @@ public sealed class WorkerRestartTests
     public void Run_StoppedMidStreamAndRestarted_ModelsEqualAnUninterruptedRun()
     {
         using var cluster = new MockCluster();
-        var records = TestStream.Generate(6_000, keys: 8, seed: 5).OrderBy(r => r.TimestampMs).ToList();
-        int events = records.Count(r => !r.IsLabel);
-        int late = records.Count(r => r.IsLabel);
         // The stream arrives in two parts split at a timestamp, and the worker is stopped
         // between them: a deterministic mid-stream restart, whatever the machine's speed.
-        long cut = records[records.Count / 2].TimestampMs;
-        var firstPart = records.Where(r => r.TimestampMs < cut).ToList();
-        var secondPart = records.Where(r => r.TimestampMs >= cut).ToList();
-        int firstEvents = firstPart.Count(r => !r.IsLabel);
-        int firstJoined = firstPart.Count(r => r.IsLabel) + firstPart.Count(r => !r.IsLabel && r.Value.Contains("\"label\"", StringComparison.Ordinal));
-        Topics.ProduceStream(cluster.Bootstrap, "rs-events", "rs-labels", firstPart);
+        var stream = new StreamHalves(6_000, keys: 8, seed: 5);
+        int events = stream.Events;
+        int late = stream.All.Count(r => r.IsLabel);
+        int firstEvents = stream.FirstEvents;
+        int firstJoined = stream.FirstJoined;
+        Topics.ProduceStream(cluster.Bootstrap, "rs-events", "rs-labels", stream.First);
 
         using var resumedDir = new TempDir();
         var resumed = WorkerHost.OptionsFor(cluster.Bootstrap, "rs", resumedDir.Path, group: "resumed");
@@ -34,7 +28,7 @@ public sealed class WorkerRestartTests
             Assert.Equal(firstEvents, first.Worker.Stats.Predictions);
         }
         Assert.NotEmpty(CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic));
-        Topics.ProduceStream(cluster.Bootstrap, "rs-events", "rs-labels", secondPart);
+        Topics.ProduceStream(cluster.Bootstrap, "rs-events", "rs-labels", stream.Second);
         using (var second = new WorkerHost(resumed))
         {
             second.WaitFor(s => s.Partitions > 0 && CheckpointFiles.Done(resumedDir.Path, resumed.EventsTopic, events, second.Worker.Stats), TimeSpan.FromSeconds(60));
@@ -42,23 +36,9 @@ public sealed class WorkerRestartTests
         }
 
         using var straightDir = new TempDir();
-        var straight = WorkerHost.OptionsFor(cluster.Bootstrap, "rs", straightDir.Path, group: "straight");
-        straight.PredictionsTopic = "rs-predictions-straight";
-        using (var host = new WorkerHost(straight))
-        {
-            host.WaitFor(s => s.Predictions >= events && s.LabelsJoined >= events, TimeSpan.FromSeconds(60));
-            host.Stop();
-        }
-
-        var expected = CheckpointFiles.All(straightDir.Path, straight.EventsTopic);
+        var expected = stream.Uninterrupted(cluster, "rs", straightDir.Path);
         var actual = CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic);
-        Assert.Equal(MockCluster.Partitions, actual.Count);
-        for (int p = 0; p < expected.Count; p++)
-        {
-            Assert.Equal(expected[p].EventsOffset, actual[p].EventsOffset);
-            Assert.Equal(expected[p].LabelsOffset, actual[p].LabelsOffset);
-            Assert.Equal(Json(expected[p]), Json(actual[p]));
-        }
+        CheckpointFiles.AssertSame(expected, actual);
         Assert.Equal(events, actual.Sum(c => c.Snapshot.Counters.Labels));
         Assert.Equal(late, actual.Sum(c => c.Snapshot.Counters.LateLabels));
         Assert.Equal(0, actual.Sum(c => c.Snapshot.Counters.DuplicateLabels + c.Snapshot.Counters.UnknownLabels));
@@ -67,12 +47,5 @@ public sealed class WorkerRestartTests
         var ids = Topics.ReadAll(cluster.Bootstrap, resumed.PredictionsTopic, v => v.Count >= events, TimeSpan.FromSeconds(30)).Select(CheckpointFiles.Id).ToList();
         Assert.Equal(events, ids.Count);
         Assert.Equal(events, ids.Distinct().Count());
-    }
-
-    private static string Json(PartitionCheckpoint checkpoint)
-    {
-        using var stream = new MemoryStream();
-        SnapshotCodec.Write(checkpoint.Snapshot, stream);
-        return Encoding.UTF8.GetString(stream.ToArray());
     }
 }

@@ -47,39 +47,60 @@ internal sealed class CheckpointStore
         {
             return null;
         }
+        using var file = File.OpenRead(path);
+        return Parse(file, $"checkpoint '{path}'");
+    }
+
+    /// <summary>
+    /// Reads a checkpoint from its JSON (a file's or one assembled from the checkpoint topic).
+    /// Throws <see cref="InvalidDataException"/>, naming <paramref name="source"/>, when it is
+    /// not a checkpoint of a layout this build knows.
+    /// </summary>
+    public static PartitionCheckpoint Parse(Stream json, string source)
+    {
         PartitionCheckpoint? checkpoint;
         try
         {
-            using var file = File.OpenRead(path);
-            checkpoint = JsonSerializer.Deserialize<PartitionCheckpoint>(file, Json);
+            checkpoint = JsonSerializer.Deserialize<PartitionCheckpoint>(json, Json);
         }
         catch (JsonException ex)
         {
-            throw new InvalidDataException($"checkpoint '{path}' is not readable: {ex.Message}", ex);
+            throw new InvalidDataException($"{source} is not readable: {ex.Message}", ex);
         }
         if (checkpoint is null || checkpoint.Format != PartitionCheckpoint.FormatName || checkpoint.FormatVersion != PartitionCheckpoint.CurrentVersion)
         {
-            throw new InvalidDataException($"checkpoint '{path}' is not a version {PartitionCheckpoint.CurrentVersion} Driftline partition checkpoint");
+            throw new InvalidDataException($"{source} is not a version {PartitionCheckpoint.CurrentVersion} Driftline partition checkpoint");
         }
         if (checkpoint.Snapshot.Format != EngineSnapshot.FormatName || checkpoint.Snapshot.FormatVersion != EngineSnapshot.CurrentVersion)
         {
-            throw new InvalidDataException($"checkpoint '{path}' holds a model snapshot of another format version");
+            throw new InvalidDataException($"{source} holds a model snapshot of another format version");
         }
         return checkpoint;
     }
 
-    /// <summary>Writes a checkpoint atomically (temporary file, flush to disk, rename).</summary>
-    public void Write(PartitionCheckpoint checkpoint)
+    /// <summary>The checkpoint as the UTF-8 JSON a file holds (the bytes the checkpoint topic carries too).</summary>
+    public static byte[] Serialize(PartitionCheckpoint checkpoint)
     {
         ArgumentNullException.ThrowIfNull(checkpoint);
-        // The snapshot's own marker is stamped by its writer; this file embeds it directly.
+        // The snapshot's own marker is stamped by its writer; this layout embeds it directly.
         checkpoint.Snapshot.Format = EngineSnapshot.FormatName;
         checkpoint.Snapshot.FormatVersion = EngineSnapshot.CurrentVersion;
+        return JsonSerializer.SerializeToUtf8Bytes(checkpoint, Json);
+    }
+
+    /// <summary>
+    /// Writes a checkpoint atomically (temporary file, flush to disk, rename).
+    /// <paramref name="json"/> is its <see cref="Serialize"/> form, made once for the file and the topic.
+    /// </summary>
+    public void Write(PartitionCheckpoint checkpoint, byte[] json)
+    {
+        ArgumentNullException.ThrowIfNull(checkpoint);
+        ArgumentNullException.ThrowIfNull(json);
         string path = PathOf(checkpoint.EventsTopic, checkpoint.Partition);
         string temporary = path + ".tmp";
         using (var file = new FileStream(temporary, FileMode.Create, FileAccess.Write, FileShare.None, 1 << 16))
         {
-            JsonSerializer.Serialize(file, checkpoint, Json);
+            file.Write(json);
             file.Flush(flushToDisk: true);
         }
         File.Move(temporary, path, overwrite: true);

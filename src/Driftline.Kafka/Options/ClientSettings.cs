@@ -36,7 +36,16 @@ internal static class ClientSettings
     /// consumer, so co-partitioned labels follow their events whatever the assignor. Its
     /// positions live in the checkpoints only, so it has no group.
     /// </summary>
-    public static ConsumerConfig LabelsConsumer(KafkaOptions options)
+    public static ConsumerConfig LabelsConsumer(KafkaOptions options) => Unassigned(options, ".labels");
+
+    /// <summary>
+    /// The checkpoint topic's reader, at each assignment: assigned by hand, reading from the
+    /// start, never committing. Tombstones and gaps left by compaction are expected.
+    /// </summary>
+    public static ConsumerConfig CheckpointReader(KafkaOptions options) => Unassigned(options, ".checkpoints");
+
+    /// <summary>A consumer outside the group (assigned by hand, positions kept elsewhere), with partition ends reported.</summary>
+    private static ConsumerConfig Unassigned(KafkaOptions options, string groupSuffix)
     {
         var settings = Base(options);
         // Group-membership settings mean nothing to a consumer outside the group and some are refused there.
@@ -45,7 +54,8 @@ internal static class ClientSettings
             settings.Remove(name);
         }
         var config = new ConsumerConfig(settings) { EnablePartitionEof = true };
-        config.Set("group.id", options.Group + ".labels");
+        // librdkafka wants a group id even for a consumer that never joins or commits.
+        config.Set("group.id", options.Group + groupSuffix);
         foreach (var (name, value) in Forced)
         {
             config.Set(name, value);

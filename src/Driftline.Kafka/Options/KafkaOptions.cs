@@ -38,6 +38,18 @@ internal sealed class KafkaOptions
     /// <summary>Folder of the per-partition checkpoints (model state plus offsets). Default <c>checkpoints</c>.</summary>
     public string CheckpointDir { get; set; } = "checkpoints";
 
+    /// <summary>
+    /// Compacted topic the checkpoints also go to, so a worker on another machine, without
+    /// the checkpoint folder, can take a partition over. Default null: the folder only. When
+    /// set, the topic must exist (create it with <c>cleanup.policy=compact</c>); each
+    /// checkpoint is split into chunks of at most <see cref="Checkpoints.TopicCheckpointCodec.ChunkBytes"/>
+    /// bytes, and a partition's offset is committed only when its checkpoint is on disk and
+    /// acknowledged by the broker. On assignment the newer of the file and the topic's copy
+    /// (by events offset, then labels offset; the file on a tie) is restored. Changing the
+    /// topic's partition count later orphans the checkpoints already in it.
+    /// </summary>
+    public string? CheckpointTopic { get; set; }
+
     /// <summary>A partition is checkpointed (and its offset committed) after this many labels. Default 20,000.</summary>
     public int CheckpointEveryLabels { get; set; } = 20_000;
 
@@ -88,6 +100,18 @@ internal sealed class KafkaOptions
         {
             LabelsTopic = null;
         }
+        if (string.IsNullOrWhiteSpace(CheckpointTopic))
+        {
+            CheckpointTopic = null;
+        }
+        else if (!IsTopicName(CheckpointTopic))
+        {
+            errors.Add(new("Kafka:CheckpointTopic", $"'{CheckpointTopic}' is not a valid topic name", "Use up to 249 letters, digits, '.', '_' or '-', e.g. driftline-checkpoints"));
+        }
+        else if (CheckpointTopic == EventsTopic || CheckpointTopic == LabelsTopic || CheckpointTopic == PredictionsTopic || CheckpointTopic == AlertsTopic || CheckpointTopic == DeadLetterTopic)
+        {
+            errors.Add(new("Kafka:CheckpointTopic", $"'{CheckpointTopic}' is also used for events, labels or outputs", "Give the checkpoints a compacted topic of their own, e.g. driftline-checkpoints"));
+        }
         foreach (var topic in new[] { PredictionsTopic, AlertsTopic, DeadLetterTopic })
         {
             if (topic == EventsTopic || (topic is not null && topic == LabelsTopic))
@@ -120,6 +144,9 @@ internal sealed class KafkaOptions
         }
         return errors;
     }
+
+    private static bool IsTopicName(string name) =>
+        name.Length <= 249 && name is not "." and not ".." && name.All(c => char.IsAsciiLetterOrDigit(c) || c is '.' or '_' or '-');
 
     private static void Require(List<OptionError> errors, string option, string? value, string fix)
     {

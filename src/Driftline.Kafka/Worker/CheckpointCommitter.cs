@@ -7,10 +7,12 @@ namespace Driftline.Kafka.Worker;
 
 /// <summary>
 /// The commit rule, in one place: flush the producer (every prediction before the offsets
-/// acknowledged), snapshot the engines, write the checkpoints, and only then commit the
-/// events offsets. Used by the worker loop only; at most one write is in flight.
+/// acknowledged), snapshot the engines, write the checkpoints (to the folder and, when
+/// <paramref name="topic"/> is given, to the checkpoint topic, acknowledged by the broker),
+/// and only then commit the events offsets. Used by the worker loop only; at most one write
+/// is in flight.
 /// </summary>
-internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore store, WorkerStats stats, IProducer<byte[]?, byte[]> producer, Action throwIfFatal)
+internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore store, TopicCheckpointWriter? topic, WorkerStats stats, IProducer<byte[]?, byte[]> producer, Action throwIfFatal)
 {
     private static readonly TimeSpan FlushLimit = TimeSpan.FromSeconds(60);
 
@@ -27,7 +29,7 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
     /// <summary>
     /// Flush, then checkpoint, then commit: the order the commit rule needs. The snapshots are
     /// taken here, on the loop thread; writing them (JSON, fsync, rename) runs on a pool thread
-    /// unless <paramref name="wait"/>, and the commit follows once the files are on disk
+    /// unless <paramref name="wait"/>, and the commit follows once the files are on disk (and on the checkpoint topic)
     /// (<see cref="FinishWrite"/>), so the loop keeps scoring meanwhile.
     /// </summary>
     public void CheckpointAndCommit(IConsumer<byte[]?, byte[]> events, List<PartitionState> states, bool wait)
@@ -79,7 +81,10 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
     {
         foreach (var checkpoint in checkpoints)
         {
-            store.Write(checkpoint);
+            // Serialised once: the file and the topic carry the same bytes.
+            byte[] json = CheckpointStore.Serialize(checkpoint);
+            store.Write(checkpoint, json);
+            topic?.Write(checkpoint, json);
         }
     }
 
@@ -97,6 +102,12 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
             {
                 _toCommit = null;
                 throw new KafkaWorkerException($"cannot write a checkpoint in '{store.Directory}': {ex.Message}", ex);
+            }
+            catch (KafkaWorkerException)
+            {
+                // The checkpoint topic did not acknowledge: nothing of this write may be committed.
+                _toCommit = null;
+                throw;
             }
         }
         if (_toCommit is not { } commits)

@@ -24,8 +24,9 @@ namespace Driftline.Kafka.Worker;
 /// backpressure.</para>
 /// <para>Commit rule: a partition's offset is committed only after the producer has flushed
 /// (every prediction before it acknowledged by the broker) and the checkpoint holding the
-/// engine state at that offset, labels included, is on disk. On assignment the worker
-/// restores the checkpoint and seeks both partitions to the offsets it reflects, so a
+/// engine state at that offset, labels included, is on disk (and, with a checkpoint topic,
+/// acknowledged there). On assignment the worker restores the newer of the file and the
+/// topic's copy and seeks both partitions to the offsets it reflects, so a
 /// restart or a move never loses or doubles a label; predictions after the checkpoint may be
 /// emitted again (at least once).</para>
 /// </remarks>
@@ -44,8 +45,8 @@ internal sealed class KafkaWorker
     private string? _fatal;
     private bool _failed;
     private CheckpointCommitter? _committer;
+    private CheckpointLoader? _loader;
 
-    /// <summary>Creates a worker; both option sets must have been validated.</summary>
     /// <summary>Also sees every alert of every partition (called from the partitions' threads; must be thread-safe and not block), or null.</summary>
     public Action<AlertTransition>? AlertObserver { get; init; }
 
@@ -78,16 +79,20 @@ internal sealed class KafkaWorker
     /// </summary>
     public void Run(CancellationToken stop)
     {
-        Log.Information("Worker joining group {Group} at {Bootstrap}: events {EventsTopic}, labels {LabelsTopic}, predictions {PredictionsTopic}, alerts {AlertsTopic}, dead letters {DeadLetterTopic}, checkpoints in {CheckpointDir}; client settings {@Client}",
-            _options.Group, _options.Bootstrap, _options.EventsTopic, _options.LabelsTopic ?? "(events topic)", _options.PredictionsTopic, _options.AlertsTopic ?? "(log only)", _options.DeadLetterTopic, _store.Directory, ClientSettings.Masked(_options));
+        Log.Information("Worker joining group {Group} at {Bootstrap}: events {EventsTopic}, labels {LabelsTopic}, predictions {PredictionsTopic}, alerts {AlertsTopic}, dead letters {DeadLetterTopic}, checkpoints in {CheckpointDir} and on topic {CheckpointTopic}; client settings {@Client}",
+            _options.Group, _options.Bootstrap, _options.EventsTopic, _options.LabelsTopic ?? "(events topic)", _options.PredictionsTopic, _options.AlertsTopic ?? "(log only)", _options.DeadLetterTopic, _store.Directory, _options.CheckpointTopic ?? "(none)", ClientSettings.Masked(_options));
         try
         {
             using var producer = Build(new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(_options))
                 .SetErrorHandler((_, e) => OnError("producer", e))
                 .SetLogHandler((_, m) => ClientLog.Write("producer", m)));
             _producer = producer;
-            _committer = new CheckpointCommitter(_options, _store, Stats, producer, ThrowIfFatal);
             TopicChecks.RequireCoPartitioned(producer, _options);
+            var topicWriter = _options.CheckpointTopic is { } checkpointTopic
+                ? new TopicCheckpointWriter(producer, checkpointTopic, TopicChecks.RequireCheckpointTopic(producer, checkpointTopic))
+                : null;
+            _committer = new CheckpointCommitter(_options, _store, topicWriter, Stats, producer, ThrowIfFatal);
+            _loader = new CheckpointLoader(_options, _store, topicWriter);
             using var labels = HasLabels ? Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.LabelsConsumer(_options))
                 .SetErrorHandler((_, e) => OnError("labels consumer", e))
                 .SetLogHandler((_, m) => ClientLog.Write("labels consumer", m))) : null;
@@ -327,18 +332,19 @@ internal sealed class KafkaWorker
     {
         var start = new List<TopicPartitionOffset>();
         var labels = new List<TopicPartitionOffset>();
+        Dictionary<int, PartitionCheckpoint?> checkpoints;
+        try
+        {
+            checkpoints = _loader!.Load(assigned.Select(tp => tp.Partition.Value).ToList());
+        }
+        catch (KafkaWorkerException ex)
+        {
+            _fatal = ex.Message;
+            throw;
+        }
         foreach (var tp in assigned)
         {
-            PartitionCheckpoint? checkpoint;
-            try
-            {
-                checkpoint = _store.Read(tp.Topic, tp.Partition.Value);
-            }
-            catch (InvalidDataException ex)
-            {
-                _fatal = $"{ex.Message}; move it aside to start that partition with fresh models";
-                throw new KafkaWorkerException(_fatal, ex);
-            }
+            var checkpoint = checkpoints[tp.Partition.Value];
             var counts = new OutputCounts();
             var outputs = new KafkaOutputs(_producer!, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, counts, _delivery, AlertObserver);
             var engine = checkpoint is null ? new ScoringEngine(_core, outputs) : ScoringEngine.Restore(checkpoint.Snapshot, outputs);

@@ -18,6 +18,19 @@ internal static class CheckpointFiles
         return stats.Checkpoints > 0 && All(directory, eventsTopic).Sum(c => c.Snapshot.Counters.Labels) >= events && stats.Partitions == MockCluster.Partitions;
     }
 
+    /// <summary>Asserts two runs left the same positions and the same engine state, partition by partition.</summary>
+    public static void AssertSame(List<PartitionCheckpoint> expected, List<PartitionCheckpoint> actual)
+    {
+        Xunit.Assert.Equal(MockCluster.Partitions, actual.Count);
+        Xunit.Assert.Equal(expected.Count, actual.Count);
+        for (int p = 0; p < expected.Count; p++)
+        {
+            Xunit.Assert.Equal(expected[p].EventsOffset, actual[p].EventsOffset);
+            Xunit.Assert.Equal(expected[p].LabelsOffset, actual[p].LabelsOffset);
+            Xunit.Assert.Equal(SnapshotJson(expected[p]), SnapshotJson(actual[p]));
+        }
+    }
+
     public static string SnapshotJson(PartitionCheckpoint checkpoint)
     {
         using var stream = new MemoryStream();

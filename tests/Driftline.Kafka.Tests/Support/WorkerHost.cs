@@ -79,6 +79,21 @@ internal sealed class WorkerHost : IDisposable
         }
     }
 
+    /// <summary>Waits until the worker has stopped with a failure, and returns it; fails the test when it keeps running.</summary>
+    public Exception WaitForFailure(TimeSpan limit)
+    {
+        var deadline = DateTime.UtcNow + limit;
+        while (Failure is null)
+        {
+            if (DateTime.UtcNow > deadline)
+            {
+                throw new TimeoutException($"the worker did not stop within {limit}");
+            }
+            Thread.Sleep(20);
+        }
+        return Failure;
+    }
+
     /// <summary>Graceful stop: checkpoint, commit, leave.</summary>
     public void Stop()
     {

@@ -1,0 +1,140 @@
+using System.Buffers.Binary;
+using System.Globalization;
+using System.IO.Hashing;
+using System.Text.Json;
+
+namespace Driftline.Kafka.Checkpoints;
+
+/// <summary>
+/// How a checkpoint is laid out on the compacted checkpoint topic. Its payload (the same JSON
+/// as the file) is cut into chunks of at most <see cref="ChunkBytes"/>, because a model
+/// snapshot runs to megabytes and Kafka refuses records over about 1 MB by default. Each
+/// chunk is keyed <c>&lt;events-topic&gt;/&lt;partition&gt;/&lt;slot&gt;/&lt;index&gt;</c>
+/// and starts with a <see cref="HeaderBytes"/>-byte header; the manifest, keyed
+/// <c>&lt;events-topic&gt;/&lt;partition&gt;</c>, is written last (see <see cref="CheckpointManifest"/>).
+/// </summary>
+/// <remarks>
+/// Chunk header, little-endian: the bytes <c>DLCK</c>, layout version (1), slot, two zero
+/// bytes, generation (int64), index (int32), chunk count (int32), payload length (int64),
+/// payload XxHash64 (uint64). A new checkpoint with fewer chunks than the last one in its
+/// slot leaves that one's higher chunks behind: their generation does not match the manifest,
+/// so readers skip them, and the writer deletes them with tombstones when it knows of them.
+/// </remarks>
+internal static class TopicCheckpointCodec
+{
+    /// <summary>Largest payload share of one chunk: 512 KiB, well under the 1,000,000-byte default record limit once the header and key are added.</summary>
+    public const int ChunkBytes = 512 * 1024;
+
+    /// <summary>Bytes of the header before each chunk's data.</summary>
+    public const int HeaderBytes = 40;
+
+    private const byte LayoutVersion = 1;
+
+    private static ReadOnlySpan<byte> Magic => "DLCK"u8;
+
+    private static readonly JsonSerializerOptions Json = new() { PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower };
+
+    /// <summary>Key of a partition's manifest.</summary>
+    public static string ManifestKey(string eventsTopic, int partition) =>
+        string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}");
+
+    /// <summary>Key of one chunk.</summary>
+    public static string ChunkKey(string eventsTopic, int partition, int slot, int index) =>
+        string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}/{slot}/{index}");
+
+    /// <summary>The hash written in headers and manifests, 16 hex digits.</summary>
+    public static string HashText(ulong hash) => hash.ToString("x16", CultureInfo.InvariantCulture);
+
+    /// <summary>
+    /// The records of one checkpoint in the order they must be written: the chunks, then the
+    /// manifest. An empty payload still gets one (empty) chunk, so every manifest names at least one.
+    /// </summary>
+    public static List<CheckpointRecord> Encode(PartitionCheckpoint checkpoint, byte[] payload, long generation, int slot, int chunkBytes = ChunkBytes)
+    {
+        ArgumentNullException.ThrowIfNull(checkpoint);
+        ArgumentNullException.ThrowIfNull(payload);
+        ArgumentOutOfRangeException.ThrowIfLessThan(chunkBytes, 1);
+        if (slot is not (0 or 1))
+        {
+            throw new ArgumentOutOfRangeException(nameof(slot), slot, "a slot is 0 or 1");
+        }
+        ulong hash = XxHash64.HashToUInt64(payload);
+        int count = Math.Max(1, (int)((payload.LongLength + chunkBytes - 1) / chunkBytes));
+        var records = new List<CheckpointRecord>(count + 1);
+        for (int i = 0; i < count; i++)
+        {
+            int start = i * chunkBytes;
+            int length = Math.Min(chunkBytes, payload.Length - start);
+            var value = new byte[HeaderBytes + length];
+            var header = value.AsSpan(0, HeaderBytes);
+            Magic.CopyTo(header);
+            header[4] = LayoutVersion;
+            header[5] = (byte)slot;
+            BinaryPrimitives.WriteInt64LittleEndian(header[8..], generation);
+            BinaryPrimitives.WriteInt32LittleEndian(header[16..], i);
+            BinaryPrimitives.WriteInt32LittleEndian(header[20..], count);
+            BinaryPrimitives.WriteInt64LittleEndian(header[24..], payload.LongLength);
+            BinaryPrimitives.WriteUInt64LittleEndian(header[32..], hash);
+            payload.AsSpan(start, length).CopyTo(value.AsSpan(HeaderBytes));
+            records.Add(new(ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, slot, i), value));
+        }
+        var manifest = new CheckpointManifest
+        {
+            EventsTopic = checkpoint.EventsTopic,
+            Partition = checkpoint.Partition,
+            Generation = generation,
+            Slot = slot,
+            Chunks = count,
+            Length = payload.LongLength,
+            Hash = HashText(hash),
+            EventsOffset = checkpoint.EventsOffset,
+            LabelsOffset = checkpoint.LabelsOffset,
+            WrittenAt = checkpoint.WrittenAt,
+        };
+        records.Add(new(ManifestKey(checkpoint.EventsTopic, checkpoint.Partition), JsonSerializer.SerializeToUtf8Bytes(manifest, Json)));
+        return records;
+    }
+
+    /// <summary>Reads a chunk's header. Throws <see cref="InvalidDataException"/> when the value is not a chunk of this layout.</summary>
+    public static CheckpointChunk ReadChunk(byte[] value)
+    {
+        ArgumentNullException.ThrowIfNull(value);
+        if (value.Length < HeaderBytes || !value.AsSpan(0, 4).SequenceEqual(Magic) || value[4] != LayoutVersion || value[5] > 1)
+        {
+            throw new InvalidDataException("a chunk record has no Driftline version 1 chunk header");
+        }
+        var header = value.AsSpan(0, HeaderBytes);
+        return new CheckpointChunk(
+            BinaryPrimitives.ReadInt64LittleEndian(header[8..]),
+            value[5],
+            BinaryPrimitives.ReadInt32LittleEndian(header[16..]),
+            BinaryPrimitives.ReadInt32LittleEndian(header[20..]),
+            BinaryPrimitives.ReadInt64LittleEndian(header[24..]),
+            BinaryPrimitives.ReadUInt64LittleEndian(header[32..]),
+            new ArraySegment<byte>(value, HeaderBytes, value.Length - HeaderBytes));
+    }
+
+    /// <summary>Reads a manifest. Throws <see cref="InvalidDataException"/> when the value is not a manifest of this layout.</summary>
+    public static CheckpointManifest ReadManifest(byte[] value)
+    {
+        ArgumentNullException.ThrowIfNull(value);
+        CheckpointManifest? manifest;
+        try
+        {
+            manifest = JsonSerializer.Deserialize<CheckpointManifest>(value, Json);
+        }
+        catch (JsonException ex)
+        {
+            throw new InvalidDataException($"its manifest is not readable: {ex.Message}", ex);
+        }
+        if (manifest is null || manifest.Format != CheckpointManifest.FormatName || manifest.FormatVersion != CheckpointManifest.CurrentVersion)
+        {
+            throw new InvalidDataException($"its manifest is not a version {CheckpointManifest.CurrentVersion} Driftline checkpoint manifest");
+        }
+        if (manifest.Chunks < 1 || manifest.Slot is not (0 or 1) || manifest.Length < 0)
+        {
+            throw new InvalidDataException($"its manifest names {manifest.Chunks} chunks in slot {manifest.Slot} of {manifest.Length} bytes");
+        }
+        return manifest;
+    }
+}
