@@ -44,10 +44,14 @@ internal sealed class SparseVector
     /// <summary>Replaces the content with <paramref name="slots"/> and <paramref name="values"/>.</summary>
     public void CopyFrom(ReadOnlySpan<int> slots, ReadOnlySpan<double> values)
     {
-        Clear();
-        for (int i = 0; i < slots.Length; i++)
+        System.Diagnostics.Debug.Assert(slots.Length == values.Length, "one value per slot");
+        if (_slots.Length < slots.Length)
         {
-            Add(slots[i], values[i]);
+            _slots = new int[Math.Max(slots.Length, _slots.Length * 2)];
+            _values = new double[_slots.Length];
         }
+        slots.CopyTo(_slots);
+        values.CopyTo(_values);
+        Count = slots.Length;
     }
 }

@@ -8,13 +8,13 @@ namespace Driftline.Core.Metrics;
 /// </summary>
 /// <remarks>
 /// <para>
-/// Sums are held in <see cref="FixedPoint"/>, so <see cref="Remove"/> undoes <see cref="Add"/>
+/// Sums are held in <see cref="FixedPoint"/>, so <see cref="Remove(double, int)"/> undoes <see cref="Add(double, int)"/>
 /// exactly and the state depends only on the multiset of predictions held, not on the order or
 /// the history of adds and removes. No allocation after construction.
 /// </para>
 /// <para>
 /// Arguments are not validated here: the owning window validates before it stores a prediction,
-/// and <see cref="Remove"/> is only called with what was added.
+/// and <see cref="Remove(double, int)"/> is only called with what was added.
 /// </para>
 /// </remarks>
 internal sealed class CalibrationAccumulator
@@ -84,13 +84,24 @@ internal sealed class CalibrationAccumulator
     }
 
     /// <summary>Adds one prediction (already validated).</summary>
-    public void Add(double p, int y) => Apply(p, y, +1);
+    public void Add(double p, int y) => Apply(Terms(p, y), +1);
+
+    /// <summary>Adds one prediction's terms, computed over the same bins.</summary>
+    public void Add(in GradedTerms terms)
+    {
+        Debug.Assert(terms.Bins == _edges.Bins, "terms computed over other bins");
+        Apply(terms, +1);
+    }
 
     /// <summary>Removes one prediction that was added earlier.</summary>
-    public void Remove(double p, int y)
+    public void Remove(double p, int y) => Remove(Terms(p, y));
+
+    /// <summary>Removes the terms of one prediction that was added earlier.</summary>
+    public void Remove(in GradedTerms terms)
     {
         Debug.Assert(_count > 0, "remove from an empty accumulator");
-        Apply(p, y, -1);
+        Debug.Assert(terms.Bins == _edges.Bins, "terms computed over other bins");
+        Apply(terms, -1);
         Debug.Assert(_count >= 0 && _positives >= 0 && _logLoss >= 0 && _squaredError >= 0 && _probability >= 0,
             "remove of a prediction that was never added");
     }
@@ -200,13 +211,16 @@ internal sealed class CalibrationAccumulator
         return result;
     }
 
-    private void Apply(double p, int y, int sign)
+    // The owning window has validated (p, y) already.
+    private GradedTerms Terms(double p, int y) => GradedTerms.Of(p, y, _edges);
+
+    private void Apply(in GradedTerms t, int sign)
     {
-        int bin = _edges.LeftClosedIndex(p);
-        Int128 rawP = FixedPoint.FromDouble(p);
-        Int128 rawLoss = FixedPoint.FromDouble(PredictionScores.LogLoss(p, y));
-        Int128 rawSquared = FixedPoint.FromDouble(PredictionScores.SquaredError(p, y));
-        Int128 rawVariance = FixedPoint.FromDouble(p * (1 - p));
+        int bin = t.Bin;
+        Int128 rawP = t.Probability;
+        Int128 rawLoss = t.LogLoss;
+        Int128 rawSquared = t.SquaredError;
+        Int128 rawVariance = t.Variance;
         if (sign < 0)
         {
             rawP = -rawP;
@@ -218,13 +232,13 @@ internal sealed class CalibrationAccumulator
         checked
         {
             _count += sign;
-            _positives += sign * y;
+            _positives += sign * t.Y;
             _logLoss += rawLoss;
             _squaredError += rawSquared;
             _probability += rawP;
             _variance += rawVariance;
             _binCount[bin] += sign;
-            _binPositives[bin] += sign * y;
+            _binPositives[bin] += sign * t.Y;
             _binProbability[bin] += rawP;
         }
     }

@@ -5,7 +5,7 @@ namespace Driftline.Core.Metrics;
 /// reliability bins: the same measures as <see cref="CalibrationWindow"/>, with nothing evicted.
 /// </summary>
 /// <remarks>
-/// O(1) per <see cref="Add"/>, no allocation, and no stored predictions, so memory stays constant
+/// O(1) per <see cref="Add(double, int)"/>, no allocation, and no stored predictions, so memory stays constant
 /// however long the run. The sums are exact (<see cref="FixedPoint"/>) and save to a
 /// <see cref="CalibrationTotalsState"/> that restores bit for bit. Counts beyond
 /// <see cref="int.MaxValue"/> are fine; only <see cref="CalibrationSnapshot.Count"/> saturates.
@@ -41,6 +41,9 @@ internal sealed class CalibrationTotals
         PredictionScores.Validate(p, y);
         _sums.Add(p, y);
     }
+
+    /// <summary>Counts a graded prediction whose terms are computed already (over the same bins).</summary>
+    public void Add(in GradedTerms terms) => _sums.Add(terms);
 
     /// <summary>
     /// Writes the reliability bins, in order, into the first <see cref="Bins"/> elements of

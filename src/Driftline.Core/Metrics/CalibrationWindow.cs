@@ -6,7 +6,7 @@ namespace Driftline.Core.Metrics;
 /// </summary>
 /// <remarks>
 /// <para>
-/// Each <see cref="Add"/> is O(1) and allocates nothing: the predictions live in a ring buffer
+/// Each <see cref="Add(double, int)"/> is O(1) and allocates nothing: the predictions live in a ring buffer
 /// allocated once, and the metrics come from running sums that the oldest prediction is
 /// subtracted from when it is evicted. The sums are exact (<see cref="FixedPoint"/>), so there is
 /// no drift however long the window runs, and a window restored from <see cref="ToArray"/>
@@ -19,7 +19,7 @@ namespace Driftline.Core.Metrics;
 /// </remarks>
 internal sealed class CalibrationWindow : IGradedWindow
 {
-    private readonly GradedPrediction[] _ring;
+    private readonly GradedTerms[] _ring;
     private readonly CalibrationAccumulator _sums;
     private int _oldest;
     private int _count;
@@ -32,12 +32,12 @@ internal sealed class CalibrationWindow : IGradedWindow
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(capacity, 1);
         _sums = new CalibrationAccumulator(new BinEdges(bins));
-        _ring = new GradedPrediction[capacity];
+        _ring = new GradedTerms[capacity];
     }
 
     private CalibrationWindow(CalibrationWindow source)
     {
-        _ring = (GradedPrediction[])source._ring.Clone();
+        _ring = (GradedTerms[])source._ring.Clone();
         _sums = source._sums.Copy();
         _oldest = source._oldest;
         _count = source._count;
@@ -75,24 +75,29 @@ internal sealed class CalibrationWindow : IGradedWindow
     /// <paramref name="p"/> is NaN, infinite or outside [0, 1], or <paramref name="y"/> is not 0 or 1;
     /// the window is unchanged.
     /// </exception>
-    public void Add(double p, int y)
+    public void Add(double p, int y) => Add(GradedTerms.Of(p, y, _sums.Edges));
+
+    /// <summary>
+    /// Adds a graded prediction's terms (computed over this window's bins, see
+    /// <see cref="GradedTerms"/>), evicting the oldest when the window is full. The same as
+    /// <see cref="Add(double, int)"/> with the terms' p and y, without computing them again.
+    /// </summary>
+    public void Add(in GradedTerms terms)
     {
-        PredictionScores.Validate(p, y);
         if (_count == _ring.Length)
         {
-            GradedPrediction evicted = _ring[_oldest];
-            _sums.Remove(evicted.P, evicted.Y);
-            _ring[_oldest] = new GradedPrediction(p, y);
+            _sums.Remove(_ring[_oldest]);
+            _ring[_oldest] = terms;
             _oldest = _oldest + 1 == _ring.Length ? 0 : _oldest + 1;
         }
         else
         {
             int slot = _oldest + _count;
-            _ring[slot >= _ring.Length ? slot - _ring.Length : slot] = new GradedPrediction(p, y);
+            _ring[slot >= _ring.Length ? slot - _ring.Length : slot] = terms;
             _count++;
         }
 
-        _sums.Add(p, y);
+        _sums.Add(terms);
     }
 
     /// <summary>Empties the window; capacity and bins are kept.</summary>
@@ -117,9 +122,11 @@ internal sealed class CalibrationWindow : IGradedWindow
     public GradedPrediction[] ToArray()
     {
         var result = new GradedPrediction[_count];
-        int firstRun = Math.Min(_count, _ring.Length - _oldest);
-        Array.Copy(_ring, _oldest, result, 0, firstRun);
-        Array.Copy(_ring, 0, result, firstRun, _count - firstRun);
+        for (int i = 0; i < _count; i++)
+        {
+            int slot = _oldest + i;
+            result[i] = _ring[slot >= _ring.Length ? slot - _ring.Length : slot].Prediction;
+        }
         return result;
     }
 

@@ -6,7 +6,7 @@ namespace Driftline.Core.Metrics;
 /// </summary>
 /// <remarks>
 /// <para>
-/// "Now" is the latest event time seen (<see cref="Latest"/>), moved by <see cref="Add"/> and
+/// "Now" is the latest event time seen (<see cref="Latest"/>), moved by <see cref="Add(DateTimeOffset, double, int)"/> and
 /// <see cref="AdvanceTo"/>; the window holds predictions with time in (Latest − Span, Latest].
 /// Time never comes from a clock, so replay gives the same windows as the live run.
 /// </para>
@@ -14,7 +14,7 @@ namespace Driftline.Core.Metrics;
 /// Times may arrive out of order (labels come late, partitions interleave): predictions are kept
 /// in a heap ordered by time, then arrival, so eviction is always by timestamp and costs
 /// O(log n). A prediction already older than the window when it arrives is refused
-/// (<see cref="Add"/> returns false). Memory is bounded by <see cref="MaxCount"/>, allocated at
+/// (<see cref="Add(DateTimeOffset, double, int)"/> returns false). Memory is bounded by <see cref="MaxCount"/>, allocated at
 /// construction: in a burst the oldest predictions are evicted early, so the window then covers
 /// less than <see cref="Span"/> (see <see cref="Count"/>). No allocation after construction.
 /// </para>
@@ -70,7 +70,7 @@ internal sealed class TimeWindow : IGradedWindow
     /// <summary>Number of reliability bins.</summary>
     public int Bins => _sums.Edges.Bins;
 
-    /// <summary>Latest event time seen, in UTC; null before the first <see cref="Add"/> or <see cref="AdvanceTo"/>.</summary>
+    /// <summary>Latest event time seen, in UTC; null before the first <see cref="Add(DateTimeOffset, double, int)"/> or <see cref="AdvanceTo"/>.</summary>
     public DateTimeOffset? Latest => _hasLatest ? new DateTimeOffset(_latestTicks, TimeSpan.Zero) : null;
 
     /// <summary>Metric values over the predictions held; not ready (NaN values) while the window is empty. O(bins).</summary>
@@ -104,9 +104,14 @@ internal sealed class TimeWindow : IGradedWindow
     /// <paramref name="p"/> is NaN, infinite or outside [0, 1], or <paramref name="y"/> is not 0 or 1;
     /// the window is unchanged.
     /// </exception>
-    public bool Add(DateTimeOffset time, double p, int y)
+    public bool Add(DateTimeOffset time, double p, int y) => Add(time, GradedTerms.Of(p, y, _sums.Edges));
+
+    /// <summary>
+    /// <see cref="Add(DateTimeOffset, double, int)"/> with the prediction's terms computed
+    /// already over this window's bins (see <see cref="GradedTerms"/>).
+    /// </summary>
+    public bool Add(DateTimeOffset time, in GradedTerms terms)
     {
-        PredictionScores.Validate(p, y);
         long ticks = time.UtcTicks;
         Advance(ticks);
         if (ticks <= Horizon)
@@ -129,8 +134,8 @@ internal sealed class TimeWindow : IGradedWindow
         }
 
         _arrivals++;
-        _held.Enqueue(new GradedPrediction(p, y), stamp);
-        _sums.Add(p, y);
+        _held.Enqueue(terms.Prediction, stamp);
+        _sums.Add(terms);
         return true;
     }
 

@@ -1,4 +1,5 @@
 using System.Diagnostics;
+using System.Runtime.InteropServices;
 
 namespace Driftline.Core.Scoring;
 
@@ -49,17 +50,19 @@ internal sealed class PendingLabelStore
         }
         int index = (_oldest + _count) % _ring.Length;
         var slot = _ring[index] ??= new PendingPrediction();
-        if (_byId.TryGetValue(id, out int previous) && !_ring[previous].Labelled)
+        // One hash lookup finds the id's entry or makes it.
+        ref int entry = ref CollectionsMarshal.GetValueRefOrAddDefault(_byId, id, out bool held);
+        if (held && !_ring[entry].Labelled)
         {
             // The earlier prediction can no longer be graded: its id now names this one.
             Waiting--;
             Expired++;
-            _ring[previous].Labelled = true;
+            _ring[entry].Labelled = true;
         }
+        entry = index;
         slot.Id = id;
         slot.TimeTicks = timeTicks;
         slot.Labelled = false;
-        _byId[id] = index;
         _count++;
         Waiting++;
         return slot;
@@ -119,9 +122,11 @@ internal sealed class PendingLabelStore
             Waiting--;
             Expired++;
         }
-        if (_byId.TryGetValue(slot.Id!, out int index) && index == _oldest)
+        // The id leaves with its slot, unless a later prediction took the id over (rare): then
+        // the entry goes back, so one lookup serves the common case.
+        if (_byId.Remove(slot.Id!, out int index) && index != _oldest)
         {
-            _byId.Remove(slot.Id!);
+            _byId.Add(slot.Id!, index);
         }
         slot.Id = null;
         _oldest = (_oldest + 1) % _ring.Length;

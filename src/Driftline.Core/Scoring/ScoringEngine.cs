@@ -36,7 +36,10 @@ internal sealed class ScoringEngine
     private readonly (TimeSpan Span, TimeWindow Model, TimeWindow Prior)[] _timeWindows;
     private readonly int[] _ruleTimeWindow;
     private readonly SegmentTracker? _segments;
+    private readonly BinEdges _edges;
     private long _clockTicks = ParsedRecord.NoTime;
+    private string? _lastKey;
+    private int _lastModel;
 
     /// <summary>Creates an engine with no models yet; options must have been validated.</summary>
     public ScoringEngine(DriftlineOptions options, IScoringSink sink)
@@ -54,6 +57,7 @@ internal sealed class ScoringEngine
         _timeWindows = spans.Select(t => (t.Span, new TimeWindow(t.Span, t.Max, options.Monitor.Bins), new TimeWindow(t.Span, t.Max, options.Monitor.Bins))).ToArray();
         _ruleTimeWindow = rules.Select(r => r.WindowTime is null ? -1 : Array.IndexOf(spans, (r.WindowTime.Value, r.Window))).ToArray();
         int bins = options.Monitor.Bins;
+        _edges = new BinEdges(bins);
         _windows = sizes.Select(s => (s, new CalibrationWindow(s, bins), new CalibrationWindow(s, bins))).ToArray();
         _reportWindow = Array.IndexOf(sizes, options.Monitor.Window);
         _rules = rules.Select(r => (new AlertRule(r), Array.IndexOf(sizes, r.Window))).ToArray();
@@ -198,20 +202,23 @@ internal sealed class ScoringEngine
         model.Prior.Add(y);
         _segments?.Add(segment, p, y);
         Counters.Labels++;
-        Totals.Add(p, y);
-        PriorTotals.Add(priorP, y);
+        // Every window and total shares the bins, so each prediction's terms are computed once.
+        var terms = GradedTerms.Of(p, y, _edges);
+        var priorTerms = GradedTerms.Of(priorP, y, _edges);
+        Totals.Add(terms);
+        PriorTotals.Add(priorTerms);
         foreach (var (_, window, priorWindow) in _windows)
         {
-            window.Add(p, y);
-            priorWindow.Add(priorP, y);
+            window.Add(terms);
+            priorWindow.Add(priorTerms);
         }
         if (timeTicks != ParsedRecord.NoTime)
         {
             var at = new DateTimeOffset(timeTicks, TimeSpan.Zero);
             foreach (var (_, window, priorWindow) in _timeWindows)
             {
-                window.Add(at, p, y);
-                priorWindow.Add(at, priorP, y);
+                window.Add(at, terms);
+                priorWindow.Add(at, priorTerms);
             }
         }
         for (int r = 0; r < _rules.Length; r++)
@@ -420,8 +427,16 @@ internal sealed class ScoringEngine
 
     private int ModelFor(string key)
     {
+        // Consecutive events mostly share a key, often the very same string (the default key,
+        // or a parser's interned one): a reference check skips the hash lookup.
+        if (ReferenceEquals(key, _lastKey))
+        {
+            return _lastModel;
+        }
         if (_modelIndex.TryGetValue(key, out int index))
         {
+            _lastKey = key;
+            _lastModel = index;
             return index;
         }
         if (_models.Count >= _options.Model.MaxModels)
