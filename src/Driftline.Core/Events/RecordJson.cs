@@ -28,20 +28,11 @@ internal static class RecordJson
 
     /// <summary>
     /// Appends <paramref name="predictions"/> to <paramref name="buffer"/> as JSON lines (one
-    /// object and a newline each), reusing <paramref name="json"/>.
+    /// object and a newline each); <paramref name="json"/> serves the rare line that needs
+    /// escaping (see <see cref="PredictionLines"/>).
     /// </summary>
-    public static void WritePredictionLines(Utf8JsonWriter json, ArrayBufferWriter<byte> buffer, ReadOnlySpan<Prediction> predictions)
-    {
-        ArgumentNullException.ThrowIfNull(json);
-        ArgumentNullException.ThrowIfNull(buffer);
-        foreach (ref readonly var p in predictions)
-        {
-            json.Reset(buffer);
-            WritePrediction(json, p);
-            json.Flush();
-            buffer.Write("\n"u8);
-        }
-    }
+    public static void WritePredictionLines(Utf8JsonWriter json, ArrayBufferWriter<byte> buffer, ReadOnlySpan<Prediction> predictions) =>
+        PredictionLines.Append(buffer, json, predictions);
 
     /// <summary>
     /// Writes an alert: <c>rule</c>, <c>state</c> (raised/cleared), <c>metric</c>, <c>value</c>,
