@@ -1,5 +1,4 @@
 using System.Diagnostics;
-using System.Runtime.InteropServices;
 
 namespace Driftline.Core.Scoring;
 
@@ -13,8 +12,8 @@ namespace Driftline.Core.Scoring;
 /// </summary>
 internal sealed class PendingLabelStore
 {
-    private readonly PendingPrediction[] _ring;
-    private readonly Dictionary<string, int> _byId;
+    private readonly PendingPrediction?[] _ring;
+    private readonly PendingIndex _byId;
     private readonly long _maxAgeTicks;
     private int _oldest;
     private int _count;
@@ -25,7 +24,7 @@ internal sealed class PendingLabelStore
         ArgumentOutOfRangeException.ThrowIfLessThan(capacity, 1);
         ArgumentOutOfRangeException.ThrowIfLessThanOrEqual(maxAge, TimeSpan.Zero);
         _ring = new PendingPrediction[capacity];
-        _byId = new Dictionary<string, int>(Math.Min(capacity, 1 << 16), StringComparer.Ordinal);
+        _byId = new PendingIndex(_ring);
         _maxAgeTicks = maxAge.Ticks;
     }
 
@@ -50,17 +49,17 @@ internal sealed class PendingLabelStore
         }
         int index = (_oldest + _count) % _ring.Length;
         var slot = _ring[index] ??= new PendingPrediction();
-        // One hash lookup finds the id's entry or makes it.
-        ref int entry = ref CollectionsMarshal.GetValueRefOrAddDefault(_byId, id, out bool held);
-        if (held && !_ring[entry].Labelled)
+        int hash = PendingIndex.Hash(id);
+        slot.Id = id;
+        slot.IdHash = hash;
+        int previous = _byId.Set(id, hash, index);
+        if (previous >= 0 && !_ring[previous]!.Labelled)
         {
             // The earlier prediction can no longer be graded: its id now names this one.
             Waiting--;
             Expired++;
-            _ring[entry].Labelled = true;
+            _ring[previous]!.Labelled = true;
         }
-        entry = index;
-        slot.Id = id;
         slot.TimeTicks = timeTicks;
         slot.Labelled = false;
         _count++;
@@ -72,11 +71,12 @@ internal sealed class PendingLabelStore
     public LabelJoin TryJoin(string id, out PendingPrediction? prediction)
     {
         prediction = null;
-        if (!_byId.TryGetValue(id, out int index))
+        int index = _byId.Find(id, PendingIndex.Hash(id));
+        if (index < 0)
         {
             return LabelJoin.UnknownId;
         }
-        var slot = _ring[index];
+        var slot = _ring[index]!;
         if (slot.Labelled)
         {
             return LabelJoin.Duplicate;
@@ -92,7 +92,7 @@ internal sealed class PendingLabelStore
     {
         while (_count > 0)
         {
-            var oldest = _ring[_oldest];
+            var oldest = _ring[_oldest]!;
             if (oldest.TimeTicks == Events.ParsedRecord.NoTime || nowTicks - oldest.TimeTicks <= _maxAgeTicks)
             {
                 return;
@@ -106,7 +106,7 @@ internal sealed class PendingLabelStore
     {
         for (int i = 0; i < _count; i++)
         {
-            yield return _ring[(_oldest + i) % _ring.Length];
+            yield return _ring[(_oldest + i) % _ring.Length]!;
         }
     }
 
@@ -116,18 +116,14 @@ internal sealed class PendingLabelStore
     private void Evict()
     {
         Debug.Assert(_count > 0, "evicting from an empty store");
-        var slot = _ring[_oldest];
+        var slot = _ring[_oldest]!;
         if (!slot.Labelled)
         {
             Waiting--;
             Expired++;
         }
-        // The id leaves with its slot, unless a later prediction took the id over (rare): then
-        // the entry goes back, so one lookup serves the common case.
-        if (_byId.Remove(slot.Id!, out int index) && index != _oldest)
-        {
-            _byId.Add(slot.Id!, index);
-        }
+        // The id leaves with its slot, unless a later prediction has taken the id over.
+        _byId.Remove(slot.IdHash, _oldest);
         slot.Id = null;
         _oldest = (_oldest + 1) % _ring.Length;
         _count--;

@@ -12,6 +12,9 @@ internal sealed class PendingPrediction
     /// <summary>The event id, or null for a free slot.</summary>
     public string? Id { get; set; }
 
+    /// <summary>The id's hash in the store's index (<see cref="PendingIndex.Hash"/>).</summary>
+    public int IdHash { get; set; }
+
     /// <summary>Index of the model that scored it.</summary>
     public int Model { get; set; }
 
