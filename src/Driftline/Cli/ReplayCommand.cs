@@ -226,7 +226,7 @@ internal sealed class ReplayCommand(CommandContext context)
         var total = engine.Totals.Current;
         var prior = engine.PriorTotals.Current;
         string what = MonitorOnly ? $"{c.Probabilities:N0} probabilities" : $"{c.Events:N0} events scored";
-        o.WriteLine($"{(MonitorOnly ? "Monitored" : "Replayed")} {pipeline.Lines:N0} lines in {elapsed.TotalSeconds:0.0} s: {what}, {c.Labels:N0} labels ({c.LateLabels:N0} late), {engine.Pending.Expired:N0} expired, {lane.DeadLetters:N0} dead letters.");
+        o.WriteLine($"{(MonitorOnly ? "Monitored" : "Replayed")} {pipeline.Lines:N0} lines in {elapsed.TotalSeconds:0.00} s: {what}, {c.Labels:N0} labels ({c.LateLabels:N0} late), {engine.Pending.Expired:N0} expired, {lane.DeadLetters:N0} dead letters.");
         if (total.IsReady)
         {
             o.WriteLine($"Log-loss {total.LogLoss:0.0000} against {prior.LogLoss:0.0000} for the class prior; Brier {total.Brier:0.0000}; ECE {total.Ece:0.0000}.");
