@@ -19,7 +19,7 @@ namespace Driftline.Core.Metrics;
 /// Cost of the rounding: at most 2^-64 ≈ 5.4e-20 per term, toward zero, far below the
 /// 1.1e-16 relative resolution of the double the mean is reported in. Range: terms are bounded
 /// by <see cref="MaxTerm"/> (log-loss terms are at most 36.05), so a sum of 2^57 terms cannot
-/// overflow; arithmetic is checked regardless, so an overflow would throw rather than wrap.
+/// overflow, which is why the running sums add without overflow checks.
 /// </para>
 /// </remarks>
 internal static class FixedPoint
@@ -41,6 +41,15 @@ internal static class FixedPoint
     public static Int128 FromDouble(double term)
     {
         System.Diagnostics.Debug.Assert(double.IsFinite(term) && Math.Abs(term) <= MaxTerm, "term out of fixed-point range");
+        if (term >= 0)
+        {
+            // The same value as the conversion below, in two machine conversions instead of the
+            // general 128-bit one: the integer part is exact, the fraction below it is exact
+            // (both are representable), and fraction · 2^64 is exact and below 2^64, so
+            // truncating it truncates term · 2^64. Every term the windows sum is non-negative.
+            ulong whole = (ulong)term;
+            return new Int128(whole, (ulong)((term - whole) * Scale));
+        }
         // Multiplying by a power of two is exact; the conversion truncates the fraction.
         return (Int128)(term * Scale);
     }
