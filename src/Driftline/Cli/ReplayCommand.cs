@@ -136,6 +136,9 @@ internal sealed class ReplayCommand(CommandContext context)
             outputs[i].Webhook = webhooks[i];
         }
 
+        // On a long input, the end-of-run files' first-use costs are paid while the run goes on;
+        // a short one would only wait for them.
+        var warmUp = input.CanSeek && input.Length >= OutputWarmUp.MinInputBytes ? OutputWarmUp.Start(configs[0].Options, !MonitorOnly) : Task.CompletedTask;
         var clock = Stopwatch.StartNew();
         try
         {
@@ -162,6 +165,7 @@ internal sealed class ReplayCommand(CommandContext context)
         clock.Stop();
         Report(progress, pipeline, done: true);
 
+        await warmUp.ConfigureAwait(false);
         var o = context.Out;
         for (int i = 0; i < lanes.Count; i++)
         {

@@ -32,6 +32,27 @@ internal static class ReportWriter
     public static void WriteComparison(string path, string input, IReadOnlyList<ReportData> runs) =>
         File.WriteAllText(path, Comparison(input, runs), new UTF8Encoding(false));
 
+    /// <summary>
+    /// Renders a small throwaway report, so that the chart library's first-use costs (loading
+    /// fonts, native set-up, code not compiled ahead of time) are paid while the replay still
+    /// runs, not after it.
+    /// </summary>
+    public static void WarmUp()
+    {
+        var options = new DriftlineOptions();
+        var run = new ReportData("warm-up", options);
+        for (int i = 1; i <= 3; i++)
+        {
+            run.Points.Add(new ReportPoint(i * 1000, i * 1500, 1000, 0.5, 0.6, 0.01 * i, 0.02, i * 300, 0));
+        }
+        var totals = new Core.Metrics.CalibrationTotals(options.Monitor.Bins);
+        totals.Add(0.25, 0);
+        totals.Add(0.75, 1);
+        run.WholeRun = new Core.Metrics.ReliabilityBin[totals.Bins];
+        totals.CopyBins(run.WholeRun);
+        _ = Single("warm-up", run);
+    }
+
     /// <summary>The report of one run, as HTML.</summary>
     public static string Single(string input, ReportData run)
     {
