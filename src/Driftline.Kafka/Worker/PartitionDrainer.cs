@@ -4,8 +4,8 @@ namespace Driftline.Kafka.Worker;
 
 /// <summary>
 /// Runs the partitions' queued records through their engines, in merged order and as far as
-/// the merge allows: side by side on the pool (each engine has its own sink and parser), at
-/// most one batch at a time. <see cref="Start"/> hands a batch to the pool so the loop thread
+/// the merge allows: side by side on the pool (each engine has its own sink and parser) on up
+/// to <see cref="DrainThreads"/> threads, at most one batch at a time. <see cref="Start"/> hands a batch to the pool so the loop thread
 /// can fetch the next one meanwhile; <see cref="Finish"/> waits for it. Owned by the worker
 /// loop: only the loop thread calls it, and it touches the partitions' queues, engines and
 /// positions only while a batch is in flight (the loop leaves them alone until
@@ -58,14 +58,22 @@ internal sealed class PartitionDrainer(KafkaOptions options)
     /// <summary>Drains <paramref name="busy"/> on this thread and the pool and returns the records processed.</summary>
     public int DrainNow(List<PartitionState> busy) => DrainAll(busy, Environment.TickCount64);
 
+    /// <summary>
+    /// Threads a batch drains on: one core fewer than the machine has (at least one), because
+    /// the loop thread consumes the next batch meanwhile and librdkafka's threads need a core
+    /// too. On 2 cores one drain thread gave the worker 251k msg/s against 225k with two
+    /// (medians of 7 alternating benchmark runs), and a lower p99 latency (176 ms against 296).
+    /// </summary>
+    private static readonly int DrainThreads = Math.Max(1, Environment.ProcessorCount - 1);
+
     private int DrainAll(List<PartitionState> busy, long now)
     {
         long hold = (long)options.LabelHold.TotalMilliseconds;
         int done = 0;
-        if (busy.Count > 1 && Environment.ProcessorCount > 1)
+        if (busy.Count > 1 && DrainThreads > 1)
         {
             // Engines are independent, one per partition: drain them side by side.
-            Parallel.ForEach(busy, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, state =>
+            Parallel.ForEach(busy, new ParallelOptions { MaxDegreeOfParallelism = DrainThreads }, state =>
                 Interlocked.Add(ref done, Drain(state, now, hold)));
         }
         else
