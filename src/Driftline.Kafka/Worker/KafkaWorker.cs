@@ -1,5 +1,7 @@
 using Driftline.Core.Alerts;
 using System.Collections.Concurrent;
+using System.Diagnostics;
+using System.Runtime.ExceptionServices;
 using Confluent.Kafka;
 using Driftline.Core.Options;
 using Driftline.Core.Scoring;
@@ -18,9 +20,14 @@ namespace Driftline.Kafka.Worker;
 /// <para>One loop thread consumes, routes records to their partitions and runs the
 /// rebalance callbacks (inside Consume), which is what makes "finish the in-flight work, then
 /// give the partition up" exact without locks. The partitions' engines are independent, so
-/// each batch is drained partition by partition side by side on the pool, and the loop waits
-/// for them before it consumes again. librdkafka's own threads fetch ahead and send behind
-/// through bounded queues (fetch queue, send queue), with pausing and a full send queue as
+/// each batch is drained partition by partition side by side on the pool
+/// (<see cref="PartitionDrainer"/>) while the loop consumes the next batch into a staging list
+/// (at most <see cref="MaxPull"/> records a topic); the loop then waits for the batch, queues
+/// the staged records and starts the next one. Queues, positions and snapshots are touched by
+/// the loop only between two batches, and every rebalance callback first waits for the batch
+/// in flight and queues what was staged, so the callbacks see the same state as if the loop
+/// had drained in line. librdkafka's own threads fetch ahead and send behind through bounded
+/// queues (fetch queue, send queue), with pausing and a full send queue as
 /// backpressure.</para>
 /// <para>Commit rule: a partition's offset is committed only after the producer has flushed
 /// (every prediction before it acknowledged by the broker) and the checkpoint holding the
@@ -46,6 +53,10 @@ internal sealed class KafkaWorker
     private bool _failed;
     private CheckpointCommitter? _committer;
     private CheckpointLoader? _loader;
+    private readonly PartitionDrainer _drainer;
+    private readonly List<ConsumeResult<byte[]?, byte[]>> _stagedEvents = [];
+    private readonly List<ConsumeResult<byte[]?, byte[]>> _stagedLabels = [];
+    private ExceptionDispatchInfo? _drainFault;
 
     /// <summary>Also sees every alert of every partition (called from the partitions' threads; must be thread-safe and not block), or null.</summary>
     public Action<AlertTransition>? AlertObserver { get; init; }
@@ -58,6 +69,7 @@ internal sealed class KafkaWorker
         _options = options;
         _core = core;
         _store = new CheckpointStore(options.CheckpointDir);
+        _drainer = new PartitionDrainer(options);
         Stats = stats ?? new WorkerStats();
     }
 
@@ -100,20 +112,22 @@ internal sealed class KafkaWorker
             using var events = Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.EventsConsumer(_options))
                 .SetErrorHandler((_, e) => OnError("events consumer", e))
                 .SetLogHandler((_, m) => ClientLog.Write("events consumer", m))
-                .SetPartitionsAssignedHandler((_, assigned) => OnAssigned(assigned))
+                .SetPartitionsAssignedHandler((c, assigned) => OnAssigned(c, assigned))
                 .SetPartitionsRevokedHandler((c, revoked) => OnRevoked(c, revoked))
-                .SetPartitionsLostHandler((_, lost) => OnLost(lost)));
+                .SetPartitionsLostHandler((c, lost) => OnLost(c, lost)));
             try
             {
                 events.Subscribe(_options.EventsTopic);
                 Stats.Running = true;
                 Loop(events, stop);
+                ThrowIfFatal();
                 _committer!.CheckpointAndCommit(events, _partitions.Values.ToList(), wait: true);
                 Drop(_partitions.Keys.ToList());
             }
             catch
             {
                 _failed = true;
+                AbandonDrain();
                 throw;
             }
             finally
@@ -158,12 +172,15 @@ internal sealed class KafkaWorker
         while (!stop.IsCancellationRequested)
         {
             ThrowIfFatal();
+            // While the engines drain the last batch on the pool, this thread fetches the next one.
             int got = Pull(events, fromLabels: false, idle ? IdleWait : TimeSpan.Zero);
             if (_labels is not null)
             {
                 got += Pull(_labels, fromLabels: true, TimeSpan.Zero);
             }
-            int done = ProcessReady(events);
+            ThrowIfFatal();
+            // From here to StartDrain the engines are idle: queues, positions and snapshots are the loop's.
+            int done = FinishDrain(events);
             idle = got == 0 && done == 0;
             if (_committer!.WriteCompleted)
             {
@@ -176,11 +193,20 @@ internal sealed class KafkaWorker
                 _committer!.CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList(), wait: false);
                 Stats.Lag = TopicChecks.Lag(events, _options.EventsTopic, _partitions.Values);
             }
+            ApplyStaged(events);
+            _drainer.Start(Busy());
         }
+        FinishDrain(events);
     }
 
+    /// <summary>
+    /// Consumes up to <see cref="MaxPull"/> records into the staging list without touching the
+    /// partitions (a batch may be draining them): <see cref="ApplyStaged"/> queues them later,
+    /// in the order consumed, on this thread.
+    /// </summary>
     private int Pull(IConsumer<byte[]?, byte[]> consumer, bool fromLabels, TimeSpan firstWait)
     {
+        var staged = fromLabels ? _stagedLabels : _stagedEvents;
         int got = 0;
         for (int i = 0; i < MaxPull; i++)
         {
@@ -189,90 +215,140 @@ internal sealed class KafkaWorker
             {
                 break;
             }
-            if (!_partitions.TryGetValue(result.Partition.Value, out var state))
+            staged.Add(result);
+            if (!result.IsPartitionEOF)
             {
-                continue; // fetched before the partition was given up
-            }
-            long next = fromLabels ? state.LabelsNext : state.EventsNext;
-            if (result.IsPartitionEOF)
-            {
-                if (fromLabels)
-                {
-                    state.LabelsAtEnd = true;
-                    state.LabelsNext = next == PartitionState.Unknown && state.Labels.Count == 0 ? result.Offset.Value : next;
-                }
-                else
-                {
-                    state.EventsAtEnd = true;
-                    state.EventsNext = next == PartitionState.Unknown && state.Events.Count == 0 ? result.Offset.Value : next;
-                }
-                continue;
-            }
-            var queue = fromLabels ? state.Labels : state.Events;
-            long queuedUpTo = fromLabels ? state.LabelsQueuedUpTo : state.EventsQueuedUpTo;
-            if (queuedUpTo != PartitionState.Unknown && result.Offset.Value < queuedUpTo)
-            {
-                continue; // already processed or queued (a re-fetch after a seek)
-            }
-            got++;
-            if (fromLabels)
-            {
-                state.LabelsQueuedUpTo = result.Offset.Value + 1;
-            }
-            else
-            {
-                state.EventsQueuedUpTo = result.Offset.Value + 1;
-            }
-            queue.Enqueue(new BufferedRecord(result.Offset.Value, result.Message.Timestamp.UnixTimestampMs, result.Message.Key, result.Message.Value ?? [], Environment.TickCount64));
-            if (fromLabels)
-            {
-                state.LabelsAtEnd = false;
-                Stats.LabelsIn++;
-            }
-            else
-            {
-                state.EventsAtEnd = false;
-                state.EventsWatermarkMs = Math.Max(state.EventsWatermarkMs, result.Message.Timestamp.UnixTimestampMs);
-                Stats.EventsIn++;
-            }
-            if (queue.Count >= _options.MaxBufferedPerPartition)
-            {
-                // Backpressure: the other side is behind; stop fetching this side until the merge catches up.
-                consumer.Pause([result.TopicPartition]);
-                if (fromLabels)
-                {
-                    state.LabelsPaused = true;
-                }
-                else
-                {
-                    state.EventsPaused = true;
-                }
+                got++;
             }
         }
         return got;
     }
 
-    private int ProcessReady(IConsumer<byte[]?, byte[]> events)
+    /// <summary>Queues the staged records on their partitions (engines idle), events first, as <see cref="Pull"/> consumed them.</summary>
+    private void ApplyStaged(IConsumer<byte[]?, byte[]> events)
     {
-        long now = Environment.TickCount64;
-        long hold = (long)_options.LabelHold.TotalMilliseconds;
-        var busy = _partitions.Values.Where(s => s.Events.Count + s.Labels.Count > 0).ToList();
-        int done = 0;
-        if (busy.Count > 1 && Environment.ProcessorCount > 1)
+        Debug.Assert(!_drainer.InFlight, "the partitions' queues belong to the drain in flight");
+        ApplyAll(events, _stagedEvents, fromLabels: false);
+        if (_labels is not null)
         {
-            // Engines are independent, one per partition: drain them side by side.
-            Parallel.ForEach(busy, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, state =>
-                Interlocked.Add(ref done, Drain(state, now, hold)));
+            ApplyAll(_labels, _stagedLabels, fromLabels: true);
+        }
+    }
+
+    private void ApplyAll(IConsumer<byte[]?, byte[]> consumer, List<ConsumeResult<byte[]?, byte[]>> staged, bool fromLabels)
+    {
+        foreach (var result in staged)
+        {
+            Apply(consumer, result, fromLabels);
+        }
+        staged.Clear();
+    }
+
+    private void Apply(IConsumer<byte[]?, byte[]> consumer, ConsumeResult<byte[]?, byte[]> result, bool fromLabels)
+    {
+        if (!_partitions.TryGetValue(result.Partition.Value, out var state))
+        {
+            return; // fetched before the partition was given up
+        }
+        long next = fromLabels ? state.LabelsNext : state.EventsNext;
+        if (result.IsPartitionEOF)
+        {
+            if (fromLabels)
+            {
+                state.LabelsAtEnd = true;
+                state.LabelsNext = next == PartitionState.Unknown && state.Labels.Count == 0 ? result.Offset.Value : next;
+            }
+            else
+            {
+                state.EventsAtEnd = true;
+                state.EventsNext = next == PartitionState.Unknown && state.Events.Count == 0 ? result.Offset.Value : next;
+            }
+            return;
+        }
+        var queue = fromLabels ? state.Labels : state.Events;
+        long queuedUpTo = fromLabels ? state.LabelsQueuedUpTo : state.EventsQueuedUpTo;
+        if (queuedUpTo != PartitionState.Unknown && result.Offset.Value < queuedUpTo)
+        {
+            return; // already processed or queued (a re-fetch after a seek)
+        }
+        if (fromLabels)
+        {
+            state.LabelsQueuedUpTo = result.Offset.Value + 1;
         }
         else
         {
-            foreach (var state in busy)
+            state.EventsQueuedUpTo = result.Offset.Value + 1;
+        }
+        queue.Enqueue(new BufferedRecord(result.Offset.Value, result.Message.Timestamp.UnixTimestampMs, result.Message.Key, result.Message.Value ?? [], Environment.TickCount64));
+        if (fromLabels)
+        {
+            state.LabelsAtEnd = false;
+            Stats.LabelsIn++;
+        }
+        else
+        {
+            state.EventsAtEnd = false;
+            state.EventsWatermarkMs = Math.Max(state.EventsWatermarkMs, result.Message.Timestamp.UnixTimestampMs);
+            Stats.EventsIn++;
+        }
+        if (queue.Count >= _options.MaxBufferedPerPartition)
+        {
+            // Backpressure: the other side is behind; stop fetching this side until the merge catches up.
+            consumer.Pause([result.TopicPartition]);
+            if (fromLabels)
             {
-                done += Drain(state, now, hold);
+                state.LabelsPaused = true;
+            }
+            else
+            {
+                state.EventsPaused = true;
             }
         }
-        foreach (var state in busy)
+    }
+
+    private List<PartitionState> Busy() => _partitions.Values.Where(s => s.Events.Count + s.Labels.Count > 0).ToList();
+
+    /// <summary>Waits for the batch in flight, if any, and collects its counts, model keys and resumes; returns the records it processed.</summary>
+    private int FinishDrain(IConsumer<byte[]?, byte[]> events)
+    {
+        var (drained, done) = _drainer.Finish();
+        AfterDrain(events, drained);
+        return done;
+    }
+
+    /// <summary>
+    /// <see cref="FinishDrain"/> inside a rebalance callback: a failed batch is kept for the
+    /// loop to rethrow (the client would wrap it), and marks the engines unusable, so the
+    /// callback gives the partitions up without a checkpoint.
+    /// </summary>
+    private void SettleDrain(IConsumer<byte[]?, byte[]> events)
+    {
+        try
         {
+            FinishDrain(events);
+        }
+        catch (Exception ex)
+        {
+            _drainFault ??= ExceptionDispatchInfo.Capture(ex);
+        }
+    }
+
+    /// <summary>Finishes what the merge can take now, on this thread and the pool (engines idle otherwise).</summary>
+    private void ProcessReady(IConsumer<byte[]?, byte[]> events)
+    {
+        var busy = Busy();
+        _drainer.DrainNow(busy);
+        AfterDrain(events, busy);
+    }
+
+    private void AfterDrain(IConsumer<byte[]?, byte[]> events, List<PartitionState> drained)
+    {
+        foreach (var state in drained)
+        {
+            if (!_partitions.ContainsKey(state.Partition))
+            {
+                continue; // given up while it drained: its counts and keys went with it
+            }
             state.Counts.MoveTo(Stats);
             foreach (var model in state.Engine.Models.Skip(state.KnownModels))
             {
@@ -282,31 +358,6 @@ internal sealed class KafkaWorker
             Resume(events, state, fromLabels: false);
             Resume(_labels, state, fromLabels: true);
         }
-        return done;
-    }
-
-    /// <summary>Runs one partition's records in merged order as far as the merge allows.</summary>
-    private int Drain(PartitionState state, long now, long hold)
-    {
-        int done = 0;
-        while (state.TryTakeNext(now, hold, out var record, out bool fromLabels))
-        {
-            string topic = fromLabels ? _options.LabelsTopic! : _options.EventsTopic;
-            if (state.Processor!.Process(state.Engine, record, topic, state.Partition))
-            {
-                state.LabelsSinceCheckpoint++;
-            }
-            if (fromLabels)
-            {
-                state.LabelsNext = record.Offset + 1;
-            }
-            else
-            {
-                state.EventsNext = record.Offset + 1;
-            }
-            done++;
-        }
-        return done;
     }
 
     private void Resume(IConsumer<byte[]?, byte[]>? consumer, PartitionState state, bool fromLabels)
@@ -328,8 +379,11 @@ internal sealed class KafkaWorker
         }
     }
 
-    private List<TopicPartitionOffset> OnAssigned(List<TopicPartition> assigned)
+    private List<TopicPartitionOffset> OnAssigned(IConsumer<byte[]?, byte[]> events, List<TopicPartition> assigned)
     {
+        // Records consumed before this callback belong to the partitions owned before it.
+        SettleDrain(events);
+        ApplyStaged(events);
         var start = new List<TopicPartitionOffset>();
         var labels = new List<TopicPartitionOffset>();
         Dictionary<int, PartitionCheckpoint?> checkpoints;
@@ -382,25 +436,30 @@ internal sealed class KafkaWorker
 
     private void OnRevoked(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> revoked)
     {
+        SettleDrain(events);
         var states = revoked.Select(tp => _partitions.GetValueOrDefault(tp.Partition.Value)).OfType<PartitionState>().ToList();
         if (states.Count == 0)
         {
+            ApplyStaged(events);
             return;
         }
-        if (_failed || _fatal is not null)
+        if (_failed || _fatal is not null || _drainFault is not null)
         {
             Drop(states.Select(s => s.Partition).ToList());
             return;
         }
-        // Finish what is in flight (records the merge can take now), make it durable, commit, give up.
+        // Finish what is in flight (records consumed, and what the merge can take now), make it durable, commit, give up.
+        ApplyStaged(events);
         ProcessReady(events);
         _committer!.CheckpointAndCommit(events, states, wait: true);
         Drop(states.Select(s => s.Partition).ToList());
         Log.Information("Partitions {Partitions} revoked: checkpointed and committed", states.Select(s => s.Partition).ToArray());
     }
 
-    private void OnLost(List<TopicPartitionOffset> lost)
+    private void OnLost(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> lost)
     {
+        SettleDrain(events);
+        ApplyStaged(events);
         // Another member may own them already: no checkpoint, no commit, just forget them.
         var partitions = lost.Select(tp => tp.Partition.Value).Where(_partitions.ContainsKey).ToList();
         Drop(partitions);
@@ -453,8 +512,22 @@ internal sealed class KafkaWorker
         }
     }
 
+    /// <summary>On the way out after a failure: lets a batch in flight end (it uses the producer) without adding its error to the one that stops the worker.</summary>
+    private void AbandonDrain()
+    {
+        try
+        {
+            _drainer.Finish();
+        }
+        catch (Exception ex)
+        {
+            Log.Debug(ex, "A drain in flight failed as well while the worker stopped");
+        }
+    }
+
     private void ThrowIfFatal()
     {
+        _drainFault?.Throw();
         string? fatal = Volatile.Read(ref _fatal) ?? _delivery.Error;
         if (fatal is not null)
         {
