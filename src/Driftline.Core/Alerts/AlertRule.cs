@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using Driftline.Core.Detectors;
 using Driftline.Core.Metrics;
 
@@ -62,6 +63,7 @@ internal sealed class AlertRule
     /// Evaluates the rule on the window's current measures. Returns the new state when it
     /// changes, null otherwise (also while the window has fewer than MinLabels labels).
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public bool? Evaluate(IGradedWindow model, IGradedWindow prior, double p, int y, out double value)
     {
         ArgumentNullException.ThrowIfNull(model);

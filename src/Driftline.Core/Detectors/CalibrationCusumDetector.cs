@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
 using Driftline.Core.Metrics;
 
@@ -215,6 +216,7 @@ internal sealed class CalibrationCusumDetector : IChangeDetector
     /// <param name="p">The probability the model claimed, in [0, 1].</param>
     /// <param name="y">The outcome, 0 or 1.</param>
     /// <exception cref="ArgumentOutOfRangeException">p is NaN, infinite or outside [0, 1], or y is not 0 or 1; the detector is unchanged.</exception>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public DetectorState Add(double p, int y)
     {
         PredictionScores.Validate(p, y);

@@ -1,4 +1,5 @@
 using System.Buffers;
+using System.Runtime.CompilerServices;
 using System.Text;
 using System.Text.Json;
 using Driftline.Core.Features;
@@ -59,6 +60,7 @@ internal sealed class EventParser
     /// <paramref name="error"/> to a plain-language reason when the record is rejected; the
     /// record's content is then unspecified.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public bool TryParse(ReadOnlySpan<byte> utf8, ParsedRecord record, out string? error)
     {
         record.Reset();
@@ -79,6 +81,7 @@ internal sealed class EventParser
         return error is null;
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private string? ParseObject(ReadOnlySpan<byte> utf8, ParsedRecord record)
     {
         var reader = new Utf8JsonReader(utf8, new JsonReaderOptions { AllowTrailingCommas = false, CommentHandling = JsonCommentHandling.Disallow });
@@ -220,6 +223,7 @@ internal sealed class EventParser
         }
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private string? ReadFeatures(ref Utf8JsonReader reader, ParsedRecord record)
     {
         while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
@@ -268,6 +272,7 @@ internal sealed class EventParser
         return null;
     }
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void AddCategorical(ref Utf8JsonReader reader, ParsedRecord record, scoped ReadOnlySpan<byte> name, ulong nameHash)
     {
         ReadOnlySpan<byte> value = Unescaped(ref reader, ref _valueScratch);

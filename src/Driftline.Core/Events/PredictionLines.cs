@@ -1,5 +1,6 @@
 using System.Buffers;
 using System.Globalization;
+using System.Runtime.CompilerServices;
 using System.Text;
 using System.Text.Json;
 using Driftline.Core.Scoring;
@@ -31,6 +32,7 @@ internal static class PredictionLines
     /// Appends each prediction as one JSON object and a newline; <paramref name="json"/> is
     /// used (and reset) only for the rare line that needs escaping.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static void Append(ArrayBufferWriter<byte> buffer, Utf8JsonWriter json, ReadOnlySpan<Prediction> predictions)
     {
         ArgumentNullException.ThrowIfNull(buffer);

@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using System.Text;
 using Driftline.Core.Events;
 using Driftline.Core.Options;
@@ -43,6 +44,7 @@ internal sealed class Featurizer
     /// the running scaling statistics: scaling uses feature values only, never labels, so
     /// progressive validation stays honest.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void Featurize(ParsedRecord record, SparseVector into)
     {
         into.Clear();

@@ -34,6 +34,7 @@ internal sealed class NumericScaler
     /// returns it standardised, (x − mean) / sd, clipped to ±limit. Returns 0 while the
     /// feature has fewer than two values or no spread: there is no scale to apply yet.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public double Standardise(ulong nameHash, double x)
     {
         if (!_index.TryGetValue(nameHash, out int i))

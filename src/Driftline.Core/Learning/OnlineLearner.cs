@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using Driftline.Core.Features;
 using Driftline.Core.Options;
 
@@ -46,6 +47,7 @@ internal abstract class OnlineLearner
     protected double Inflation { get; private set; } = 1.0;
 
     /// <summary>The log-odds of <paramref name="x"/> under the current weights.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public double Margin(SparseVector x)
     {
         var slots = x.Slots;
@@ -72,6 +74,7 @@ internal abstract class OnlineLearner
     /// <paramref name="x"/> under the current weights (saves a second pass when the label comes
     /// with the event).
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public bool Update(SparseVector x, int y, double p)
     {
         double g = p - y;

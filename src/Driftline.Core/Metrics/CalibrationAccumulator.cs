@@ -1,4 +1,5 @@
 using System.Diagnostics;
+using System.Runtime.CompilerServices;
 
 namespace Driftline.Core.Metrics;
 
@@ -214,6 +215,7 @@ internal sealed class CalibrationAccumulator
     // The owning window has validated (p, y) already.
     private GradedTerms Terms(double p, int y) => GradedTerms.Of(p, y, _edges);
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void Apply(in GradedTerms t, int sign)
     {
         int bin = t.Bin;

@@ -82,6 +82,7 @@ internal sealed class CalibrationWindow : IGradedWindow
     /// <see cref="GradedTerms"/>), evicting the oldest when the window is full. The same as
     /// <see cref="Add(double, int)"/> with the terms' p and y, without computing them again.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void Add(in GradedTerms terms)
     {
         if (_count == _ring.Length)

@@ -1,4 +1,5 @@
 using System.Diagnostics;
+using System.Runtime.CompilerServices;
 
 namespace Driftline.Core.Scoring;
 
@@ -34,6 +35,7 @@ internal sealed class PendingIndex
     public static int Hash(string id) => id.GetHashCode(StringComparison.Ordinal);
 
     /// <summary>The slot holding <paramref name="id"/>, or −1.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public int Find(string id, int hash)
     {
         for (int i = hash & _mask; ; i = (i + 1) & _mask)
@@ -51,6 +53,7 @@ internal sealed class PendingIndex
     }
 
     /// <summary>Files <paramref name="id"/> under <paramref name="slot"/>; returns the slot it had before, or −1.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public int Set(string id, int hash, int slot)
     {
         for (int i = hash & _mask; ; i = (i + 1) & _mask)
@@ -74,6 +77,7 @@ internal sealed class PendingIndex
     /// Removes the entry that points at <paramref name="slot"/> (its id hashing to
     /// <paramref name="hash"/>); nothing when the id has been filed under a later slot since.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void Remove(int hash, int slot)
     {
         int i = hash & _mask;

@@ -1,4 +1,5 @@
 using System.Diagnostics;
+using System.Runtime.CompilerServices;
 
 namespace Driftline.Core.Scoring;
 
@@ -41,6 +42,7 @@ internal sealed class PendingLabelStore
     /// Stores a prediction and returns its slot for the caller to fill (features and
     /// probabilities). A second prediction with an id already held takes the id over.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public PendingPrediction Add(string id, long timeTicks)
     {
         if (_count == _ring.Length)
@@ -68,6 +70,7 @@ internal sealed class PendingLabelStore
     }
 
     /// <summary>Finds the pending prediction for <paramref name="id"/> and marks it graded.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public LabelJoin TryJoin(string id, out PendingPrediction? prediction)
     {
         prediction = null;
@@ -88,6 +91,7 @@ internal sealed class PendingLabelStore
     }
 
     /// <summary>Drops predictions older than the age limit relative to <paramref name="nowTicks"/>.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void ExpireBefore(long nowTicks)
     {
         while (_count > 0)
@@ -113,6 +117,7 @@ internal sealed class PendingLabelStore
     /// <summary>Restores the counters of a snapshot (entries are re-added with <see cref="Add"/>).</summary>
     public void RestoreCounters(long expired) => Expired = expired;
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void Evict()
     {
         Debug.Assert(_count > 0, "evicting from an empty store");
