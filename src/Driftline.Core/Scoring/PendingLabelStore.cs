@@ -13,7 +13,17 @@ namespace Driftline.Core.Scoring;
 /// </summary>
 internal sealed class PendingLabelStore
 {
+    // Features of up to this many per event are kept in the store's shared arrays (the demo's
+    // events carry about a dozen); more spill into arrays of the entry's own.
+    private const int FeatureStride = 16;
+
+    // The shared arrays come in chunks of this many entries (12 MB), made when the ring first
+    // reaches them, so memory follows the entries in use rather than the configured maximum.
+    private const int ChunkEntries = 1 << 16;
+
     private readonly PendingPrediction?[] _ring;
+    private readonly int[]?[] _featureSlots;
+    private readonly double[]?[] _featureValues;
     private readonly PendingIndex _byId;
     private readonly long _maxAgeTicks;
     private int _oldest;
@@ -25,6 +35,9 @@ internal sealed class PendingLabelStore
         ArgumentOutOfRangeException.ThrowIfLessThan(capacity, 1);
         ArgumentOutOfRangeException.ThrowIfLessThanOrEqual(maxAge, TimeSpan.Zero);
         _ring = new PendingPrediction[capacity];
+        int chunks = (capacity + ChunkEntries - 1) / ChunkEntries;
+        _featureSlots = new int[chunks][];
+        _featureValues = new double[chunks][];
         _byId = new PendingIndex(_ring);
         _maxAgeTicks = maxAge.Ticks;
     }
@@ -50,7 +63,7 @@ internal sealed class PendingLabelStore
             Evict();
         }
         int index = (_oldest + _count) % _ring.Length;
-        var slot = _ring[index] ??= new PendingPrediction();
+        var slot = _ring[index] ??= NewEntry(index);
         int hash = PendingIndex.Hash(id);
         slot.Id = id;
         slot.IdHash = hash;
@@ -118,6 +131,16 @@ internal sealed class PendingLabelStore
     public void RestoreCounters(long expired) => Expired = expired;
 
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private PendingPrediction NewEntry(int index)
+    {
+        int chunk = index / ChunkEntries;
+        // Uninitialised: an entry writes its features before they are read, and pages are
+        // touched only as entries are used.
+        var slots = _featureSlots[chunk] ??= GC.AllocateUninitializedArray<int>(ChunkEntries * FeatureStride);
+        var values = _featureValues[chunk] ??= GC.AllocateUninitializedArray<double>(ChunkEntries * FeatureStride);
+        return new PendingPrediction(slots, values, index % ChunkEntries * FeatureStride, FeatureStride);
+    }
+
     private void Evict()
     {
         Debug.Assert(_count > 0, "evicting from an empty store");

@@ -6,8 +6,31 @@ namespace Driftline.Core.Scoring;
 /// </summary>
 internal sealed class PendingPrediction
 {
-    private int[] _slots = new int[16];
-    private double[] _values = new double[16];
+    // Features live in the store's shared arrays, Stride entries per slot, so a couple of
+    // hundred thousand waiting predictions are two large arrays rather than as many pairs of
+    // small ones for the collector to copy from generation to generation; an event with more
+    // features than the stride keeps them in arrays of its own.
+    private readonly int[] _sharedSlots;
+    private readonly double[] _sharedValues;
+    private readonly int _offset;
+    private readonly int _stride;
+    private int[] _ownSlots = [];
+    private double[] _ownValues = [];
+
+    /// <summary>A free-standing entry whose features are always held in its own arrays.</summary>
+    public PendingPrediction()
+        : this([], [], 0, 0)
+    {
+    }
+
+    /// <summary>An entry whose first <paramref name="stride"/> features go to the shared arrays at <paramref name="offset"/>.</summary>
+    public PendingPrediction(int[] sharedSlots, double[] sharedValues, int offset, int stride)
+    {
+        _sharedSlots = sharedSlots;
+        _sharedValues = sharedValues;
+        _offset = offset;
+        _stride = stride;
+    }
 
     /// <summary>The event id, or null for a free slot.</summary>
     public string? Id { get; set; }
@@ -37,21 +60,28 @@ internal sealed class PendingPrediction
     public int Count { get; private set; }
 
     /// <summary>Stored slots.</summary>
-    public ReadOnlySpan<int> Slots => _slots.AsSpan(0, Count);
+    public ReadOnlySpan<int> Slots => Count <= _stride ? _sharedSlots.AsSpan(_offset, Count) : _ownSlots.AsSpan(0, Count);
 
     /// <summary>Stored values.</summary>
-    public ReadOnlySpan<double> Values => _values.AsSpan(0, Count);
+    public ReadOnlySpan<double> Values => Count <= _stride ? _sharedValues.AsSpan(_offset, Count) : _ownValues.AsSpan(0, Count);
 
     /// <summary>Copies the features in, reusing the buffers.</summary>
     public void SetFeatures(ReadOnlySpan<int> slots, ReadOnlySpan<double> values)
     {
-        if (_slots.Length < slots.Length)
-        {
-            _slots = new int[Math.Max(slots.Length, _slots.Length * 2)];
-            _values = new double[_slots.Length];
-        }
-        slots.CopyTo(_slots);
-        values.CopyTo(_values);
+        System.Diagnostics.Debug.Assert(slots.Length == values.Length, "one value per slot");
         Count = slots.Length;
+        if (Count <= _stride)
+        {
+            slots.CopyTo(_sharedSlots.AsSpan(_offset, _stride));
+            values.CopyTo(_sharedValues.AsSpan(_offset, _stride));
+            return;
+        }
+        if (_ownSlots.Length < Count)
+        {
+            _ownSlots = new int[Math.Max(Count, _ownSlots.Length * 2)];
+            _ownValues = new double[_ownSlots.Length];
+        }
+        slots.CopyTo(_ownSlots);
+        values.CopyTo(_ownValues);
     }
 }

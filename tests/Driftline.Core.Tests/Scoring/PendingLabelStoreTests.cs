@@ -19,6 +19,30 @@ public sealed class PendingLabelStoreTests
     }
 
     [Fact]
+    public void SetFeatures_FewAndMany_ComeBackAsStoredWhileNeighboursChange()
+    {
+        // Entries share the store's feature arrays up to a stride; a longer event spills into
+        // arrays of its own. Neither may disturb the entry beside it, including on reuse.
+        var store = new PendingLabelStore(3, TimeSpan.FromDays(1));
+        int[] few = [3, 1, 4];
+        int[] many = Enumerable.Range(100, 40).ToArray();
+        store.Add("few", ParsedRecord.NoTime).SetFeatures(few, few.Select(i => i / 10.0).ToArray());
+        store.Add("many", ParsedRecord.NoTime).SetFeatures(many, many.Select(i => -i / 10.0).ToArray());
+        store.Add("empty", ParsedRecord.NoTime).SetFeatures([], []);
+        store.Add("recycled", ParsedRecord.NoTime).SetFeatures(many[..16], many[..16].Select(i => i * 2.0).ToArray());
+
+        Assert.Equal(LabelJoin.Joined, store.TryJoin("many", out var m));
+        Assert.Equal(many, m!.Slots.ToArray());
+        Assert.Equal(many.Select(i => -i / 10.0), m.Values.ToArray());
+        Assert.Equal(LabelJoin.Joined, store.TryJoin("recycled", out var r));
+        Assert.Equal(many[..16], r!.Slots.ToArray());
+        Assert.Equal(many[..16].Select(i => i * 2.0), r.Values.ToArray());
+        Assert.Equal(LabelJoin.Joined, store.TryJoin("empty", out var e));
+        Assert.Equal(0, e!.Count);
+        Assert.Equal(LabelJoin.UnknownId, store.TryJoin("few", out _));
+    }
+
+    [Fact]
     public void Add_BeyondCapacity_DropsOldestAndCountsItExpired()
     {
         var store = new PendingLabelStore(3, TimeSpan.FromDays(1));
