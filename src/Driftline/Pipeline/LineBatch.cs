@@ -32,7 +32,7 @@ internal sealed class LineBatch
     /// <summary>The bytes of line <paramref name="i"/>, without its line break.</summary>
     public ReadOnlySpan<byte> Line(int i) => _data.AsSpan(_starts[i], _lengths[i]);
 
-    /// <summary>The parsed form of line <paramref name="i"/>, filled by the parse stage (reused from batch to batch).</summary>
+    /// <summary>The parsed form of line <paramref name="i"/>, filled by the reading stage's parse (reused from batch to batch).</summary>
     public ParsedRecord Record(int i) => _records[i];
 
     /// <summary>Why line <paramref name="i"/> was rejected by the parser, or null when it parsed (or is blank).</summary>

@@ -1,20 +1,21 @@
 using System.Threading.Channels;
+using Driftline.Core.Events;
 
 namespace Driftline.Pipeline;
 
 /// <summary>
 /// The source stage for files and stdin: splits a byte stream into lines (LF, with an
-/// optional CR before it) and sends them on in batches. Blank lines are skipped but counted,
-/// so line numbers in dead letters match the file.
+/// optional CR before it), parses each batch and sends it on. Blank lines are skipped but
+/// counted, so line numbers in dead letters match the file.
 /// </summary>
 internal static class LineReader
 {
     /// <summary>
-    /// Reads <paramref name="input"/> to its end into batches taken from <paramref name="pool"/>
-    /// and written to <paramref name="output"/>; completes <paramref name="output"/> at the end,
+    /// Reads <paramref name="input"/> to its end into batches taken from <paramref name="pool"/>,
+    /// parsed with <paramref name="parser"/> and written to <paramref name="output"/>; completes <paramref name="output"/> at the end,
     /// with the exception if reading fails.
     /// </summary>
-    public static async Task RunAsync(Stream input, ChannelReader<LineBatch> pool, ChannelWriter<LineBatch> output, CancellationToken cancellation)
+    public static async Task RunAsync(Stream input, EventParser parser, ChannelReader<LineBatch> pool, ChannelWriter<LineBatch> output, CancellationToken cancellation)
     {
         try
         {
@@ -46,7 +47,7 @@ internal static class LineReader
                     consumed += newline + 1;
                     if (batch.IsFull)
                     {
-                        await output.WriteAsync(batch, cancellation).ConfigureAwait(false);
+                        await HandOnAsync(batch, parser, output, cancellation).ConfigureAwait(false);
                         batch = await TakeAsync(pool, cancellation).ConfigureAwait(false);
                         batch.FirstLine = lineNumber;
                     }
@@ -55,7 +56,7 @@ internal static class LineReader
                 {
                     // A short read means the source has nothing more ready (a live pipe):
                     // hand the lines on now rather than wait for a full batch.
-                    await output.WriteAsync(batch, cancellation).ConfigureAwait(false);
+                    await HandOnAsync(batch, parser, output, cancellation).ConfigureAwait(false);
                     batch = await TakeAsync(pool, cancellation).ConfigureAwait(false);
                     batch.FirstLine = lineNumber;
                 }
@@ -72,7 +73,7 @@ internal static class LineReader
             }
             if (batch.Count > 0)
             {
-                await output.WriteAsync(batch, cancellation).ConfigureAwait(false);
+                await HandOnAsync(batch, parser, output, cancellation).ConfigureAwait(false);
             }
             output.Complete();
         }
@@ -81,6 +82,12 @@ internal static class LineReader
             output.Complete(ex);
             throw;
         }
+    }
+
+    private static ValueTask HandOnAsync(LineBatch batch, EventParser parser, ChannelWriter<LineBatch> output, CancellationToken cancellation)
+    {
+        batch.Parse(parser);
+        return output.WriteAsync(batch, cancellation);
     }
 
     private static void AddLine(LineBatch batch, ReadOnlySpan<byte> line)

@@ -9,7 +9,7 @@ using Driftline.Output;
 namespace Driftline.Pipeline;
 
 /// <summary>
-/// source → parse → score/learn → write, four stages joined by bounded channels. Batches
+/// read and parse → score/learn → write, three stages joined by bounded channels. Batches
 /// circulate through pools, so memory is fixed whatever the input size, and a slow disk
 /// slows the reader instead of filling memory. A failing stage completes its downstream
 /// channel with the exception, which surfaces from <c>RunAsync</c>. Several configurations
@@ -111,7 +111,6 @@ internal sealed class ReplayPipeline
             outputPool.Writer.TryWrite([.. _lanes.Select(_ => new OutputBatch())]);
         }
         var lines = Channel.CreateBounded<LineBatch>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
-        var parsed = Channel.CreateBounded<LineBatch>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
         var results = Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
 
         // One stage failing stops the others, and its exception (not their cancellation) surfaces.
@@ -119,9 +118,11 @@ internal sealed class ReplayPipeline
         var token = stop.Token;
         Task[] stages =
         [
-            Stage(() => LineReader.RunAsync(input, linePool.Reader, lines.Writer, token), stop),
-            Stage(() => ParseAsync(lines.Reader, parsed.Writer, token), stop),
-            Stage(() => ScoreAsync(parsed.Reader, linePool.Writer, outputPool.Reader, results.Writer, token), stop),
+            // Each batch is parsed on the reading thread before it is handed on: a parse stage of
+            // its own cost more in hand-offs between the two cores than it saved
+            // (tests/Driftline.Benchmarks replay, same-run A/B).
+            Stage(() => LineReader.RunAsync(input, _parser, linePool.Reader, lines.Writer, token), stop),
+            Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, results.Writer, token), stop),
             Stage(() => WriteAsync(results.Reader, outputPool.Writer, write, token), stop),
         ];
         try
@@ -147,28 +148,6 @@ internal sealed class ReplayPipeline
                 throw;
             }
         });
-
-    // Parsing is half of the per-event work, so it runs on its own thread, ahead of scoring.
-    private async Task ParseAsync(ChannelReader<LineBatch> input, ChannelWriter<LineBatch> output, CancellationToken cancellation)
-    {
-        try
-        {
-            while (await input.WaitToReadAsync(cancellation).ConfigureAwait(false))
-            {
-                while (input.TryRead(out var batch))
-                {
-                    batch.Parse(_parser);
-                    await output.WriteAsync(batch, cancellation).ConfigureAwait(false);
-                }
-            }
-            output.Complete();
-        }
-        catch (Exception ex)
-        {
-            output.Complete(ex);
-            throw;
-        }
-    }
 
     private async Task ScoreAsync(ChannelReader<LineBatch> input, ChannelWriter<LineBatch> linePool,
         ChannelReader<OutputBatch[]> outputPool, ChannelWriter<OutputBatch[]> output, CancellationToken cancellation)
