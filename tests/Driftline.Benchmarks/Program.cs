@@ -16,7 +16,8 @@ return args.FirstOrDefault() switch
 
 static int RunMicro(string[] rest)
 {
-    BenchmarkSwitcher.FromAssembly(typeof(HotPathBenchmarks).Assembly).Run(rest.Length == 0 ? ["--filter", "*"] : rest);
+    // Without a filter BenchmarkDotNet asks which benchmark to run; run them all instead.
+    BenchmarkSwitcher.FromAssembly(typeof(HotPathBenchmarks).Assembly).Run(rest.Contains("--filter") ? rest : [.. rest, "--filter", "*"]);
     return 0;
 }
 
