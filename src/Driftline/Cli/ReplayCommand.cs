@@ -65,6 +65,15 @@ internal sealed class ReplayCommand(CommandContext context)
             await context.Error.WriteLineAsync($"driftline: two configurations are named '{clash.Key}'; each writes into a folder of its file name, so rename one of the files.").ConfigureAwait(false);
             return ExitCode.Usage;
         }
+        // One parse serves every configuration, so the segment feature must be the same for all.
+        if (configs.Select(c => c.Options.Monitor.SegmentBy).Distinct(StringComparer.Ordinal).Count() > 1)
+        {
+            var first = configs[0];
+            var other = configs.First(c => !string.Equals(c.Options.Monitor.SegmentBy, first.Options.Monitor.SegmentBy, StringComparison.Ordinal));
+            return ConfigErrors.Report(context.Error, other.Name,
+                [new("Monitor:SegmentBy", $"'{other.Options.Monitor.SegmentBy ?? "(none)"}' here but '{first.Options.Monitor.SegmentBy ?? "(none)"}' in '{first.Name}'; configurations compared in one replay share one parse",
+                    "Give every configuration the same Monitor:SegmentBy, or replay them one at a time")]);
+        }
         EngineSnapshot? start = null;
         if (warmStart is not null)
         {

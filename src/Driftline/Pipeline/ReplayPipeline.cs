@@ -39,7 +39,7 @@ internal sealed class ReplayPipeline
         ArgumentNullException.ThrowIfNull(lanes);
         ArgumentOutOfRangeException.ThrowIfZero(lanes.Count, nameof(lanes));
         _lanes = [.. lanes];
-        // One parse serves every lane, so the first configuration's segment feature is used.
+        // One parse serves every lane, so they share the segment feature (replay checks that they agree).
         _parser.SegmentFeature = _lanes[0].Engine.Options.Monitor.SegmentBy;
     }
 

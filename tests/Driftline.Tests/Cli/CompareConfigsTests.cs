@@ -74,4 +74,19 @@ public sealed class CompareConfigsTests
         Assert.Equal(2, code);
         Assert.Contains("two configurations are named 'x'", stderr, StringComparison.Ordinal);
     }
+
+    [Fact]
+    public async Task Replay_ConfigsWithDifferentSegmentFeatures_IsAConfigErrorNamingTheOption()
+    {
+        using var dir = new TempFolder();
+        File.WriteAllText(dir.File("zone.json"), """{"Monitor":{"SegmentBy":"zone"}}""");
+        File.WriteAllText(dir.File("plain.json"), "{}");
+        File.WriteAllText(dir.File("in.jsonl"), "");
+
+        var (code, _, stderr) = await TestCli.RunAsync("replay", dir.File("in.jsonl"), "--out", dir.File("out"), "--config", dir.File("zone.json"), "--config", dir.File("plain.json"));
+
+        Assert.Equal(3, code);
+        Assert.Contains("Monitor:SegmentBy", stderr, StringComparison.Ordinal);
+        Assert.Contains("same Monitor:SegmentBy", stderr, StringComparison.Ordinal);
+    }
 }
