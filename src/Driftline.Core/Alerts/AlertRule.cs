@@ -1,6 +1,7 @@
 using System.Runtime.CompilerServices;
 using Driftline.Core.Detectors;
 using Driftline.Core.Metrics;
+using Driftline.Core.Snapshots;
 
 namespace Driftline.Core.Alerts;
 
@@ -123,6 +124,40 @@ internal sealed class AlertRule
             return false;
         }
         return null;
+    }
+
+    /// <summary>
+    /// Writes the state of the rule's loss detector, its AUC window and the values it holds
+    /// between labels into <paramref name="saved"/>, so a restored rule continues exactly.
+    /// </summary>
+    public void ExportMonitors(RuleSnapshot saved)
+    {
+        ArgumentNullException.ThrowIfNull(saved);
+        saved.LossDetector = _lossDetector?.Export();
+        saved.AucWindow = _auc?.Contents();
+        saved.LastSignal = _lastSignal;
+        saved.HeldHosmerLemeshow = _lastHosmerLemeshow;
+    }
+
+    /// <summary>Continues from what <see cref="ExportMonitors"/> wrote; parts the snapshot lacks start empty.</summary>
+    /// <exception cref="ArgumentException">The saved detector state does not fit this rule's detector.</exception>
+    public void ImportMonitors(RuleSnapshot saved)
+    {
+        ArgumentNullException.ThrowIfNull(saved);
+        if (_lossDetector is not null && saved.LossDetector is { } detector)
+        {
+            _lossDetector.Import(detector);
+        }
+        if (_auc is not null && saved.AucWindow is { } window)
+        {
+            _auc.Clear();
+            foreach (var g in window.AsSpan(Math.Max(0, window.Length - _auc.Capacity)))
+            {
+                _auc.Add(g.P, g.Y);
+            }
+        }
+        _lastSignal = saved.LastSignal;
+        _lastHosmerLemeshow = saved.HeldHosmerLemeshow;
     }
 
     // The detectors start after MinLabels labels (the warm-up), so a model still learning its

@@ -127,6 +127,60 @@ internal sealed class AdwinDetector : ChangeDetector
     /// <inheritdoc/>
     public override AdwinDetector Copy() => new(this);
 
+    /// <summary>
+    /// The width, then for each level its number of buckets followed by each bucket's count,
+    /// mean and sum of squared deviations.
+    /// </summary>
+    protected override double[] ExportValues()
+    {
+        var values = new List<double> { Width, _levels.Count };
+        foreach (List<AdwinBucket> level in _levels)
+        {
+            values.Add(level.Count);
+            foreach (AdwinBucket b in level)
+            {
+                values.Add(b.Count);
+                values.Add(b.Mean);
+                values.Add(b.SquaredDeviations);
+            }
+        }
+        return [.. values];
+    }
+
+    /// <inheritdoc/>
+    protected override void ImportValues(double[] values)
+    {
+        try
+        {
+            int at = 0;
+            long width = (long)values[at++];
+            int levels = (int)values[at++];
+            var restored = new List<List<AdwinBucket>>(levels);
+            for (int l = 0; l < levels; l++)
+            {
+                int buckets = (int)values[at++];
+                var level = new List<AdwinBucket>(buckets);
+                for (int b = 0; b < buckets; b++)
+                {
+                    level.Add(new AdwinBucket((long)values[at], values[at + 1], values[at + 2]));
+                    at += 3;
+                }
+                restored.Add(level);
+            }
+            if (at != values.Length)
+            {
+                throw new ArgumentException($"an ADWIN state of {levels} levels has {at} values, not {values.Length}", nameof(values));
+            }
+            _levels.Clear();
+            _levels.AddRange(restored);
+            Width = width;
+        }
+        catch (IndexOutOfRangeException ex)
+        {
+            throw new ArgumentException("an ADWIN state ends before its last bucket", nameof(values), ex);
+        }
+    }
+
     private void Insert(double value)
     {
         if (_levels.Count == 0)

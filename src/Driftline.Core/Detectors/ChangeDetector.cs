@@ -29,6 +29,26 @@ internal abstract class ChangeDetector : IChangeDetector
     /// <inheritdoc/>
     IChangeDetector IChangeDetector.Copy() => Copy();
 
+    /// <summary>The detector's whole state, for a snapshot; <see cref="Import"/> continues from it exactly.</summary>
+    public Snapshots.DetectorSnapshot Export() => new() { Count = Count, Detections = Detections, State = State, Values = ExportValues() };
+
+    /// <summary>Continues from a state produced by <see cref="Export"/> on a detector with the same settings.</summary>
+    /// <exception cref="ArgumentException">The saved values do not fit this kind of detector.</exception>
+    public void Import(Snapshots.DetectorSnapshot saved)
+    {
+        ArgumentNullException.ThrowIfNull(saved);
+        ImportValues(saved.Values);
+        Count = saved.Count;
+        Detections = saved.Detections;
+        State = saved.State;
+    }
+
+    /// <summary>The running values particular to the detector.</summary>
+    protected abstract double[] ExportValues();
+
+    /// <summary>Restores what <see cref="ExportValues"/> gave.</summary>
+    protected abstract void ImportValues(double[] values);
+
     /// <summary>The check every <see cref="Add"/> starts with.</summary>
     /// <exception cref="ArgumentOutOfRangeException"><paramref name="value"/> is NaN or infinite.</exception>
     protected static void RequireFinite(double value)

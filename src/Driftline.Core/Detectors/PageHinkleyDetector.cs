@@ -110,6 +110,22 @@ internal sealed class PageHinkleyDetector : ChangeDetector
     }
 
     /// <inheritdoc/>
+    protected override double[] ExportValues() => [_sum, _sinceRestart, _cumulative, _minimum];
+
+    /// <inheritdoc/>
+    protected override void ImportValues(double[] values)
+    {
+        if (values.Length != 4)
+        {
+            throw new ArgumentException($"a Page–Hinkley state has 4 values, not {values.Length}", nameof(values));
+        }
+        _sum = values[0];
+        _sinceRestart = (long)values[1];
+        _cumulative = values[2];
+        _minimum = values[3];
+    }
+
+    /// <inheritdoc/>
     public override PageHinkleyDetector Copy()
     {
         var copy = new PageHinkleyDetector(Delta, Threshold, MinCount)

@@ -108,6 +108,21 @@ internal sealed class RollingAuc
     /// <summary>An independent copy; changes to one never reach the other.</summary>
     public RollingAuc Copy() => new(this);
 
+    /// <summary>
+    /// The predictions held, oldest first, for snapshots: adding them in order to an empty
+    /// window of the same capacity gives this window back (its counts depend only on what it holds).
+    /// </summary>
+    public GradedPrediction[] Contents()
+    {
+        var result = new GradedPrediction[_count];
+        for (int i = 0; i < _count; i++)
+        {
+            int slot = _oldest + i;
+            result[i] = _ring[slot >= _ring.Length ? slot - _ring.Length : slot];
+        }
+        return result;
+    }
+
     // Half-pairs between (p, y) and the opposite outcomes in the tree (which does not hold it).
     private long PairsWithOthers(double p, int y)
     {

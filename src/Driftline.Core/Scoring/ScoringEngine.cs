@@ -407,14 +407,15 @@ internal sealed class ScoringEngine
                 {
                     cusum.Import(statistics, saved.CusumRaised, saved.CusumCount, saved.CusumDetections, saved.CusumClears, saved.CusumState);
                 }
+                rule.ImportMonitors(saved);
             }
         }
         Counters = snapshot.Counters.Copy();
         _clockTicks = snapshot.ClockTicks;
     }
 
-    // Page–Hinkley, ADWIN and the AUC tree restart empty after a restore (documented); the
-    // calibration test, which decides the default critical alert, continues exactly.
+    // Every rule continues exactly after a restore: the calibration test, the loss detectors,
+    // the AUC window and the held Hosmer–Lemeshow value are all in the snapshot.
     private static RuleSnapshot SnapshotRule(AlertRule rule)
     {
         var saved = new RuleSnapshot
@@ -436,6 +437,7 @@ internal sealed class ScoringEngine
             saved.CusumClears = state.Clears;
             saved.CusumState = state.State;
         }
+        rule.ExportMonitors(saved);
         return saved;
     }
 

@@ -192,4 +192,16 @@ internal sealed class RuleSnapshot
 
     /// <summary>The test's state.</summary>
     public Detectors.DetectorState CusumState { get; set; }
+
+    /// <summary>State of the rule's Page–Hinkley or ADWIN detector; null for other rules (or an older snapshot, whose detector then starts empty).</summary>
+    public DetectorSnapshot? LossDetector { get; set; }
+
+    /// <summary>The rule's AUC window, oldest first; null for other rules.</summary>
+    public Metrics.GradedPrediction[]? AucWindow { get; set; }
+
+    /// <summary>Label count at the loss detector's last signal.</summary>
+    public long LastSignal { get; set; } = long.MinValue / 2;
+
+    /// <summary>The Hosmer–Lemeshow p-value held between refreshes (NaN: none yet).</summary>
+    public double HeldHosmerLemeshow { get; set; } = double.NaN;
 }

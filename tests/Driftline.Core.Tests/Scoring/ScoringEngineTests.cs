@@ -1,3 +1,4 @@
+using Driftline.Core.Alerts;
 using Driftline.Core.Options;
 using Driftline.Core.Scoring;
 using Driftline.Core.Snapshots;
@@ -97,6 +98,68 @@ public sealed class ScoringEngineTests
         Assert.Equal(uninterrupted.Totals.Current, after.Totals.Current);
         Assert.Equal(uninterrupted.Counters.LateLabels, after.Counters.LateLabels);
         Assert.Equal(uninterrupted.Models[0].Learner.Export().First, after.Models[0].Learner.Export().First);
+    }
+
+    [Fact]
+    public void Restore_RulesWithLossDetectorsAucAndHosmerLemeshow_EndInTheStateOfAnUninterruptedRun()
+    {
+        // A break at event 1500 gives the detectors something to hold; the stream is cut after it.
+        var stream = new KnownModelStream(4);
+        var lines = new List<string>();
+        var late = new Queue<string>();
+        for (int i = 0; i < 4000; i++)
+        {
+            if (i == 1500)
+            {
+                stream.Shift = 2;
+            }
+            var e = stream.Next(i, withLabel: i % 3 != 0);
+            lines.Add(e.Json);
+            if (i % 3 == 0)
+            {
+                late.Enqueue($"{{\"id\":\"e{i}\",\"label\":{e.Label}}}");
+            }
+            if (late.Count > 20)
+            {
+                lines.Add(late.Dequeue());
+            }
+        }
+        var options = Options();
+        options.Model.HalfLifeLabels = 500;
+        options.Alerts =
+        [
+            new AlertRuleOptions { Name = "shift", Metric = AlertMetric.LossShift, Window = 200, MinLabels = 50 },
+            new AlertRuleOptions { Name = "change", Metric = AlertMetric.LossChange, Window = 200, MinLabels = 50 },
+            new AlertRuleOptions { Name = "auc", Metric = AlertMetric.Auc, Window = 300, MinLabels = 100, Raise = 0.7, Clear = 0.75, Direction = AlertDirection.Below },
+            new AlertRuleOptions { Name = "hl", Metric = AlertMetric.HosmerLemeshowP, Window = 400, MinLabels = 200, Raise = 0.001, Clear = 0.05, Direction = AlertDirection.Below },
+        ];
+        Assert.Empty(options.Validate());
+
+        var whole = new RecordingSink();
+        var uninterrupted = new ScoringEngine(options, whole);
+        EngineDriver.Feed(uninterrupted, lines);
+
+        var first = new RecordingSink();
+        var before = new ScoringEngine(options, first);
+        EngineDriver.Feed(before, lines.Take(2500));
+        using var saved = new MemoryStream();
+        SnapshotCodec.Write(before.Snapshot(), saved);
+        saved.Position = 0;
+        var second = new RecordingSink();
+        var after = ScoringEngine.Restore(SnapshotCodec.Read(saved), second);
+        EngineDriver.Feed(after, lines.Skip(2500));
+
+        Assert.NotEmpty(whole.Alerts);
+        Assert.Equal(whole.Alerts.Select(Describe), first.Alerts.Concat(second.Alerts).Select(Describe));
+        Assert.Equal(Json(uninterrupted.Snapshot()), Json(after.Snapshot()));
+
+        static string Describe(AlertTransition a) => $"{a.Rule} {a.Raised} {a.Labels} {a.Value:R}";
+        static string Json(EngineSnapshot snapshot)
+        {
+            using var buffer = new MemoryStream();
+            SnapshotCodec.Write(snapshot, buffer);
+            return System.Text.Encoding.UTF8.GetString(buffer.ToArray());
+        }
     }
 
     [Fact]
