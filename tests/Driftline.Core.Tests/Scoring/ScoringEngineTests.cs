@@ -60,22 +60,7 @@ public sealed class ScoringEngineTests
     [Fact]
     public void Restore_FromSnapshotMidStream_ContinuesExactlyAsAnUninterruptedRun()
     {
-        var stream = new KnownModelStream(3);
-        var lines = new List<string>();
-        var late = new Queue<string>();
-        for (int i = 0; i < 3000; i++)
-        {
-            var e = stream.Next(i, withLabel: i % 3 != 0);
-            lines.Add(e.Json);
-            if (i % 3 == 0)
-            {
-                late.Enqueue($"{{\"id\":\"e{i}\",\"label\":{e.Label}}}");
-            }
-            if (late.Count > 20)
-            {
-                lines.Add(late.Dequeue());
-            }
-        }
+        var lines = LinesWithLateLabels(3, 3000);
         var options = Options();
         options.Model.HalfLifeLabels = 500;
         options.Alerts = null;
@@ -104,26 +89,7 @@ public sealed class ScoringEngineTests
     public void Restore_RulesWithLossDetectorsAucAndHosmerLemeshow_EndInTheStateOfAnUninterruptedRun()
     {
         // A break at event 1500 gives the detectors something to hold; the stream is cut after it.
-        var stream = new KnownModelStream(4);
-        var lines = new List<string>();
-        var late = new Queue<string>();
-        for (int i = 0; i < 4000; i++)
-        {
-            if (i == 1500)
-            {
-                stream.Shift = 2;
-            }
-            var e = stream.Next(i, withLabel: i % 3 != 0);
-            lines.Add(e.Json);
-            if (i % 3 == 0)
-            {
-                late.Enqueue($"{{\"id\":\"e{i}\",\"label\":{e.Label}}}");
-            }
-            if (late.Count > 20)
-            {
-                lines.Add(late.Dequeue());
-            }
-        }
+        var lines = LinesWithLateLabels(4, 4000, breakAt: 1500);
         var options = Options();
         options.Model.HalfLifeLabels = 500;
         options.Alerts =
@@ -160,6 +126,33 @@ public sealed class ScoringEngineTests
             SnapshotCodec.Write(snapshot, buffer);
             return System.Text.Encoding.UTF8.GetString(buffer.ToArray());
         }
+    }
+
+    // Events from a known model, every third labelled late (20 records later); from breakAt on,
+    // the true log-odds shift by 2.
+    private static List<string> LinesWithLateLabels(int seed, int events, int breakAt = int.MaxValue)
+    {
+        var stream = new KnownModelStream(seed);
+        var lines = new List<string>();
+        var late = new Queue<string>();
+        for (int i = 0; i < events; i++)
+        {
+            if (i == breakAt)
+            {
+                stream.Shift = 2;
+            }
+            var e = stream.Next(i, withLabel: i % 3 != 0);
+            lines.Add(e.Json);
+            if (i % 3 == 0)
+            {
+                late.Enqueue($"{{\"id\":\"e{i}\",\"label\":{e.Label}}}");
+            }
+            if (late.Count > 20)
+            {
+                lines.Add(late.Dequeue());
+            }
+        }
+        return lines;
     }
 
     [Fact]
