@@ -293,7 +293,9 @@ internal sealed class ScoringEngine
             Labelled = e.Labelled,
             Slots = e.Labelled ? null : e.Slots.ToArray(),
             Values = e.Labelled ? null : e.Values.ToArray(),
+            Segment = e.Labelled ? null : e.Segment,
         }).ToList(),
+        Segments = _segments?.Export(),
         ExpiredLabels = Pending.Expired,
         Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
         TimeWindows = _timeWindows.Select(w => new TimeWindowSnapshot
@@ -360,6 +362,7 @@ internal sealed class ScoringEngine
             slot.P = e.P;
             slot.PriorP = e.PriorP;
             slot.SetFeatures(e.Slots ?? [], e.Values ?? []);
+            slot.Segment = e.Segment;
             if (e.Labelled)
             {
                 Pending.TryJoin(e.Id, out _);
@@ -409,6 +412,10 @@ internal sealed class ScoringEngine
                 }
                 rule.ImportMonitors(saved);
             }
+        }
+        if (_segments is not null && snapshot.Segments is { } segments)
+        {
+            _segments.Import(segments);
         }
         Counters = snapshot.Counters.Copy();
         _clockTicks = snapshot.ClockTicks;

@@ -12,6 +12,9 @@ internal sealed class SegmentTracker(int window, int maxSegments)
     /// <summary>Name of the pooled segment.</summary>
     public const string Other = "(other)";
 
+    // Segment windows report calibration-in-the-large and its z-score; their bins are unused.
+    private const int CalibrationWindowBins = 10;
+
     private readonly Dictionary<string, CalibrationWindow> _windows = new(StringComparer.Ordinal);
 
     /// <summary>Adds a graded prediction to its segment's window; no segment, nothing.</summary>
@@ -29,11 +32,25 @@ internal sealed class SegmentTracker(int window, int maxSegments)
             }
             if (!_windows.TryGetValue(segment, out w))
             {
-                w = new CalibrationWindow(window);
+                w = new CalibrationWindow(window, CalibrationWindowBins);
                 _windows.Add(segment, w);
             }
         }
         w.Add(p, y);
+    }
+
+    /// <summary>Every segment's window contents, in the order the segments first appeared (for snapshots).</summary>
+    public List<Snapshots.SegmentSnapshot> Export() =>
+        _windows.Select(kv => new Snapshots.SegmentSnapshot { Name = kv.Key, Contents = kv.Value.ToArray() }).ToList();
+
+    /// <summary>Restores what <see cref="Export"/> gave, into a tracker that has seen nothing yet.</summary>
+    public void Import(IEnumerable<Snapshots.SegmentSnapshot> segments)
+    {
+        ArgumentNullException.ThrowIfNull(segments);
+        foreach (var s in segments)
+        {
+            _windows[s.Name] = CalibrationWindow.Restore(window, CalibrationWindowBins, s.Contents);
+        }
     }
 
     /// <summary>

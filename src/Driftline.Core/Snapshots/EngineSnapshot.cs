@@ -46,6 +46,13 @@ internal sealed class EngineSnapshot
     /// <summary>Alert rule states by name.</summary>
     public List<RuleSnapshot> Rules { get; set; } = [];
 
+    /// <summary>
+    /// The per-segment windows of <c>Monitor:SegmentBy</c>, in the order the segments first
+    /// appeared; null when segments are not tracked (or in an older snapshot: they start empty).
+    /// </summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public List<SegmentSnapshot>? Segments { get; set; }
+
     /// <summary>Whole-run counts.</summary>
     public ScoringCounters Counters { get; set; } = new();
 
@@ -117,6 +124,20 @@ internal sealed class PendingSnapshot
     /// <summary>Feature values; null once graded.</summary>
     [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
     public double[]? Values { get; set; }
+
+    /// <summary>The event's segment (<c>Monitor:SegmentBy</c>), or null.</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public string? Segment { get; set; }
+}
+
+/// <summary>One segment's rolling window.</summary>
+internal sealed class SegmentSnapshot
+{
+    /// <summary>The segment's value (or the catch-all for segments beyond <c>Monitor:MaxSegments</c>).</summary>
+    public string Name { get; set; } = "";
+
+    /// <summary>Its graded predictions, oldest first.</summary>
+    public GradedPrediction[] Contents { get; set; } = [];
 }
 
 /// <summary>The contents of one window size.</summary>

@@ -86,12 +86,13 @@ public sealed class ScoringEngineTests
     }
 
     [Fact]
-    public void Restore_RulesWithLossDetectorsAucAndHosmerLemeshow_EndInTheStateOfAnUninterruptedRun()
+    public void Restore_RulesWithLossDetectorsAucHosmerLemeshowAndSegments_EndInTheStateOfAnUninterruptedRun()
     {
         // A break at event 1500 gives the detectors something to hold; the stream is cut after it.
         var lines = LinesWithLateLabels(4, 4000, breakAt: 1500);
         var options = Options();
         options.Model.HalfLifeLabels = 500;
+        options.Monitor.SegmentBy = "level";
         options.Alerts =
         [
             new AlertRuleOptions { Name = "shift", Metric = AlertMetric.LossShift, Window = 200, MinLabels = 50 },
@@ -118,6 +119,7 @@ public sealed class ScoringEngineTests
         Assert.NotEmpty(whole.Alerts);
         Assert.Equal(whole.Alerts.Select(Describe), first.Alerts.Concat(second.Alerts).Select(Describe));
         Assert.Equal(Json(uninterrupted.Snapshot()), Json(after.Snapshot()));
+        Assert.NotEmpty(after.Snapshot().Segments!);
 
         static string Describe(AlertTransition a) => $"{a.Rule} {a.Raised} {a.Labels} {a.Value:R}";
         static string Json(EngineSnapshot snapshot)
