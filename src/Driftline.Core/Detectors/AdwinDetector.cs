@@ -150,35 +150,38 @@ internal sealed class AdwinDetector : ChangeDetector
     /// <inheritdoc/>
     protected override void ImportValues(double[] values)
     {
-        try
+        int at = 0;
+        // Reads one value, first checking that at least count values are left from here.
+        double Next(int count)
         {
-            int at = 0;
-            long width = (long)values[at++];
-            int levels = (int)values[at++];
-            var restored = new List<List<AdwinBucket>>(levels);
-            for (int l = 0; l < levels; l++)
+            if (at + count > values.Length)
             {
-                int buckets = (int)values[at++];
-                var level = new List<AdwinBucket>(buckets);
-                for (int b = 0; b < buckets; b++)
-                {
-                    level.Add(new AdwinBucket((long)values[at], values[at + 1], values[at + 2]));
-                    at += 3;
-                }
-                restored.Add(level);
+                throw new ArgumentException("an ADWIN state ends before its last bucket", nameof(values));
             }
-            if (at != values.Length)
-            {
-                throw new ArgumentException($"an ADWIN state of {levels} levels has {at} values, not {values.Length}", nameof(values));
-            }
-            _levels.Clear();
-            _levels.AddRange(restored);
-            Width = width;
+            return values[at++];
         }
-        catch (IndexOutOfRangeException ex)
+
+        long width = (long)Next(2);
+        int levels = (int)Next(1);
+        var restored = new List<List<AdwinBucket>>(levels);
+        for (int l = 0; l < levels; l++)
         {
-            throw new ArgumentException("an ADWIN state ends before its last bucket", nameof(values), ex);
+            int buckets = (int)Next(1);
+            var level = new List<AdwinBucket>(buckets);
+            for (int b = 0; b < buckets; b++)
+            {
+                long count = (long)Next(3);
+                level.Add(new AdwinBucket(count, Next(2), Next(1)));
+            }
+            restored.Add(level);
         }
+        if (at != values.Length)
+        {
+            throw new ArgumentException($"an ADWIN state of {levels} levels has {at} values, not {values.Length}", nameof(values));
+        }
+        _levels.Clear();
+        _levels.AddRange(restored);
+        Width = width;
     }
 
     private void Insert(double value)

@@ -1,4 +1,3 @@
-using System.Buffers;
 using System.Text.Json;
 using Driftline.Core.Alerts;
 using Driftline.Core.Scoring;
@@ -25,14 +24,6 @@ internal static class RecordJson
         }
         w.WriteEndObject();
     }
-
-    /// <summary>
-    /// Appends <paramref name="predictions"/> to <paramref name="buffer"/> as JSON lines (one
-    /// object and a newline each); <paramref name="json"/> serves the rare line that needs
-    /// escaping (see <see cref="PredictionLines"/>).
-    /// </summary>
-    public static void WritePredictionLines(Utf8JsonWriter json, ArrayBufferWriter<byte> buffer, ReadOnlySpan<Prediction> predictions) =>
-        PredictionLines.Append(buffer, json, predictions);
 
     /// <summary>
     /// Writes an alert: <c>rule</c>, <c>state</c> (raised/cleared), <c>metric</c>, <c>value</c>,

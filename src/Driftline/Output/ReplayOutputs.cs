@@ -52,7 +52,7 @@ internal sealed class ReplayOutputs : IDisposable
     public void Write(OutputBatch batch)
     {
         _buffer.ResetWrittenCount();
-        RecordJson.WritePredictionLines(_json, _buffer, batch.Predictions);
+        PredictionLines.Append(_buffer, _json, batch.Predictions);
         _predictions.Write(_buffer.WrittenSpan);
 
         foreach (var alert in batch.Alerts)

@@ -27,7 +27,7 @@ internal sealed class StdioOutputs(TextWriter predictions, TextWriter alerts)
     public void Write(OutputBatch batch)
     {
         _buffer.ResetWrittenCount();
-        RecordJson.WritePredictionLines(_json, _buffer, batch.Predictions);
+        PredictionLines.Append(_buffer, _json, batch.Predictions);
         Predictions += batch.PredictionCount;
         if (_buffer.WrittenCount > 0)
         {
