@@ -14,8 +14,8 @@ internal sealed class AdaGradLearner : OnlineLearner
     private readonly double _alpha;
     private readonly double _beta;
     private readonly double _l2;
-    private readonly double[] _w;
-    private readonly double[] _g2;
+    private double[] _w;
+    private double[] _g2;
 
     /// <summary>Creates an untrained learner.</summary>
     public AdaGradLearner(ModelOptions options) : base(options)
@@ -23,26 +23,33 @@ internal sealed class AdaGradLearner : OnlineLearner
         _alpha = options.LearningRate;
         _beta = options.RateSmoothing;
         _l2 = options.L2;
-        _w = new double[Size];
-        _g2 = new double[Size];
+        _w = new double[Written.Capacity];
+        _g2 = new double[Written.Capacity];
     }
 
     /// <inheritdoc />
-    public override double Weight(int slot) => _w[slot];
+    protected override double WeightAt(int position) => _w[position];
 
     /// <inheritdoc />
-    protected override void Step(int slot, double g)
+    protected override void Step(int position, double g)
     {
-        g += _l2 * _w[slot];
+        g += _l2 * _w[position];
         double inflation = Inflation;
-        _g2[slot] += g * g * inflation;
-        _w[slot] -= _alpha * g / (_beta + Math.Sqrt(_g2[slot] / inflation));
+        _g2[position] += g * g * inflation;
+        _w[position] -= _alpha * g / (_beta + Math.Sqrt(_g2[position] / inflation));
     }
 
     /// <inheritdoc />
-    protected override void Renormalise(double factor)
+    protected override void Resize(int capacity)
     {
-        for (int i = 0; i < _g2.Length; i++)
+        Array.Resize(ref _w, capacity);
+        Array.Resize(ref _g2, capacity);
+    }
+
+    /// <inheritdoc />
+    protected override void Renormalise(double factor, int count)
+    {
+        for (int i = 0; i < count; i++)
         {
             _g2[i] *= factor;
         }
@@ -51,12 +58,12 @@ internal sealed class AdaGradLearner : OnlineLearner
     /// <inheritdoc />
     public override LearnerState Export()
     {
-        var slots = TouchedSlots(_w, _g2);
+        var positions = SnapshotPositions(_w, _g2);
         return new LearnerState
         {
-            Slots = slots,
-            First = slots.Select(i => _w[i]).ToArray(),
-            Second = slots.Select(i => _g2[i]).ToArray(),
+            Slots = SlotsAt(positions),
+            First = Array.ConvertAll(positions, i => _w[i]),
+            Second = Array.ConvertAll(positions, i => _g2[i]),
             Inflation = Inflation,
             Updates = Updates,
             RefusedUpdates = RefusedUpdates,
@@ -66,13 +73,11 @@ internal sealed class AdaGradLearner : OnlineLearner
     /// <inheritdoc />
     public override void Import(LearnerState state)
     {
-        RestoreCounters(state);
+        RestoreCounters(state, statistics: 2);
         Array.Clear(_w);
         Array.Clear(_g2);
-        for (int i = 0; i < state.Slots.Length; i++)
-        {
-            _w[state.Slots[i]] = state.First[i];
-            _g2[state.Slots[i]] = state.Second[i];
-        }
+        // RestoreCounters gave the i-th saved slot position i.
+        state.First.CopyTo(_w, 0);
+        state.Second.CopyTo(_g2, 0);
     }
 }

@@ -23,9 +23,9 @@ internal sealed class FtrlProximalLearner : OnlineLearner
     private readonly double _beta;
     private readonly double _l1;
     private readonly double _l2;
-    private readonly double[] _z;
-    private readonly double[] _n;
-    private readonly double[] _sigma;
+    private double[] _z;
+    private double[] _n;
+    private double[] _sigma;
 
     /// <summary>Creates an untrained learner.</summary>
     public FtrlProximalLearner(ModelOptions options) : base(options)
@@ -34,40 +34,48 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         _beta = options.RateSmoothing;
         _l1 = options.L1;
         _l2 = options.L2;
-        _z = new double[Size];
-        _n = new double[Size];
-        _sigma = new double[Size];
+        _z = new double[Written.Capacity];
+        _n = new double[Written.Capacity];
+        _sigma = new double[Written.Capacity];
     }
 
     /// <inheritdoc />
-    public override double Weight(int slot)
+    protected override double WeightAt(int position)
     {
         double inflation = Inflation;
-        double z = _z[slot] / inflation;
+        double z = _z[position] / inflation;
         if (Math.Abs(z) <= _l1)
         {
             return 0;
         }
-        double sigma = _sigma[slot] / inflation;
+        double sigma = _sigma[position] / inflation;
         return -(z - Math.Sign(z) * _l1) / (_beta / _alpha + sigma + _l2);
     }
 
     /// <inheritdoc />
-    protected override void Step(int slot, double g)
+    protected override void Step(int position, double g)
     {
         double inflation = Inflation;
-        double w = Weight(slot);
-        double n = _n[slot] / inflation;
+        double w = WeightAt(position);
+        double n = _n[position] / inflation;
         double sigma = (Math.Sqrt(n + g * g) - Math.Sqrt(n)) / _alpha;
-        _z[slot] += (g - sigma * w) * inflation;
-        _n[slot] += g * g * inflation;
-        _sigma[slot] += sigma * inflation;
+        _z[position] += (g - sigma * w) * inflation;
+        _n[position] += g * g * inflation;
+        _sigma[position] += sigma * inflation;
     }
 
     /// <inheritdoc />
-    protected override void Renormalise(double factor)
+    protected override void Resize(int capacity)
     {
-        for (int i = 0; i < _z.Length; i++)
+        Array.Resize(ref _z, capacity);
+        Array.Resize(ref _n, capacity);
+        Array.Resize(ref _sigma, capacity);
+    }
+
+    /// <inheritdoc />
+    protected override void Renormalise(double factor, int count)
+    {
+        for (int i = 0; i < count; i++)
         {
             _z[i] *= factor;
             _n[i] *= factor;
@@ -78,13 +86,13 @@ internal sealed class FtrlProximalLearner : OnlineLearner
     /// <inheritdoc />
     public override LearnerState Export()
     {
-        var slots = TouchedSlots(_z, _n);
+        var positions = SnapshotPositions(_z, _n);
         return new LearnerState
         {
-            Slots = slots,
-            First = slots.Select(i => _z[i]).ToArray(),
-            Second = slots.Select(i => _n[i]).ToArray(),
-            Third = slots.Select(i => _sigma[i]).ToArray(),
+            Slots = SlotsAt(positions),
+            First = Array.ConvertAll(positions, i => _z[i]),
+            Second = Array.ConvertAll(positions, i => _n[i]),
+            Third = Array.ConvertAll(positions, i => _sigma[i]),
             Inflation = Inflation,
             Updates = Updates,
             RefusedUpdates = RefusedUpdates,
@@ -94,15 +102,13 @@ internal sealed class FtrlProximalLearner : OnlineLearner
     /// <inheritdoc />
     public override void Import(LearnerState state)
     {
-        RestoreCounters(state);
+        RestoreCounters(state, statistics: 3);
         Array.Clear(_z);
         Array.Clear(_n);
         Array.Clear(_sigma);
-        for (int i = 0; i < state.Slots.Length; i++)
-        {
-            _z[state.Slots[i]] = state.First[i];
-            _n[state.Slots[i]] = state.Second[i];
-            _sigma[state.Slots[i]] = state.Third[i];
-        }
+        // RestoreCounters gave the i-th saved slot position i.
+        state.First.CopyTo(_z, 0);
+        state.Second.CopyTo(_n, 0);
+        state.Third.CopyTo(_sigma, 0);
     }
 }

@@ -13,7 +13,7 @@ namespace Driftline.Core.Learning;
 /// <remarks>
 /// The discount is applied lazily through one global factor: stored statistics are kept
 /// divided by γ^t, so a label touches only its own coordinates (O(active features)). The
-/// stored values are renormalised, O(weights), when the factor nears the range of a double,
+/// stored values are renormalised, O(written slots), when the factor nears the range of a double,
 /// which happens once every several hundred half-lives.
 /// </remarks>
 internal abstract class OnlineLearner
@@ -22,8 +22,6 @@ internal abstract class OnlineLearner
     private const double MarginLimit = 35;
 
     private readonly double _discount;
-    private readonly ulong[] _touchedBits;
-    private readonly List<int> _touched = [];
 
     /// <summary>Creates the shared state for <paramref name="options"/>.</summary>
     protected OnlineLearner(ModelOptions options)
@@ -31,8 +29,13 @@ internal abstract class OnlineLearner
         ArgumentNullException.ThrowIfNull(options);
         Size = 1 << options.HashBits;
         _discount = options.HalfLifeLabels > 0 ? Math.Pow(2, -1 / options.HalfLifeLabels) : 1.0;
-        _touchedBits = new ulong[(Size + 63) / 64];
     }
+
+    /// <summary>
+    /// Where the written slots keep their statistics: subclasses index their dense arrays by
+    /// the position it gives (and size them to its <see cref="SlotTable.Capacity"/>).
+    /// </summary>
+    protected SlotTable Written { get; } = new();
 
     /// <summary>Number of weight slots.</summary>
     public int Size { get; }
@@ -53,9 +56,14 @@ internal abstract class OnlineLearner
         var slots = x.Slots;
         var values = x.Values;
         double m = 0;
+        var written = Written;
         for (int i = 0; i < slots.Length; i++)
         {
-            m += Weight(slots[i]) * values[i];
+            int at = written.Find(slots[i]);
+            if (at >= 0)
+            {
+                m += WeightAt(at) * values[i];
+            }
         }
         return m;
     }
@@ -89,10 +97,15 @@ internal abstract class OnlineLearner
             }
         }
         var slots = x.Slots;
+        var written = Written;
         for (int i = 0; i < slots.Length; i++)
         {
-            Touch(slots[i]);
-            Step(slots[i], g * values[i]);
+            int at = written.FindOrAdd(slots[i], out bool grew);
+            if (grew)
+            {
+                Resize(written.Capacity);
+            }
+            Step(at, g * values[i]);
         }
         Updates++;
         if (_discount < 1)
@@ -100,7 +113,7 @@ internal abstract class OnlineLearner
             Inflation /= _discount;
             if (Inflation > RenormaliseAbove)
             {
-                Renormalise(1 / Inflation);
+                Renormalise(1 / Inflation, Written.Count);
                 Inflation = 1;
             }
         }
@@ -114,14 +127,24 @@ internal abstract class OnlineLearner
         return 1 / (1 + Math.Exp(-margin));
     }
 
-    /// <summary>The current weight of <paramref name="slot"/>.</summary>
-    public abstract double Weight(int slot);
+    /// <summary>The current weight of <paramref name="slot"/> (0 for a slot never written).</summary>
+    public double Weight(int slot)
+    {
+        int at = Written.Find(slot);
+        return at < 0 ? 0 : WeightAt(at);
+    }
 
-    /// <summary>Applies gradient <paramref name="g"/> to <paramref name="slot"/>.</summary>
-    protected abstract void Step(int slot, double g);
+    /// <summary>The current weight of the slot at dense <paramref name="position"/>.</summary>
+    protected abstract double WeightAt(int position);
 
-    /// <summary>Multiplies every discounted statistic by <paramref name="factor"/>.</summary>
-    protected abstract void Renormalise(double factor);
+    /// <summary>Applies gradient <paramref name="g"/> to the slot at dense <paramref name="position"/>.</summary>
+    protected abstract void Step(int position, double g);
+
+    /// <summary>Grows the dense arrays to <paramref name="capacity"/> positions, keeping their contents.</summary>
+    protected abstract void Resize(int capacity);
+
+    /// <summary>Multiplies every discounted statistic of the first <paramref name="count"/> positions by <paramref name="factor"/>.</summary>
+    protected abstract void Renormalise(double factor, int count);
 
     /// <summary>The learner's exact state, for a snapshot.</summary>
     public abstract LearnerState Export();
@@ -130,48 +153,57 @@ internal abstract class OnlineLearner
     public abstract void Import(LearnerState state);
 
     /// <summary>
-    /// The slots where either statistic is non-zero, ascending: the ones a snapshot must keep.
-    /// Only slots a step or an import wrote can be non-zero, so the search covers those alone
-    /// (a model uses a few hundred of its 2^18 slots; scanning them all held a live worker's
-    /// checkpoints for tens of milliseconds).
+    /// The positions where either statistic is non-zero, in ascending slot order: the ones a
+    /// snapshot must keep (a slot can be written and still hold zeros, e.g. a zero gradient).
     /// </summary>
-    protected int[] TouchedSlots(double[] first, double[] second)
+    protected int[] SnapshotPositions(double[] first, double[] second)
     {
         ArgumentNullException.ThrowIfNull(first);
         ArgumentNullException.ThrowIfNull(second);
-        var slots = new List<int>(_touched.Count);
-        foreach (int i in _touched)
+        var positions = new List<int>(Written.Count);
+        for (int at = 0; at < Written.Count; at++)
         {
-            if (first[i] != 0 || second[i] != 0)
+            if (first[at] != 0 || second[at] != 0)
             {
-                slots.Add(i);
+                positions.Add(at);
             }
         }
-        slots.Sort();
-        return [.. slots];
+        positions.Sort((x, y) => Written.SlotAt(x).CompareTo(Written.SlotAt(y)));
+        return [.. positions];
     }
 
-    private void Touch(int slot)
-    {
-        ref ulong word = ref _touchedBits[slot >> 6];
-        ulong bit = 1UL << slot;
-        if ((word & bit) == 0)
-        {
-            word |= bit;
-            _touched.Add(slot);
-        }
-    }
+    /// <summary>The slots at <paramref name="positions"/>.</summary>
+    protected int[] SlotsAt(int[] positions) => Array.ConvertAll(positions, Written.SlotAt);
 
-    /// <summary>Restores the counters on import, and the slots the imported state writes.</summary>
-    protected void RestoreCounters(LearnerState state)
+    /// <summary>
+    /// Restores the counters on import and writes the imported slots into the table in
+    /// their order, so the i-th imported slot gets position i; statistics other than
+    /// <paramref name="statistics"/> per slot, a slot outside the model or
+    /// listed twice means the state belongs to another configuration or is damaged.
+    /// </summary>
+    protected void RestoreCounters(LearnerState state, int statistics)
     {
         ArgumentNullException.ThrowIfNull(state);
-        Array.Clear(_touchedBits);
-        _touched.Clear();
+        int n = state.Slots.Length;
+        if (state.First.Length != n || state.Second.Length != n || (statistics == 3 ? state.Third.Length != n : state.Third.Length != 0))
+        {
+            throw new InvalidDataException($"the saved model's statistics do not match its {n} weight slots (it was saved by another learner, or is damaged)");
+        }
+        Written.Clear();
         foreach (int slot in state.Slots)
         {
-            Touch(slot);
+            if ((uint)slot >= (uint)Size)
+            {
+                throw new InvalidDataException($"the saved model has weight slot {slot}, outside this model's {Size} slots (Model:HashBits differs from the run that saved it)");
+            }
+            int before = Written.Count;
+            Written.FindOrAdd(slot, out _);
+            if (Written.Count == before)
+            {
+                throw new InvalidDataException($"the saved model lists weight slot {slot} twice");
+            }
         }
+        Resize(Written.Capacity);
         Updates = state.Updates;
         RefusedUpdates = state.RefusedUpdates;
         Inflation = state.Inflation;
