@@ -38,6 +38,19 @@ public sealed class ClientSettingsTests
     }
 
     [Fact]
+    public void Consumers_ResultFieldsSetToNone_StillGetTheTimestampsTheMergeNeeds()
+    {
+        // The time-order merge of events and labels orders by message timestamp, so a
+        // pass-through setting must not switch timestamps off.
+        var options = Options();
+        options.Client["dotnet.consumer.consume.result.fields"] = "none";
+        foreach (var consumer in new[] { ClientSettings.EventsConsumer(options), ClientSettings.LabelsConsumer(options) })
+        {
+            Assert.Equal("timestamp", consumer.Get("dotnet.consumer.consume.result.fields"));
+        }
+    }
+
+    [Fact]
     public void Validate_OutputTopicIsAnInputTopic_IsAnError()
     {
         var options = Options();

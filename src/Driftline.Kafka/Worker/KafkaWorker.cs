@@ -294,7 +294,9 @@ internal sealed class KafkaWorker
         if (queue.Count >= _options.MaxBufferedPerPartition)
         {
             // Backpressure: the other side is behind; stop fetching this side until the merge catches up.
-            consumer.Pause([result.TopicPartition]);
+            // The topic is named here: the consume results do not carry it (ClientSettings).
+            consumer.Pause([new TopicPartition(fromLabels ? _options.LabelsTopic : _options.EventsTopic, result.Partition)]);
+            Stats.Pauses++;
             if (fromLabels)
             {
                 state.LabelsPaused = true;

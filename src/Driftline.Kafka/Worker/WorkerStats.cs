@@ -32,6 +32,9 @@ internal sealed class WorkerStats
     /// <summary>Times the producer's queue was full and the loop waited.</summary>
     public long ProduceWaits { get; set; }
 
+    /// <summary>Times a partition was paused because its merge queue was full (backpressure).</summary>
+    public long Pauses { get; set; }
+
     /// <summary>Checkpoints written.</summary>
     public long Checkpoints { get; set; }
 
