@@ -29,16 +29,34 @@ internal sealed class PipelineBenchmark : IDisposable
     {
         int records = Produce("bench-events", events, ratePerSecond: 0);
         RunWorker("bench-events", events, records); // warm-up: JIT tiers and the first group join
-        var raw = new List<double>();
-        var worker = new List<double>();
+        var raw = new List<Window>();
+        var passThrough = new List<Window>();
+        var worker = new List<Window>();
         for (int i = 0; i < repeats; i++)
         {
             raw.Add(RawConsume("bench-events", records));
+            passThrough.Add(RawConsume("bench-events", records, produceTo: "bench-copies-" + i));
             worker.Add(RunWorker("bench-events", events, records));
         }
-        double r = Median(raw), w = Median(worker);
+        double r = Median(raw.Select(x => x.Rate)), w = Median(worker.Select(x => x.Rate));
+        static string Runs(List<Window> runs) => string.Join(", ", runs.Select(x => x.Rate.ToString("N0", CultureInfo.InvariantCulture)));
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-            $"throughput, {events:N0} events + {records - events:N0} late labels, median of {repeats}: raw consume {r:N0} msg/s; consume→score→learn→produce {w:N0} msg/s; ratio {w / r:0.00} (raw runs {string.Join(", ", raw.Select(x => x.ToString("N0", CultureInfo.InvariantCulture)))}; worker runs {string.Join(", ", worker.Select(x => x.ToString("N0", CultureInfo.InvariantCulture)))})"));
+            $"throughput, {events:N0} events + {records - events:N0} late labels, median of {repeats}: raw consume {r:N0} msg/s; consume→score→learn→produce {w:N0} msg/s; ratio {w / r:0.00} (raw runs {Runs(raw)}; worker runs {Runs(worker)})"));
+        double p = Median(passThrough.Select(x => x.Rate));
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"pass-through (consume, produce each record unchanged with a delivery report, no parsing or model) {p:N0} msg/s, ratio {p / r:0.00} to raw consume: the Kafka work alone (runs {Runs(passThrough)})"));
+        // Processor time of the whole process (clients, worker and the mock brokers) over the
+        // same windows: what a message costs, which the machine's load moves less than the rate.
+        static string Cost(string name, List<Window> runs) => string.Create(CultureInfo.InvariantCulture,
+            $"{name} {Median(runs.Select(x => x.CpuMicros)):0.00} µs with {Median(runs.Select(x => x.Cores)):0.00} cores busy");
+        Console.WriteLine($"processor time per message, median: {Cost("raw consume", raw)}; {Cost("pass-through", passThrough)}; {Cost("worker", worker)} (of {Environment.ProcessorCount} cores)");
+    }
+
+    /// <summary>One timed window: messages per second, processor time per message (µs) and cores kept busy.</summary>
+    private readonly record struct Window(double Rate, double CpuMicros, double Cores)
+    {
+        public static Window Of(long messages, TimeSpan elapsed, TimeSpan cpu) =>
+            new(messages / elapsed.TotalSeconds, cpu.TotalMicroseconds / messages, cpu / elapsed);
     }
 
     public void Latency(int rate, TimeSpan duration)
@@ -86,7 +104,7 @@ internal sealed class PipelineBenchmark : IDisposable
         Client = new() { ["group.protocol"] = "consumer" },
     };
 
-    private double RunWorker(string topic, int events, int records)
+    private Window RunWorker(string topic, int events, int records)
     {
         using var stop = new CancellationTokenSource();
         var worker = new KafkaWorker(Options(topic), new DriftlineOptions());
@@ -99,25 +117,36 @@ internal sealed class PipelineBenchmark : IDisposable
             Thread.Sleep(1);
         }
         long from = worker.Stats.EventsIn;
+        var cpu = Environment.CpuUsage.TotalTime;
         var clock = Stopwatch.StartNew();
         while (worker.Stats.Predictions < events || worker.Stats.EventsIn < records)
         {
             Thread.Sleep(1);
         }
-        double seconds = clock.Elapsed.TotalSeconds;
+        var window = Window.Of(records - from, clock.Elapsed, Environment.CpuUsage.TotalTime - cpu);
         stop.Cancel();
         thread.Join();
-        return (records - from) / seconds;
+        return window;
     }
 
-    private double RawConsume(string topic, int events)
+    /// <summary>
+    /// Consumes <paramref name="events"/> records doing nothing with them, or, with
+    /// <paramref name="produceTo"/>, producing each one unchanged there with a delivery report, as
+    /// the worker produces its predictions (and waiting for every report before the window ends).
+    /// </summary>
+    private Window RawConsume(string topic, int events, string? produceTo = null)
     {
+        using var producer = produceTo is null ? null
+            : new ProducerBuilder<byte[]?, byte[]>(PassThroughProducer()).SetLogHandler((_, _) => { }).Build();
+        long delivered = 0;
+        Action<DeliveryReport<byte[]?, byte[]>> handler = _ => Interlocked.Increment(ref delivered);
         var config = new ConsumerConfig { BootstrapServers = _bootstrap, GroupId = "bench-raw-" + _run++, AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false };
         config.Set("group.protocol", "consumer");
         using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
         consumer.Subscribe(topic);
         int got = 0;
         Stopwatch? clock = null;
+        TimeSpan cpu = default;
         while (got < events)
         {
             var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
@@ -126,14 +155,20 @@ internal sealed class PipelineBenchmark : IDisposable
                 continue;
             }
             got++;
+            if (producer is not null)
+            {
+                Send(producer, produceTo!, r.Message.Key, r.Message.Value, handler);
+            }
             if (got == events / 3)
             {
+                cpu = Environment.CpuUsage.TotalTime;
                 clock = Stopwatch.StartNew(); // the same steady-state window as the worker's
             }
         }
-        double seconds = clock!.Elapsed.TotalSeconds;
+        producer?.Flush(TimeSpan.FromSeconds(60));
+        var window = Window.Of(events - events / 3, clock!.Elapsed, Environment.CpuUsage.TotalTime - cpu);
         consumer.Close();
-        return (events - events / 3) / seconds;
+        return window;
     }
 
     /// <summary>
@@ -178,14 +213,17 @@ internal sealed class PipelineBenchmark : IDisposable
         return produced;
     }
 
-    private static void Send(IProducer<byte[]?, byte[]> producer, string topic, string key, string value)
+    private static void Send(IProducer<byte[]?, byte[]> producer, string topic, string key, string value) =>
+        Send(producer, topic, Encoding.UTF8.GetBytes(key), Encoding.UTF8.GetBytes(value), null);
+
+    private static void Send(IProducer<byte[]?, byte[]> producer, string topic, byte[]? key, byte[] value, Action<DeliveryReport<byte[]?, byte[]>>? handler)
     {
-        var message = new Message<byte[]?, byte[]> { Key = Encoding.UTF8.GetBytes(key), Value = Encoding.UTF8.GetBytes(value) };
+        var message = new Message<byte[]?, byte[]> { Key = key, Value = value };
         while (true)
         {
             try
             {
-                producer.Produce(topic, message);
+                producer.Produce(topic, message, handler);
                 return;
             }
             catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
@@ -222,7 +260,19 @@ internal sealed class PipelineBenchmark : IDisposable
         consumer.Close();
     }
 
-    private static double Median(List<double> values) => values.Order().ElementAt(values.Count / 2);
+    /// <summary>The worker's producer settings (src/Driftline.Kafka/Options/ClientSettings.cs) that bear on its cost.</summary>
+    private ProducerConfig PassThroughProducer()
+    {
+        var config = new ProducerConfig { BootstrapServers = _bootstrap, LingerMs = 5, EnableIdempotence = true };
+        config.Set("dotnet.producer.delivery.report.fields", "status");
+        return config;
+    }
+
+    private static double Median(IEnumerable<double> values)
+    {
+        var sorted = values.Order().ToList();
+        return sorted[sorted.Count / 2];
+    }
 
     private static double Pct(List<double> sorted, double q) => sorted.Count == 0 ? double.NaN : sorted[Math.Min(sorted.Count - 1, (int)(q * sorted.Count))];
 

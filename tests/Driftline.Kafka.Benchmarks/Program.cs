@@ -1,12 +1,34 @@
+using System.Globalization;
 using Driftline.Kafka.Benchmarks;
 
-// dotnet run -c Release --project tests/Driftline.Kafka.Benchmarks -- [events] [latency-rate]
+// dotnet run -c Release --project tests/Driftline.Kafka.Benchmarks -- [events] [latency-rate] [part]
 // Whole-pipeline figures through librdkafka's mock cluster on this machine: not a
 // BenchmarkDotNet micro-benchmark (a broker round trip is the unit), so each figure is a
 // median over repeated runs, next to a raw consume-only client in the same process and run.
-int events = args.Length > 0 ? int.Parse(args[0], System.Globalization.CultureInfo.InvariantCulture) : 60_000;
-int rate = args.Length > 1 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 50_000;
-EngineOnly.Run(events);
+// part: all (default), engine, throughput (7 repeats instead of 3) or latency.
+int events = args.Length > 0 ? int.Parse(args[0], CultureInfo.InvariantCulture) : 60_000;
+int rate = args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 50_000;
+string part = args.Length > 2 ? args[2] : "all";
+if (part is not ("all" or "engine" or "throughput" or "latency"))
+{
+    Console.Error.WriteLine($"unknown part '{part}': use all, engine, throughput or latency");
+    return 2;
+}
+if (part is "all" or "engine")
+{
+    EngineOnly.Run(events);
+}
+if (part is "engine")
+{
+    return 0;
+}
 using var bench = new PipelineBenchmark();
-bench.Throughput(events, repeats: 3);
-bench.Latency(rate, TimeSpan.FromSeconds(3));
+if (part is "all" or "throughput")
+{
+    bench.Throughput(events, repeats: part == "throughput" ? 7 : 3);
+}
+if (part is "all" or "latency")
+{
+    bench.Latency(rate, TimeSpan.FromSeconds(3));
+}
+return 0;
