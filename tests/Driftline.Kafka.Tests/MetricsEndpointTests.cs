@@ -19,6 +19,7 @@ public sealed class MetricsEndpointTests
         var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
         worker.Stats.EventsIn = 1234;
         worker.Stats.Partitions = 3;
+        worker.Stats.Pauses = 4321;
         int port = FreePort();
         using var endpoint = MetricsEndpoint.Start(new WorkerOptions { MetricsPort = port }, worker);
         Assert.NotNull(endpoint);
@@ -29,6 +30,8 @@ public sealed class MetricsEndpointTests
         Assert.Contains("driftline_events_in", metrics, StringComparison.Ordinal);
         Assert.Contains("1234", metrics, StringComparison.Ordinal);
         Assert.Contains("driftline_partitions", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_backpressure_pauses", metrics, StringComparison.Ordinal);
+        Assert.Contains("4321", metrics, StringComparison.Ordinal);
 
         using (var stopped = await http.GetAsync(new Uri("/health", UriKind.Relative), token))
         {

@@ -22,7 +22,7 @@ namespace Driftline.Kafka.Worker;
 /// give the partition up" exact without locks. The partitions' engines are independent, so
 /// each batch is drained partition by partition side by side on the pool
 /// (<see cref="PartitionDrainer"/>) while the loop consumes the next batch into a staging list
-/// (at most <see cref="MaxPull"/> records a topic); the loop then waits for the batch, queues
+/// (<see cref="RecordIntake"/>); the loop then waits for the batch, queues
 /// the staged records and starts the next one. Queues, positions and snapshots are touched by
 /// the loop only between two batches, and every rebalance callback first waits for the batch
 /// in flight and queues what was staged, so the callbacks see the same state as if the loop
@@ -39,7 +39,6 @@ namespace Driftline.Kafka.Worker;
 /// </remarks>
 internal sealed class KafkaWorker
 {
-    private const int MaxPull = 2_000;
     private static readonly TimeSpan IdleWait = TimeSpan.FromMilliseconds(50);
 
     private readonly KafkaOptions _options;
@@ -54,8 +53,7 @@ internal sealed class KafkaWorker
     private CheckpointCommitter? _committer;
     private CheckpointLoader? _loader;
     private readonly PartitionDrainer _drainer;
-    private readonly List<ConsumeResult<byte[]?, byte[]>> _stagedEvents = [];
-    private readonly List<ConsumeResult<byte[]?, byte[]>> _stagedLabels = [];
+    private readonly RecordIntake _intake;
     private ExceptionDispatchInfo? _drainFault;
 
     /// <summary>Also sees every alert of every partition (called from the partitions' threads; must be thread-safe and not block), or null.</summary>
@@ -71,6 +69,7 @@ internal sealed class KafkaWorker
         _store = new CheckpointStore(options.CheckpointDir);
         _drainer = new PartitionDrainer(options);
         Stats = stats ?? new WorkerStats();
+        _intake = new RecordIntake(options, _partitions, Stats);
     }
 
     /// <summary>Running counts.</summary>
@@ -173,10 +172,10 @@ internal sealed class KafkaWorker
         {
             ThrowIfFatal();
             // While the engines drain the last batch on the pool, this thread fetches the next one.
-            int got = Pull(events, fromLabels: false, idle ? IdleWait : TimeSpan.Zero);
+            int got = _intake.Pull(events, fromLabels: false, idle ? IdleWait : TimeSpan.Zero);
             if (_labels is not null)
             {
-                got += Pull(_labels, fromLabels: true, TimeSpan.Zero);
+                got += _intake.Pull(_labels, fromLabels: true, TimeSpan.Zero);
             }
             ThrowIfFatal();
             // From here to StartDrain the engines are idle: queues, positions and snapshots are the loop's.
@@ -199,113 +198,11 @@ internal sealed class KafkaWorker
         FinishDrain(events);
     }
 
-    /// <summary>
-    /// Consumes up to <see cref="MaxPull"/> records into the staging list without touching the
-    /// partitions (a batch may be draining them): <see cref="ApplyStaged"/> queues them later,
-    /// in the order consumed, on this thread.
-    /// </summary>
-    private int Pull(IConsumer<byte[]?, byte[]> consumer, bool fromLabels, TimeSpan firstWait)
-    {
-        var staged = fromLabels ? _stagedLabels : _stagedEvents;
-        int got = 0;
-        for (int i = 0; i < MaxPull; i++)
-        {
-            var result = consumer.Consume(i == 0 ? firstWait : TimeSpan.Zero);
-            if (result is null)
-            {
-                break;
-            }
-            staged.Add(result);
-            if (!result.IsPartitionEOF)
-            {
-                got++;
-            }
-        }
-        return got;
-    }
-
-    /// <summary>Queues the staged records on their partitions (engines idle), events first, as <see cref="Pull"/> consumed them.</summary>
+    /// <summary>Queues the staged records on their partitions (engines idle).</summary>
     private void ApplyStaged(IConsumer<byte[]?, byte[]> events)
     {
         Debug.Assert(!_drainer.InFlight, "the partitions' queues belong to the drain in flight");
-        ApplyAll(events, _stagedEvents, fromLabels: false);
-        if (_labels is not null)
-        {
-            ApplyAll(_labels, _stagedLabels, fromLabels: true);
-        }
-    }
-
-    private void ApplyAll(IConsumer<byte[]?, byte[]> consumer, List<ConsumeResult<byte[]?, byte[]>> staged, bool fromLabels)
-    {
-        foreach (var result in staged)
-        {
-            Apply(consumer, result, fromLabels);
-        }
-        staged.Clear();
-    }
-
-    private void Apply(IConsumer<byte[]?, byte[]> consumer, ConsumeResult<byte[]?, byte[]> result, bool fromLabels)
-    {
-        if (!_partitions.TryGetValue(result.Partition.Value, out var state))
-        {
-            return; // fetched before the partition was given up
-        }
-        long next = fromLabels ? state.LabelsNext : state.EventsNext;
-        if (result.IsPartitionEOF)
-        {
-            if (fromLabels)
-            {
-                state.LabelsAtEnd = true;
-                state.LabelsNext = next == PartitionState.Unknown && state.Labels.Count == 0 ? result.Offset.Value : next;
-            }
-            else
-            {
-                state.EventsAtEnd = true;
-                state.EventsNext = next == PartitionState.Unknown && state.Events.Count == 0 ? result.Offset.Value : next;
-            }
-            return;
-        }
-        var queue = fromLabels ? state.Labels : state.Events;
-        long queuedUpTo = fromLabels ? state.LabelsQueuedUpTo : state.EventsQueuedUpTo;
-        if (queuedUpTo != PartitionState.Unknown && result.Offset.Value < queuedUpTo)
-        {
-            return; // already processed or queued (a re-fetch after a seek)
-        }
-        if (fromLabels)
-        {
-            state.LabelsQueuedUpTo = result.Offset.Value + 1;
-        }
-        else
-        {
-            state.EventsQueuedUpTo = result.Offset.Value + 1;
-        }
-        queue.Enqueue(new BufferedRecord(result.Offset.Value, result.Message.Timestamp.UnixTimestampMs, result.Message.Key, result.Message.Value ?? [], Environment.TickCount64));
-        if (fromLabels)
-        {
-            state.LabelsAtEnd = false;
-            Stats.LabelsIn++;
-        }
-        else
-        {
-            state.EventsAtEnd = false;
-            state.EventsWatermarkMs = Math.Max(state.EventsWatermarkMs, result.Message.Timestamp.UnixTimestampMs);
-            Stats.EventsIn++;
-        }
-        if (queue.Count >= _options.MaxBufferedPerPartition)
-        {
-            // Backpressure: the other side is behind; stop fetching this side until the merge catches up.
-            // The topic is named here: the consume results do not carry it (ClientSettings).
-            consumer.Pause([new TopicPartition(fromLabels ? _options.LabelsTopic : _options.EventsTopic, result.Partition)]);
-            Stats.Pauses++;
-            if (fromLabels)
-            {
-                state.LabelsPaused = true;
-            }
-            else
-            {
-                state.EventsPaused = true;
-            }
-        }
+        _intake.ApplyStaged(events, _labels);
     }
 
     private List<PartitionState> Busy() => _partitions.Values.Where(s => s.Events.Count + s.Labels.Count > 0).ToList();
@@ -357,27 +254,8 @@ internal sealed class KafkaWorker
                 ModelKeys[model.Key] = state.Partition;
             }
             state.KnownModels = state.Engine.Models.Count;
-            Resume(events, state, fromLabels: false);
-            Resume(_labels, state, fromLabels: true);
-        }
-    }
-
-    private void Resume(IConsumer<byte[]?, byte[]>? consumer, PartitionState state, bool fromLabels)
-    {
-        bool paused = fromLabels ? state.LabelsPaused : state.EventsPaused;
-        int queued = fromLabels ? state.Labels.Count : state.Events.Count;
-        if (consumer is null || !paused || queued > _options.MaxBufferedPerPartition / 2)
-        {
-            return;
-        }
-        consumer.Resume([new TopicPartition(fromLabels ? _options.LabelsTopic! : _options.EventsTopic, state.Partition)]);
-        if (fromLabels)
-        {
-            state.LabelsPaused = false;
-        }
-        else
-        {
-            state.EventsPaused = false;
+            _intake.Resume(events, state, fromLabels: false);
+            _intake.Resume(_labels, state, fromLabels: true);
         }
     }
 

@@ -25,6 +25,8 @@ internal sealed class WorkerMeter : IDisposable
         _meter.CreateObservableCounter("driftline.labels.expired", () => stats.LastMetrics?.ExpiredLabels ?? 0, "{label}", "Predictions that left the pending store unlabelled (latest partition reporting)");
         _meter.CreateObservableCounter("driftline.dead_letters", () => stats.DeadLetters, "{record}", "Records sent to the dead-letter topic");
         _meter.CreateObservableCounter("driftline.alerts", () => stats.Alerts, "{alert}", "Alerts raised or cleared");
+        _meter.CreateObservableCounter("driftline.backpressure.pauses", () => stats.Pauses, "{pause}", "Times a partition was paused because its merge queue was full");
+        _meter.CreateObservableCounter("driftline.backpressure.produce_waits", () => stats.ProduceWaits, "{wait}", "Times the producer's send queue was full and the worker waited");
         _meter.CreateObservableCounter("driftline.checkpoints", () => stats.Checkpoints, "{checkpoint}", "Partition checkpoints written");
         _meter.CreateObservableGauge("driftline.alerts.active", () => stats.AlertsActive, "{alert}", "Alert rules raised now, over the owned partitions");
         _meter.CreateObservableGauge("driftline.partitions", () => stats.Partitions, "{partition}", "Events partitions owned");
