@@ -10,7 +10,6 @@ return args.FirstOrDefault() switch
     "split" => StageSplit.Run(args[1]),
     "engine" => StageSplit.EngineOnly(args[1]),
     "bare" => PrintCount(BareLoop.Run(args[1])),
-    "winprobe" => WinProbe.Run(),
     _ => Usage(),
 };
 

@@ -28,6 +28,7 @@ internal sealed class PipelineBenchmark : IDisposable
     public void Throughput(int events, int repeats)
     {
         int records = Produce("bench-events", events, ratePerSecond: 0);
+        RequireWholeLog("bench-events", records);
         RunWorker("bench-events", events, records); // warm-up: JIT tiers and the first group join
         var raw = new List<Window>();
         var passThrough = new List<Window>();
@@ -258,6 +259,34 @@ internal sealed class PipelineBenchmark : IDisposable
             }
         }
         consumer.Close();
+    }
+
+    /// <summary>
+    /// Stops with a clear message when the mock brokers dropped the start of the topic: each
+    /// mock partition keeps at most 5 MiB or 100,000 message sets (librdkafka, src/rdkafka_mock.c,
+    /// rd_kafka_mock_partition_init), and the timed clients would then wait for ever for records
+    /// that are gone.
+    /// </summary>
+    private void RequireWholeLog(string topic, int records)
+    {
+        var config = new ConsumerConfig { BootstrapServers = _bootstrap, GroupId = "bench-check" };
+        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        long kept = 0;
+        using var admin = new DependentAdminClientBuilder(_host.Handle).Build();
+        foreach (int partition in admin.GetMetadata(topic, TimeSpan.FromSeconds(10)).Topics[0].Partitions.Select(p => p.PartitionId))
+        {
+            var marks = consumer.QueryWatermarkOffsets(new TopicPartition(topic, partition), TimeSpan.FromSeconds(10));
+            if (marks.Low.Value > 0)
+            {
+                throw new InvalidOperationException(string.Create(CultureInfo.InvariantCulture,
+                    $"the mock cluster dropped the first {marks.Low.Value:N0} records of {topic} partition {partition} (it keeps about 5 MiB a partition): use fewer events (60,000 fits)"));
+            }
+            kept += marks.High.Value;
+        }
+        if (kept != records)
+        {
+            throw new InvalidOperationException($"{topic} holds {kept:N0} records, {records:N0} were produced");
+        }
     }
 
     /// <summary>The worker's producer settings (src/Driftline.Kafka/Options/ClientSettings.cs) that bear on its cost.</summary>

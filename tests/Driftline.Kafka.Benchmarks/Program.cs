@@ -23,12 +23,20 @@ if (part is "engine")
     return 0;
 }
 using var bench = new PipelineBenchmark();
-if (part is "all" or "throughput")
+try
 {
-    bench.Throughput(events, repeats: part == "throughput" ? 7 : 3);
+    if (part is "all" or "throughput")
+    {
+        bench.Throughput(events, repeats: part == "throughput" ? 7 : 3);
+    }
+    if (part is "all" or "latency")
+    {
+        bench.Latency(rate, TimeSpan.FromSeconds(3));
+    }
 }
-if (part is "all" or "latency")
+catch (InvalidOperationException ex)
 {
-    bench.Latency(rate, TimeSpan.FromSeconds(3));
+    Console.Error.WriteLine(ex.Message);
+    return 1;
 }
 return 0;
