@@ -22,8 +22,8 @@ namespace Driftline.Kafka.Worker;
 /// give the partition up" exact without locks. The partitions' engines are independent, so
 /// each batch is drained partition by partition side by side on the pool
 /// (<see cref="PartitionDrainer"/>) while the loop consumes the next batch into a staging list
-/// (<see cref="RecordIntake"/>); the loop then waits for the batch, queues
-/// the staged records and starts the next one. Queues, positions and snapshots are touched by
+/// (<see cref="RecordIntake"/>); the loop then drains what the pool has not taken of the
+/// batch, waits for the rest, queues the staged records and starts the next one. Queues, positions and snapshots are touched by
 /// the loop only between two batches, and every rebalance callback first waits for the batch
 /// in flight and queues what was staged, so the callbacks see the same state as if the loop
 /// had drained in line. librdkafka's own threads fetch ahead and send behind through bounded
@@ -397,7 +397,7 @@ internal sealed class KafkaWorker
     {
         try
         {
-            _drainer.Finish();
+            _drainer.Finish(help: false);
         }
         catch (Exception ex)
         {

@@ -4,17 +4,17 @@ namespace Driftline.Kafka.Worker;
 
 /// <summary>
 /// Runs the partitions' queued records through their engines, in merged order and as far as
-/// the merge allows: side by side on the pool (each engine has its own sink and parser) on up
-/// to <see cref="DrainThreads"/> threads, at most one batch at a time. <see cref="Start"/> hands a batch to the pool so the loop thread
-/// can fetch the next one meanwhile; <see cref="Finish"/> waits for it. Owned by the worker
-/// loop: only the loop thread calls it, and it touches the partitions' queues, engines and
-/// positions only while a batch is in flight (the loop leaves them alone until
-/// <see cref="Finish"/> returns).
+/// the merge allows: side by side (each engine has its own sink and parser) on up to
+/// <see cref="DrainThreads"/> pool threads and the loop thread, at most one batch at a time.
+/// <see cref="Start"/> hands a batch to the pool so the loop thread can fetch the next one
+/// meanwhile; <see cref="Finish"/> drains what the pool has not taken yet and waits for the
+/// rest. Owned by the worker loop: only the loop thread calls it, and it touches the
+/// partitions' queues, engines and positions only while a batch is in flight (the loop leaves
+/// them alone until <see cref="Finish"/> returns).
 /// </summary>
 internal sealed class PartitionDrainer(KafkaOptions options)
 {
-    private Task<int>? _inFlight;
-    private List<PartitionState>? _batch;
+    private Batch? _inFlight;
 
     /// <summary>True while a batch started by <see cref="Start"/> has not been collected by <see cref="Finish"/>.</summary>
     public bool InFlight => _inFlight is not null;
@@ -33,57 +33,82 @@ internal sealed class PartitionDrainer(KafkaOptions options)
         {
             return;
         }
-        long now = Environment.TickCount64;
-        _batch = busy;
-        _inFlight = Task.Run(() => DrainAll(busy, now));
+        var batch = new Batch(busy, Environment.TickCount64, (long)options.LabelHold.TotalMilliseconds);
+        batch.Workers = Enumerable.Range(0, Math.Min(DrainThreads, busy.Count)).Select(_ => Task.Run(() => DrainClaimed(batch))).ToArray();
+        _inFlight = batch;
     }
 
     /// <summary>
     /// Waits for the batch in flight, if any, and returns it with the records it processed
-    /// (an empty list and 0 when none was in flight). An exception from an engine or a sink
-    /// is rethrown here; the batch is collected either way, so a second call returns nothing.
+    /// (an empty list and 0 when none was in flight). Unless <paramref name="help"/> is false,
+    /// the calling thread first drains the batch's partitions that no pool thread has taken
+    /// yet, so a loop with nothing else to do lends its core to the engines. An exception
+    /// from an engine or a sink is rethrown here; the batch is collected either way, so a
+    /// second call returns nothing.
     /// </summary>
-    public (List<PartitionState> Drained, int Done) Finish()
+    public (List<PartitionState> Drained, int Done) Finish(bool help = true)
     {
-        if (_inFlight is not { } task)
+        if (_inFlight is not { } batch)
         {
             return ([], 0);
         }
-        var batch = _batch!;
         _inFlight = null;
-        _batch = null;
-        return (batch, task.GetAwaiter().GetResult());
+        Exception? helperFault = null;
+        if (help)
+        {
+            try
+            {
+                DrainClaimed(batch);
+            }
+            catch (Exception ex)
+            {
+                // Stop the pool threads from taking more, then wait for them before rethrowing.
+                batch.Claim(batch.Partitions.Count);
+                helperFault = ex;
+            }
+        }
+        try
+        {
+            Task.WaitAll(batch.Workers);
+        }
+        catch (AggregateException ex) when (helperFault is null)
+        {
+            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(ex.InnerExceptions[0]).Throw();
+        }
+        catch (AggregateException) when (helperFault is not null)
+        {
+            // The helper's own fault is the one reported.
+        }
+        if (helperFault is not null)
+        {
+            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(helperFault).Throw();
+        }
+        return (batch.Partitions, batch.Done);
     }
 
     /// <summary>Drains <paramref name="busy"/> on this thread and the pool and returns the records processed.</summary>
-    public int DrainNow(List<PartitionState> busy) => DrainAll(busy, Environment.TickCount64);
+    public int DrainNow(List<PartitionState> busy)
+    {
+        Start(busy);
+        return Finish().Done;
+    }
 
     /// <summary>
-    /// Threads a batch drains on: one core fewer than the machine has (at least one), because
-    /// the loop thread consumes the next batch meanwhile and librdkafka's threads need a core
-    /// too. On 2 cores one drain thread gave the worker 251k msg/s against 225k with two
-    /// (medians of 7 alternating benchmark runs), and a lower p99 latency (176 ms against 296).
+    /// Pool threads a batch starts with: one core fewer than the machine has (at least one),
+    /// because the loop thread consumes the next batch meanwhile and librdkafka's threads need a
+    /// core too; the loop joins in (<see cref="Finish"/>) once it has consumed. On 2 cores a
+    /// second pool thread gave the worker 225k msg/s against 251k with one (medians of 7
+    /// alternating benchmark runs), and a higher p99 latency (296 ms against 176).
     /// </summary>
     private static readonly int DrainThreads = Math.Max(1, Environment.ProcessorCount - 1);
 
-    private int DrainAll(List<PartitionState> busy, long now)
+    /// <summary>Drains partitions of <paramref name="batch"/> one at a time until none is left to take.</summary>
+    private void DrainClaimed(Batch batch)
     {
-        long hold = (long)options.LabelHold.TotalMilliseconds;
-        int done = 0;
-        if (busy.Count > 1 && DrainThreads > 1)
+        for (int i = batch.Claim(1); i < batch.Partitions.Count; i = batch.Claim(1))
         {
-            // Engines are independent, one per partition: drain them side by side.
-            Parallel.ForEach(busy, new ParallelOptions { MaxDegreeOfParallelism = DrainThreads }, state =>
-                Interlocked.Add(ref done, Drain(state, now, hold)));
+            batch.Add(Drain(batch.Partitions[i], batch.Now, batch.Hold));
         }
-        else
-        {
-            foreach (var state in busy)
-            {
-                done += Drain(state, now, hold);
-            }
-        }
-        return done;
     }
 
     /// <summary>Runs one partition's records in merged order as far as the merge allows.</summary>
@@ -108,5 +133,30 @@ internal sealed class PartitionDrainer(KafkaOptions options)
             done++;
         }
         return done;
+    }
+
+    /// <summary>
+    /// One batch: its partitions, each taken by exactly one thread (<see cref="Claim"/>), so an
+    /// engine and its sink still have one writer at a time.
+    /// </summary>
+    private sealed class Batch(List<PartitionState> partitions, long now, long hold)
+    {
+        private int _next = -1;
+        private int _done;
+
+        public List<PartitionState> Partitions { get; } = partitions;
+
+        public long Now { get; } = now;
+
+        public long Hold { get; } = hold;
+
+        public Task[] Workers { get; set; } = [];
+
+        public int Done => Volatile.Read(ref _done);
+
+        /// <summary>Takes the next <paramref name="count"/> partitions; returns the index of the first.</summary>
+        public int Claim(int count) => Interlocked.Add(ref _next, count) - count + 1;
+
+        public void Add(int records) => Interlocked.Add(ref _done, records);
     }
 }
