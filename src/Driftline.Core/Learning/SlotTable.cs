@@ -35,26 +35,7 @@ internal sealed class SlotTable
 
     /// <summary>The position of <paramref name="slot"/>, or −1 when it was never written.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public int Find(int slot)
-    {
-        var entries = _entries;
-        int mask = entries.Length - 1;
-        ulong key = (ulong)(uint)(slot + 1) << 32;
-        int i = Home(slot);
-        while (true)
-        {
-            ulong entry = entries[i];
-            if ((entry & 0xFFFF_FFFF_0000_0000UL) == key)
-            {
-                return (int)(uint)entry;
-            }
-            if (entry == 0)
-            {
-                return -1;
-            }
-            i = (i + 1) & mask;
-        }
-    }
+    public int Find(int slot) => Probe(slot, out _);
 
     /// <summary>
     /// The position of <paramref name="slot"/>, adding it at position <see cref="Count"/> when it is
@@ -63,24 +44,13 @@ internal sealed class SlotTable
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public int FindOrAdd(int slot, out bool grew)
     {
-        var entries = _entries;
-        int mask = entries.Length - 1;
-        ulong key = (ulong)(uint)(slot + 1) << 32;
-        int i = Home(slot);
-        while (true)
+        int position = Probe(slot, out int empty);
+        if (position >= 0)
         {
-            ulong entry = entries[i];
-            if ((entry & 0xFFFF_FFFF_0000_0000UL) == key)
-            {
-                grew = false;
-                return (int)(uint)entry;
-            }
-            if (entry == 0)
-            {
-                return Add(slot, i, out grew);
-            }
-            i = (i + 1) & mask;
+            grew = false;
+            return position;
         }
+        return Add(slot, empty, out grew);
     }
 
     /// <summary>Forgets every slot.</summary>
@@ -120,6 +90,29 @@ internal sealed class SlotTable
                     i = (i + 1) & mask;
                 }
                 _entries[i] = entry;
+            }
+        }
+    }
+
+    /// <summary>The position of <paramref name="slot"/>, or −1 with <paramref name="empty"/> the entry where it would go.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private int Probe(int slot, out int empty)
+    {
+        var entries = _entries;
+        int mask = entries.Length - 1;
+        ulong key = (ulong)(uint)(slot + 1) << 32;
+        for (int i = Home(slot); ; i = (i + 1) & mask)
+        {
+            ulong entry = entries[i];
+            if ((entry & 0xFFFF_FFFF_0000_0000UL) == key)
+            {
+                empty = -1;
+                return (int)(uint)entry;
+            }
+            if (entry == 0)
+            {
+                empty = i;
+                return -1;
             }
         }
     }
