@@ -13,10 +13,15 @@ internal sealed class MockCluster : IDisposable
 
     private readonly IProducer<byte[]?, byte[]> _host;
 
-    public MockCluster()
+    /// <summary>Starts the cluster; <paramref name="roundTripMs"/> delays every broker response (librdkafka's test.mock.broker.rtt).</summary>
+    public MockCluster(int roundTripMs = 0)
     {
         var config = new ProducerConfig();
         config.Set("test.mock.num.brokers", "3");
+        if (roundTripMs > 0)
+        {
+            config.Set("test.mock.broker.rtt", roundTripMs.ToString(System.Globalization.CultureInfo.InvariantCulture));
+        }
         _host = new ProducerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
         using var admin = new DependentAdminClientBuilder(_host.Handle).Build();
         var metadata = admin.GetMetadata(TimeSpan.FromSeconds(10));

@@ -45,6 +45,26 @@ internal static class Topics
         Produce(bootstrap, labelsTopic, list.Where(r => r.IsLabel).Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
     }
 
+    /// <summary>Reads the first <paramref name="count"/> records of <paramref name="topic"/> with where each one sits.</summary>
+    public static List<(int Partition, long Offset, string Value)> ReadPlaced(string bootstrap, string topic, int count, TimeSpan limit)
+    {
+        var config = new ConsumerConfig { BootstrapServers = bootstrap, GroupId = "placed-" + Guid.NewGuid().ToString("N"), AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false };
+        config.Set("group.protocol", "consumer");
+        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        consumer.Subscribe(topic);
+        var placed = new List<(int, long, string)>();
+        var deadline = DateTime.UtcNow + limit;
+        while (placed.Count < count && DateTime.UtcNow < deadline)
+        {
+            if (consumer.Consume(TimeSpan.FromMilliseconds(100)) is { IsPartitionEOF: false } r)
+            {
+                placed.Add((r.Partition.Value, r.Offset.Value, Encoding.UTF8.GetString(r.Message.Value)));
+            }
+        }
+        consumer.Close();
+        return placed;
+    }
+
     /// <summary>Reads <paramref name="topic"/> from the start until <paramref name="until"/> says enough or the time is up.</summary>
     public static List<string> ReadAll(string bootstrap, string topic, Func<List<string>, bool> until, TimeSpan limit)
     {
