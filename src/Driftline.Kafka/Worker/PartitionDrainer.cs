@@ -1,3 +1,4 @@
+using System.Runtime.ExceptionServices;
 using Driftline.Kafka.Options;
 
 namespace Driftline.Kafka.Worker;
@@ -53,7 +54,7 @@ internal sealed class PartitionDrainer(KafkaOptions options)
             return ([], 0);
         }
         _inFlight = null;
-        Exception? helperFault = null;
+        Exception? fault = null;
         if (help)
         {
             try
@@ -64,24 +65,20 @@ internal sealed class PartitionDrainer(KafkaOptions options)
             {
                 // Stop the pool threads from taking more, then wait for them before rethrowing.
                 batch.Claim(batch.Partitions.Count);
-                helperFault = ex;
+                fault = ex;
             }
         }
         try
         {
             Task.WaitAll(batch.Workers);
         }
-        catch (AggregateException ex) when (helperFault is null)
+        catch (AggregateException ex)
         {
-            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(ex.InnerExceptions[0]).Throw();
+            fault ??= ex.InnerExceptions[0];
         }
-        catch (AggregateException) when (helperFault is not null)
+        if (fault is not null)
         {
-            // The helper's own fault is the one reported.
-        }
-        if (helperFault is not null)
-        {
-            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(helperFault).Throw();
+            ExceptionDispatchInfo.Capture(fault).Throw();
         }
         return (batch.Partitions, batch.Done);
     }
