@@ -50,7 +50,7 @@ public sealed class PartitionDrainerTests
         using var producer = new ProducerBuilder<byte[]?, byte[]>(new ProducerConfig { BootstrapServers = cluster.Bootstrap }).Build();
         var partitions = Enumerable.Range(0, 4).Select(p => Partition(producer, p, events: 50)).ToList();
         // A partition with no processor fails on its first record, whichever thread takes it.
-        var broken = new PartitionState(9, new ScoringEngine(new DriftlineOptions(), new Sink()), checkpoint: null, hasLabels: false);
+        var broken = new PartitionState(9, new ScoringEngine(new DriftlineOptions(), new NullSink()), checkpoint: null, hasLabels: false);
         broken.Events.Enqueue(new BufferedRecord(0, 0, null, Encoding.UTF8.GetBytes("{\"id\":\"x\"}")));
         partitions.Insert(2, broken);
         var drainer = new PartitionDrainer(Options);
@@ -76,20 +76,5 @@ public sealed class PartitionDrainerTests
             state.Events.Enqueue(new BufferedRecord(i, i, null, Encoding.UTF8.GetBytes($"{{\"id\":\"p{partition}-{i}\",\"features\":{{\"zone\":\"north\",\"items\":{i % 5}}}}}")));
         }
         return state;
-    }
-
-    private sealed class Sink : IScoringSink
-    {
-        public void OnPrediction(in Prediction prediction)
-        {
-        }
-
-        public void OnAlert(Driftline.Core.Alerts.AlertTransition alert)
-        {
-        }
-
-        public void OnMetrics(in MetricsRow row)
-        {
-        }
     }
 }

@@ -1,5 +1,6 @@
 using Driftline.Core.Options;
 using Driftline.Core.Scoring;
+using Driftline.Kafka.Tests.Support;
 using Driftline.Kafka.Worker;
 using Xunit;
 
@@ -78,20 +79,5 @@ public sealed class PartitionStateTests
         Assert.True(state.Dirty);
         state.CheckpointedEvents = 10;
         Assert.False(state.Dirty);
-    }
-
-    private sealed class NullSink : IScoringSink
-    {
-        public void OnPrediction(in Prediction prediction)
-        {
-        }
-
-        public void OnAlert(Driftline.Core.Alerts.AlertTransition alert)
-        {
-        }
-
-        public void OnMetrics(in MetricsRow row)
-        {
-        }
     }
 }

@@ -48,10 +48,7 @@ internal static class Topics
     /// <summary>Reads the first <paramref name="count"/> records of <paramref name="topic"/> with where each one sits.</summary>
     public static List<(int Partition, long Offset, string Value)> ReadPlaced(string bootstrap, string topic, int count, TimeSpan limit)
     {
-        var config = new ConsumerConfig { BootstrapServers = bootstrap, GroupId = "placed-" + Guid.NewGuid().ToString("N"), AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false };
-        config.Set("group.protocol", "consumer");
-        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
-        consumer.Subscribe(topic);
+        using var consumer = Reader(bootstrap, topic);
         var placed = new List<(int, long, string)>();
         var deadline = DateTime.UtcNow + limit;
         while (placed.Count < count && DateTime.UtcNow < deadline)
@@ -68,16 +65,7 @@ internal static class Topics
     /// <summary>Reads <paramref name="topic"/> from the start until <paramref name="until"/> says enough or the time is up.</summary>
     public static List<string> ReadAll(string bootstrap, string topic, Func<List<string>, bool> until, TimeSpan limit)
     {
-        var config = new ConsumerConfig
-        {
-            BootstrapServers = bootstrap,
-            GroupId = "reader-" + Guid.NewGuid().ToString("N"),
-            AutoOffsetReset = AutoOffsetReset.Earliest,
-            EnableAutoCommit = false,
-        };
-        config.Set("group.protocol", "consumer");
-        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
-        consumer.Subscribe(topic);
+        using var consumer = Reader(bootstrap, topic);
         var values = new List<string>();
         var deadline = DateTime.UtcNow + limit;
         var quietSince = DateTime.UtcNow;
@@ -98,5 +86,21 @@ internal static class Topics
         }
         consumer.Close();
         return values;
+    }
+
+    /// <summary>A consumer of <paramref name="topic"/> from its start, in a group of its own.</summary>
+    private static IConsumer<byte[]?, byte[]> Reader(string bootstrap, string topic)
+    {
+        var config = new ConsumerConfig
+        {
+            BootstrapServers = bootstrap,
+            GroupId = "reader-" + Guid.NewGuid().ToString("N"),
+            AutoOffsetReset = AutoOffsetReset.Earliest,
+            EnableAutoCommit = false,
+        };
+        config.Set("group.protocol", "consumer");
+        var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        consumer.Subscribe(topic);
+        return consumer;
     }
 }
