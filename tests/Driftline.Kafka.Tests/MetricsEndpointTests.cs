@@ -27,11 +27,12 @@ public sealed class MetricsEndpointTests
         var token = TestContext.Current.CancellationToken;
 
         string metrics = await http.GetStringAsync(new Uri("/metrics", UriKind.Relative), token);
-        Assert.Contains("driftline_events_in", metrics, StringComparison.Ordinal);
-        Assert.Contains("1234", metrics, StringComparison.Ordinal);
+        // Prometheus naming (common practice, the Prometheus naming guide): _total on counters, _seconds on times.
+        Assert.Contains("driftline_events_in_total 1234", metrics, StringComparison.Ordinal);
+        Assert.Contains("# TYPE driftline_events_in_total counter", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_checkpoint_age_seconds", metrics, StringComparison.Ordinal);
         Assert.Contains("driftline_partitions", metrics, StringComparison.Ordinal);
-        Assert.Contains("driftline_backpressure_pauses", metrics, StringComparison.Ordinal);
-        Assert.Contains("4321", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_backpressure_pauses_total 4321", metrics, StringComparison.Ordinal);
 
         using (var stopped = await http.GetAsync(new Uri("/health", UriKind.Relative), token))
         {
@@ -41,6 +42,36 @@ public sealed class MetricsEndpointTests
         using var running = await http.GetAsync(new Uri("/health", UriKind.Relative), token);
         Assert.Equal(HttpStatusCode.OK, running.StatusCode);
         Assert.Contains("\"partitions\":3", await running.Content.ReadAsStringAsync(token), StringComparison.Ordinal);
+    }
+
+    [Theory]
+    [InlineData("*")]
+    [InlineData("0.0.0.0")]
+    public async Task Start_AllInterfaces_ServesOnLoopbackToo(string address)
+    {
+        using var dir = new TempDir();
+        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        int port = FreePort();
+        using var endpoint = MetricsEndpoint.Start(new WorkerOptions { MetricsAddress = address, MetricsPort = port }, worker);
+        Assert.NotNull(endpoint);
+        using var http = new HttpClient { BaseAddress = new Uri($"http://127.0.0.1:{port}") };
+        var token = TestContext.Current.CancellationToken;
+        string metrics = await http.GetStringAsync(new Uri("/metrics", UriKind.Relative), token);
+        Assert.Contains("driftline_events_in", metrics, StringComparison.Ordinal);
+        using var health = await http.GetAsync(new Uri("/health", UriKind.Relative), token);
+        Assert.Equal(HttpStatusCode.ServiceUnavailable, health.StatusCode);
+    }
+
+    [Fact]
+    public void Start_PortTaken_ThrowsNamingTheOptions()
+    {
+        using var dir = new TempDir();
+        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        using var taken = new TcpListener(IPAddress.Loopback, 0);
+        taken.Start();
+        int port = ((IPEndPoint)taken.LocalEndpoint).Port;
+        var ex = Assert.Throws<MetricsEndpointException>(() => MetricsEndpoint.Start(new WorkerOptions { MetricsPort = port }, worker));
+        Assert.Contains("Worker:MetricsPort", ex.Message, StringComparison.Ordinal);
     }
 
     private static int FreePort()

@@ -35,6 +35,20 @@ public sealed class RunCommandTests
     }
 
     [Fact]
+    public async Task Run_MetricsPortTaken_ExitsWithConfigNamingTheOption()
+    {
+        using var dir = new TempDir();
+        using var taken = new System.Net.Sockets.TcpListener(System.Net.IPAddress.Loopback, 0);
+        taken.Start();
+        int port = ((System.Net.IPEndPoint)taken.LocalEndpoint).Port;
+        var env = new Dictionary<string, string?> { ["DRIFTLINE_Worker__MetricsPort"] = port.ToString(System.Globalization.CultureInfo.InvariantCulture) };
+        var (code, _, error) = await RunAsync(["run", "--bootstrap", "127.0.0.1:9", "--checkpoint-dir", dir.Path], env);
+        Assert.True(code == ExitCode.Config, error);
+        var line = Assert.Single(error.Split('\n', StringSplitOptions.RemoveEmptyEntries));
+        Assert.Contains("Worker:MetricsPort", line, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task Run_AutoCommitTurnedOn_IsRefusedWithTheFix()
     {
         var env = new Dictionary<string, string?> { ["DRIFTLINE_Kafka__Client__enable.auto.commit"] = "true" };

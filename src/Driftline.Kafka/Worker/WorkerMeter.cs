@@ -37,6 +37,9 @@ internal sealed class WorkerMeter : IDisposable
         _meter.CreateObservableGauge("driftline.window.ece", () => Ready(stats) ? stats.LastMetrics!.Value.Window.Ece : double.NaN, "1", "Rolling-window expected calibration error of the latest partition to report");
     }
 
+    /// <summary>The meter itself, for an exporter that must take this instance's instruments only.</summary>
+    public Meter Meter => _meter;
+
     /// <inheritdoc />
     public void Dispose() => _meter.Dispose();
 

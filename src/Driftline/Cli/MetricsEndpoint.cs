@@ -2,44 +2,61 @@ using System.Net;
 using System.Text;
 using Driftline.Configuration;
 using Driftline.Kafka.Worker;
-using OpenTelemetry;
-using OpenTelemetry.Metrics;
+using Prometheus;
 using Serilog;
 
 namespace Driftline.Cli;
 
 /// <summary>
-/// The worker's HTTP endpoint: <c>/metrics</c> in the Prometheus text format (OpenTelemetry's
-/// Prometheus HttpListener exporter over <see cref="WorkerMeter"/>) and <c>/health</c> (200
-/// while the Kafka loop runs, 503 otherwise), both on one address, 127.0.0.1 by default.
+/// The worker's HTTP endpoint: <c>/metrics</c> in the Prometheus text format (prometheus-net's
+/// HttpListener server over <see cref="WorkerMeter"/>, carried by <see cref="MeterScrape"/>) and <c>/health</c> (200 while the Kafka loop runs, 503 otherwise), both on one
+/// address, 127.0.0.1 by default.
 /// </summary>
+/// <remarks>
+/// <c>*</c>, <c>0.0.0.0</c> and <c>::</c> mean every interface (as in a container). HttpListener
+/// spells that <c>+</c> in a prefix; a numeric any-address is refused by it, and a prefix names
+/// the host the request must ask for, so every other address is used as it is written.
+/// OpenTelemetry's listener exporter, used before, could not bind every interface at all: it
+/// builds its prefix through <see cref="UriBuilder"/>, which rejects the wildcard.
+/// </remarks>
 internal sealed class MetricsEndpoint : IDisposable
 {
     private readonly WorkerMeter _meter;
-    private readonly MeterProvider _provider;
+    private readonly MeterScrape _scrape;
+    private readonly MetricServer _server;
     private readonly HttpListener _health;
     private readonly CancellationTokenSource _stop = new();
 
     private MetricsEndpoint(WorkerOptions options, KafkaWorker worker)
     {
+        string host = ListenerHost(options.MetricsAddress);
+        var registry = Metrics.NewCustomRegistry();
         _meter = new WorkerMeter(worker.Stats);
-        _provider = Sdk.CreateMeterProviderBuilder()
-            .AddMeter(WorkerMeter.MeterName)
-            .AddPrometheusHttpListener(o =>
-            {
-                o.Host = options.MetricsAddress;
-                o.Port = options.MetricsPort;
-            })
-            .Build();
+        _scrape = new MeterScrape(_meter.Meter, registry);
+        _server = new MetricServer(host, options.MetricsPort, "metrics/", registry);
         _health = new HttpListener();
-        _health.Prefixes.Add($"http://{options.MetricsAddress}:{options.MetricsPort}/health/");
-        _health.Start();
+        _health.Prefixes.Add($"http://{host}:{options.MetricsPort}/health/");
+        try
+        {
+            _server.Start();
+            _health.Start();
+        }
+        catch
+        {
+            Dispose();
+            throw;
+        }
         _ = ServeHealthAsync(worker.Stats);
     }
 
-    /// <summary>Starts the endpoint, or logs why it could not and returns null (the worker runs without it).</summary>
-    public static MetricsEndpoint? Start(WorkerOptions options, KafkaWorker worker)
+    /// <summary>
+    /// Starts the endpoint. When it cannot (the port is taken, the address is not this machine's),
+    /// logs why and throws <see cref="MetricsEndpointException"/>: an endpoint the operator asked for
+    /// and cannot scrape is a configuration error, not something to run without.
+    /// </summary>
+    public static MetricsEndpoint Start(WorkerOptions options, KafkaWorker worker)
     {
+        ArgumentNullException.ThrowIfNull(options);
         try
         {
             var endpoint = new MetricsEndpoint(options, worker);
@@ -48,10 +65,18 @@ internal sealed class MetricsEndpoint : IDisposable
         }
         catch (Exception ex) when (ex is HttpListenerException or InvalidOperationException or System.Net.Sockets.SocketException)
         {
-            Log.Warning("Metrics endpoint on {Address}:{Port} not started: {Reason}", options.MetricsAddress, options.MetricsPort, ex.Message);
-            return null;
+            throw new MetricsEndpointException(
+                $"Worker:MetricsAddress/Worker:MetricsPort: cannot serve http://{options.MetricsAddress}:{options.MetricsPort}/metrics ({ex.Message}); choose a free port or an address of this machine (127.0.0.1, or * for every interface)", ex);
         }
     }
+
+    /// <summary>The host part of an HttpListener prefix for <paramref name="address"/>.</summary>
+    internal static string ListenerHost(string address) => address switch
+    {
+        "*" or "+" or "0.0.0.0" or "::" or "[::]" => "+",
+        _ when IPAddress.TryParse(address, out var ip) && ip.AddressFamily == System.Net.Sockets.AddressFamily.InterNetworkV6 => $"[{ip}]",
+        _ => address,
+    };
 
     private async Task ServeHealthAsync(WorkerStats stats)
     {
@@ -89,7 +114,8 @@ internal sealed class MetricsEndpoint : IDisposable
     {
         _stop.Cancel();
         _health.Close();
-        _provider.Dispose();
+        _server.Dispose();
+        _scrape.Dispose();
         _meter.Dispose();
         _stop.Dispose();
     }

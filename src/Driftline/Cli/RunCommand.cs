@@ -84,7 +84,21 @@ internal sealed class RunCommand(CommandContext context)
         // Alerts also go to the webhook when one is configured; its queue never blocks the partitions.
         await using var webhook = core.Webhook.Address() is not null ? new WebhookAlertSink(core.Webhook) : null;
         var worker = new KafkaWorker(kafka, core) { AlertObserver = webhook is null ? null : a => webhook.Enqueue(a) };
-        using var endpoint = host.MetricsPort > 0 ? MetricsEndpoint.Start(host, worker) : null;
+        MetricsEndpoint? endpoint = null;
+        if (host.MetricsPort > 0)
+        {
+            try
+            {
+                endpoint = MetricsEndpoint.Start(host, worker);
+            }
+            catch (MetricsEndpointException ex)
+            {
+                Log.Debug(ex, "Metrics endpoint not started");
+                await context.Error.WriteLineAsync($"driftline: {ex.Message}").ConfigureAwait(false);
+                return ExitCode.Config;
+            }
+        }
+        using var endpointScope = endpoint;
         try
         {
             // The Kafka loop blocks in Consume, so it gets a thread of its own, not a pool thread.
