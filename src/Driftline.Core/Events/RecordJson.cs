@@ -1,3 +1,4 @@
+using System.Globalization;
 using System.Text.Json;
 using Driftline.Core.Alerts;
 using Driftline.Core.Scoring;
@@ -161,8 +162,12 @@ internal static class RecordJson
         string why = a.Explanation is { } e
             ? $" Predicted {e.MeanP:0.000} on average, observed {e.ObservedRate:0.000}: {e.Direction()}." + (e.WorstBins.Count > 0 ? $" Furthest off: {e.Bins()}." : "") + (e.Segments.Count > 0 ? $" Segments furthest off: {e.SegmentsInWords()}." : "")
             : "";
+        string value = a.Value.ToString("0.####", CultureInfo.InvariantCulture);
+        string threshold = a.Threshold.ToString("0.####", CultureInfo.InvariantCulture);
+        // Compared as printed, so a reader never sees "0.06, above the raise threshold 0.06".
+        string relation = value == threshold ? "at" : a.Value > a.Threshold ? "above" : "below";
         return a.Raised
-            ? $"Raised: {measure}{relative} {over} is {a.Value:0.####}, past the raise threshold {a.Threshold:0.####}.{brk}{why}"
-            : $"Cleared: {measure}{relative} {over} is back to {a.Value:0.####}, past the clear threshold {a.Threshold:0.####}.{why}";
+            ? $"Raised: {measure}{relative} {over} is {value}, {relation} the raise threshold {threshold}.{brk}{why}"
+            : $"Cleared: {measure}{relative} {over} is back to {value}, {relation} the clear threshold {threshold}.{why}";
     }
 }
