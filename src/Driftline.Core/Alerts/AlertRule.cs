@@ -57,6 +57,9 @@ internal sealed class AlertRule
     /// <summary>Labels seen by the rule (counts every evaluation, for the cool-down).</summary>
     public long Seen { get; set; }
 
+    /// <summary>Labels in a row, while raised, with the measure on the good side of Clear (the clear hold).</summary>
+    public long ClearStreak { get; set; }
+
     /// <summary>Value of <see cref="Seen"/> when the rule last cleared; the cool-down runs from there.</summary>
     public long ClearedAt { get; set; } = long.MinValue / 2;
 
@@ -117,11 +120,18 @@ internal sealed class AlertRule
             RaisedCount++;
             return true;
         }
-        if (Raised && (above ? value <= Options.Clear : value >= Options.Clear))
+        if (Raised)
         {
-            Raised = false;
-            ClearedAt = Seen;
-            return false;
+            // The clear must hold (ClearHoldLabels): a measure dipping past Clear for a moment
+            // in a sustained break leaves the incident open.
+            ClearStreak = (above ? value <= Options.Clear : value >= Options.Clear) ? ClearStreak + 1 : 0;
+            if (ClearStreak > Options.EffectiveClearHold)
+            {
+                Raised = false;
+                ClearStreak = 0;
+                ClearedAt = Seen;
+                return false;
+            }
         }
         return null;
     }
@@ -137,6 +147,7 @@ internal sealed class AlertRule
         saved.AucWindow = _auc?.Contents();
         saved.LastSignal = _lastSignal;
         saved.HeldHosmerLemeshow = _lastHosmerLemeshow;
+        saved.ClearStreak = ClearStreak;
     }
 
     /// <summary>Continues from what <see cref="ExportMonitors"/> wrote; parts the snapshot lacks start empty.</summary>
@@ -158,6 +169,7 @@ internal sealed class AlertRule
         }
         _lastSignal = saved.LastSignal;
         _lastHosmerLemeshow = saved.HeldHosmerLemeshow;
+        ClearStreak = saved.ClearStreak;
     }
 
     // The detectors start after MinLabels labels (the warm-up), so a model still learning its

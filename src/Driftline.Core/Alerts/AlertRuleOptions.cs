@@ -43,6 +43,18 @@ internal sealed class AlertRuleOptions
     /// <summary>Labels in the reference period when <see cref="RelativeTo"/> is Reference. Default 0 means the window size.</summary>
     public int ReferenceLabels { get; set; }
 
+    /// <summary>
+    /// Labels the measure must stay on the good side of <see cref="Clear"/> before the rule
+    /// clears. Default null: the rule's <see cref="Window"/>, so a break the window still
+    /// holds is not called over, and a measure hovering near its thresholds through one
+    /// sustained break reads as one incident. 0 clears at the first label past Clear. Raises are
+    /// not delayed. Threshold rules only; the detectors have clears of their own.
+    /// </summary>
+    public int? ClearHoldLabels { get; set; }
+
+    /// <summary>The clear hold in force: <see cref="ClearHoldLabels"/>, or the window when unset.</summary>
+    public int EffectiveClearHold => ClearHoldLabels ?? Window;
+
     /// <summary>After a clear, labels that must pass before the rule may raise again (0: none). Default 0.</summary>
     public int CooldownLabels { get; set; }
 
@@ -88,6 +100,10 @@ internal sealed class AlertRuleOptions
         if (ReferenceLabels < 0 || (ReferenceLabels > 0 && ReferenceLabels < MinLabels))
         {
             yield return new($"{section}:ReferenceLabels", $"{ReferenceLabels} is negative or below MinLabels ({MinLabels})", "Use 0 (the window size) or at least MinLabels");
+        }
+        if (ClearHoldLabels is < 0 or > 10_000_000)
+        {
+            yield return new($"{section}:ClearHoldLabels", $"{ClearHoldLabels} is outside 0–10,000,000", "Leave it out (the window's length), or use 0 to clear at once");
         }
         if (CooldownLabels < 0)
         {

@@ -225,4 +225,7 @@ internal sealed class RuleSnapshot
 
     /// <summary>The Hosmer–Lemeshow p-value held between refreshes (NaN: none yet).</summary>
     public double HeldHosmerLemeshow { get; set; } = double.NaN;
+
+    /// <summary>Labels in a row past Clear while raised (the clear hold); 0 in older snapshots.</summary>
+    public long ClearStreak { get; set; }
 }

@@ -74,7 +74,7 @@ internal sealed class CheckCommand(CommandContext context)
             string relative = r.RelativeTo == Core.Alerts.AlertBaseline.None ? "" : $" (relative to the {(r.RelativeTo == Core.Alerts.AlertBaseline.Prior ? "class prior" : "reference period")})";
             string cooldown = r.CooldownLabels > 0 ? $", then waits {r.CooldownLabels:N0} labels before raising again" : "";
             string over = r.WindowTime is { } span ? $"the last {span} of event time (at most {r.Window:N0} labels)" : $"the last {r.Window:N0} labels";
-            o.WriteLine($"  {r.Name} ({severity}): raise when {RecordJson.MetricName(r.Metric)}{relative} over {over} {side} {r.Raise}, clear at {r.Clear}{cooldown}; needs {r.MinLabels:N0} labels first.");
+            o.WriteLine($"  {r.Name} ({severity}): raise when {RecordJson.MetricName(r.Metric)}{relative} over {over} {side} {r.Raise}, clear once it has stayed at {r.Clear} or better for {r.EffectiveClearHold:N0} labels{cooldown}; needs {r.MinLabels:N0} labels first.");
         }
     }
 }
