@@ -6,6 +6,9 @@ using System.Threading.Channels;
 using Driftline.Core.Alerts;
 using Driftline.Core.Events;
 using Driftline.Core.Options;
+using Microsoft.Extensions.Http.Resilience;
+using Polly.CircuitBreaker;
+using Polly.Timeout;
 using Serilog;
 
 namespace Driftline.Output;
@@ -16,8 +19,9 @@ namespace Driftline.Output;
 /// waits: alerts go onto a bounded channel (<see cref="WebhookOptions.QueueLimit"/>) whose
 /// oldest entry is dropped, and counted, when the receiver falls that far behind, so a slow or
 /// absent receiver cannot hold up scoring. Network errors, timeouts, 408, 429 and 5xx are
-/// retried with jittered exponential back-off up to <see cref="WebhookOptions.MaxAttempts"/>;
-/// any other answer is final. Delivery is at least once: a retry after a lost response repeats
+/// retried with jittered exponential back-off up to <see cref="WebhookOptions.MaxAttempts"/>,
+/// honouring Retry-After, behind a circuit breaker (<see cref="WebhookResilience"/>); any other
+/// answer is final. Delivery is at least once: a retry after a lost response repeats
 /// an alert, with the same <c>Idempotency-Key</c> header so a receiver can discard the repeat.
 /// Failures are logged and counted, never thrown: <c>alerts.jsonl</c> stays the record.
 /// </summary>
@@ -57,8 +61,10 @@ internal sealed class WebhookAlertSink : IAsyncDisposable
             ConnectTimeout = options.Timeout,
             PooledConnectionLifetime = TimeSpan.FromMinutes(5),
         };
-        // The per-attempt timeout is a linked token (see SendOnceAsync), so shutdown can cut it short.
-        _client = new HttpClient(handler, disposeHandler: true) { Timeout = Timeout.InfiniteTimeSpan };
+        // The per-attempt timeout is the pipeline's; shutdown cuts any attempt short through _abort.
+        var counted = new AttemptCountingHandler(handler, () => Interlocked.Increment(ref _attempts));
+        var resilient = new ResilienceHandler(WebhookResilience.Build(options)) { InnerHandler = counted };
+        _client = new HttpClient(resilient, disposeHandler: true) { Timeout = Timeout.InfiniteTimeSpan };
         _client.DefaultRequestHeaders.UserAgent.Add(new ProductInfoHeaderValue("driftline", typeof(WebhookAlertSink).Assembly.GetName().Version?.ToString(3) ?? "0"));
         // Several writers are allowed so a host with more than one producer can share a sink.
         _queue = Channel.CreateBounded<AlertTransition>(
@@ -193,100 +199,47 @@ internal sealed class WebhookAlertSink : IAsyncDisposable
     private async Task DeliverAsync(AlertTransition alert, byte[] body)
     {
         string key = Guid.NewGuid().ToString("N");
-        for (int attempt = 1; ; attempt++)
-        {
-            var (outcome, reason, retryAfter) = await SendOnceAsync(body, key).ConfigureAwait(false);
-            if (outcome == WebhookAttempt.Sent)
-            {
-                Interlocked.Increment(ref _sent);
-                return;
-            }
-            if (outcome == WebhookAttempt.Final || attempt >= _options.MaxAttempts || _abort.IsCancellationRequested)
-            {
-                Interlocked.Increment(ref _failed);
-                Log.Warning("Webhook to {Host}: gave up alert {Rule} ({State}, label {Labels}) after {Attempts} attempts: {Reason}",
-                    _address.Authority, alert.Rule, alert.Raised ? "raised" : "cleared", alert.Labels, attempt, reason);
-                return;
-            }
-            try
-            {
-                await Task.Delay(Backoff(attempt, retryAfter), _abort.Token).ConfigureAwait(false);
-            }
-            catch (OperationCanceledException)
-            {
-                Interlocked.Increment(ref _failed);
-                Log.Warning("Webhook to {Host}: gave up alert {Rule} ({State}, label {Labels}) at shutdown after {Attempts} attempts: {Reason}",
-                    _address.Authority, alert.Rule, alert.Raised ? "raised" : "cleared", alert.Labels, attempt, reason);
-                return;
-            }
-        }
-    }
-
-    private async Task<(WebhookAttempt Outcome, string Reason, TimeSpan? RetryAfter)> SendOnceAsync(byte[] body, string key)
-    {
-        Interlocked.Increment(ref _attempts);
-        using var timeout = CancellationTokenSource.CreateLinkedTokenSource(_abort.Token);
-        timeout.CancelAfter(_options.Timeout);
+        string reason;
         using var request = new HttpRequestMessage(HttpMethod.Post, _address) { Content = new ByteArrayContent(body) };
         request.Content.Headers.ContentType = JsonType;
         request.Headers.Add("Idempotency-Key", key);
         try
         {
-            using var response = await _client.SendAsync(request, HttpCompletionOption.ResponseHeadersRead, timeout.Token).ConfigureAwait(false);
-            int status = (int)response.StatusCode;
+            // Retries, back-off, Retry-After, the breaker and the per-attempt timeout all happen
+            // inside the client's resilience handler (WebhookResilience); this sees the last answer.
+            using var response = await _client.SendAsync(request, HttpCompletionOption.ResponseHeadersRead, _abort.Token).ConfigureAwait(false);
             if (response.IsSuccessStatusCode)
             {
-                return (WebhookAttempt.Sent, "", null);
+                Interlocked.Increment(ref _sent);
+                return;
             }
-            string reason = $"HTTP {status} {response.ReasonPhrase}";
-            if (status is 408 or 429 or >= 500)
-            {
-                return (WebhookAttempt.Retry, reason, RetryAfter(response.Headers.RetryAfter));
-            }
+            int status = (int)response.StatusCode;
+            reason = $"HTTP {status} {response.ReasonPhrase}";
             if (status is >= 300 and < 400)
             {
                 reason += $" (redirected to {response.Headers.Location}; set Webhook:Url to the final address)";
             }
-            return (WebhookAttempt.Final, reason, null);
+        }
+        catch (OperationCanceledException) when (_abort.IsCancellationRequested)
+        {
+            reason = "cancelled at shutdown";
+        }
+        catch (TimeoutRejectedException)
+        {
+            reason = $"no answer within Webhook:Timeout ({_options.Timeout})";
+        }
+        catch (BrokenCircuitException)
+        {
+            reason = $"the receiver failed too often; not tried for {WebhookResilience.BreakDuration.TotalSeconds:0} s (circuit open)";
         }
         catch (HttpRequestException ex)
         {
-            return (WebhookAttempt.Retry, ex.Message, null);
+            reason = ex.Message;
         }
-        catch (OperationCanceledException) when (!_abort.IsCancellationRequested)
-        {
-            return (WebhookAttempt.Retry, $"no answer within Webhook:Timeout ({_options.Timeout})", null);
-        }
-        catch (OperationCanceledException)
-        {
-            return (WebhookAttempt.Final, "cancelled at shutdown", null);
-        }
+        Interlocked.Increment(ref _failed);
+        Log.Warning("Webhook to {Host}: gave up alert {Rule} ({State}, label {Labels}): {Reason}",
+            _address.Authority, alert.Rule, alert.Raised ? "raised" : "cleared", alert.Labels, reason);
     }
-
-    /// <summary>
-    /// The wait after failed attempt <paramref name="attempt"/>: FirstRetryDelay·2^(attempt−1),
-    /// capped at MaxRetryDelay, of which a random half is waited ("equal jitter", Brooker 2015,
-    /// "Exponential Backoff And Jitter", AWS Architecture Blog), so workers that failed together
-    /// do not retry together. A receiver's Retry-After, when longer, wins, still capped.
-    /// </summary>
-    private TimeSpan Backoff(int attempt, TimeSpan? retryAfter)
-    {
-        double cap = _options.MaxRetryDelay.TotalMilliseconds;
-        double full = Math.Min(cap, _options.FirstRetryDelay.TotalMilliseconds * Math.Pow(2, attempt - 1));
-        double wait = full / 2 + Random.Shared.NextDouble() * full / 2;
-        if (retryAfter is { } asked && asked.TotalMilliseconds > wait)
-        {
-            wait = Math.Min(cap, asked.TotalMilliseconds);
-        }
-        return TimeSpan.FromMilliseconds(wait);
-    }
-
-    private static TimeSpan? RetryAfter(RetryConditionHeaderValue? header) => header switch
-    {
-        { Delta: { } delta } => delta,
-        { Date: { } date } => date - DateTimeOffset.UtcNow,
-        _ => null,
-    };
 
     private static byte[] Serialize(AlertTransition alert, ArrayBufferWriter<byte> buffer)
     {

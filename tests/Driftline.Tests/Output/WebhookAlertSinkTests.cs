@@ -179,6 +179,77 @@ public sealed class WebhookAlertSinkTests
     }
 
     [Fact]
+    public async Task Enqueue_Receiver429WithRetryAfter_WaitsAsAsked()
+    {
+        // Retry-After: 1 second, far above the 10-40 ms back-off: the receiver's wait wins
+        // (RFC 9110 §10.2.3).
+        var handler = new ScriptedHandler(i => i == 0 ? Answer(429, retryAfterSeconds: 1) : Answer(200));
+        var options = Options("http://alerts.invalid/hook", attempts: 3);
+        options.MaxRetryDelay = TimeSpan.FromSeconds(5);
+        await using var sink = new WebhookAlertSink(options, handler);
+
+        var clock = Stopwatch.StartNew();
+        sink.Enqueue(Alert());
+        await sink.CompleteAsync();
+
+        Assert.Equal((1, 0, 2), (sink.Sent, sink.Failed, sink.Attempts));
+        Assert.True(clock.Elapsed >= TimeSpan.FromMilliseconds(900), $"retried after {clock.Elapsed}, before the 1 s asked");
+    }
+
+    [Fact]
+    public async Task Enqueue_RetryAfterBeyondMaxRetryDelay_CappedThere()
+    {
+        var handler = new ScriptedHandler(i => i == 0 ? Answer(503, retryAfterSeconds: 3_600) : Answer(200));
+        await using var sink = new WebhookAlertSink(Options("http://alerts.invalid/hook"), handler);
+
+        var clock = Stopwatch.StartNew();
+        sink.Enqueue(Alert());
+        await sink.CompleteAsync();
+
+        Assert.Equal((1, 2), (sink.Sent, sink.Attempts));
+        Assert.True(clock.Elapsed < TimeSpan.FromSeconds(4), $"an hour's Retry-After was not capped at MaxRetryDelay: {clock.Elapsed}");
+    }
+
+    [Fact]
+    public async Task Enqueue_ReceiverKeepsFailing_BreakerStopsCallingIt()
+    {
+        // 10 alerts with 3 attempts each could make 30 calls; the breaker opens after 10 failed
+        // attempts (half of at least 10 in 30 s) and the rest fail without the network.
+        var handler = new ScriptedHandler(_ => Answer(503));
+        await using var sink = new WebhookAlertSink(Options("http://alerts.invalid/hook", attempts: 3), handler);
+        for (int i = 0; i < 10; i++)
+        {
+            sink.Enqueue(Alert(i));
+        }
+        await sink.CompleteAsync();
+
+        Assert.Equal((0, 10), (sink.Sent, sink.Failed));
+        Assert.Equal(WebhookResilience.BreakerMinimumAttempts, sink.Attempts);
+        Assert.Equal(WebhookResilience.BreakerMinimumAttempts, handler.Calls);
+    }
+
+    private static HttpResponseMessage Answer(int status, int? retryAfterSeconds = null)
+    {
+        var response = new HttpResponseMessage((System.Net.HttpStatusCode)status);
+        if (retryAfterSeconds is { } seconds)
+        {
+            response.Headers.RetryAfter = new System.Net.Http.Headers.RetryConditionHeaderValue(TimeSpan.FromSeconds(seconds));
+        }
+        return response;
+    }
+
+    /// <summary>Answers the i-th request (0 first) as the script says, without a network.</summary>
+    private sealed class ScriptedHandler(Func<int, HttpResponseMessage> script) : HttpMessageHandler
+    {
+        private int _calls;
+
+        public int Calls => Volatile.Read(ref _calls);
+
+        protected override Task<HttpResponseMessage> SendAsync(HttpRequestMessage request, CancellationToken cancellationToken) =>
+            Task.FromResult(script(Interlocked.Increment(ref _calls) - 1));
+    }
+
+    [Fact]
     public async Task CompleteAsync_ReceiverHangs_GivesUpAfterTheGrace()
     {
         await using var receiver = new LoopbackReceiver(async (_, stop) =>
