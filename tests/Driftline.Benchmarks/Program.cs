@@ -10,6 +10,7 @@ return args.FirstOrDefault() switch
     "split" => StageSplit.Run(args[1]),
     "engine" => StageSplit.EngineOnly(args[1]),
     "bare" => PrintCount(BareLoop.Run(args[1])),
+    "hash-sweep" => HashSweep.Run(args.Skip(1).ToArray()),
     _ => Usage(),
 };
 
@@ -28,6 +29,6 @@ static int PrintCount(long events)
 
 static int Usage()
 {
-    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--events N] [--repeats K] | micro [BenchmarkDotNet options]");
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS]");
     return 2;
 }
