@@ -70,6 +70,20 @@ internal sealed class AlertRule
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public bool? Evaluate(IGradedWindow model, IGradedWindow prior, double p, int y, out double value)
     {
+        bool? change = EvaluateCore(model, prior, p, y, out value);
+        LastValue = value;
+        return change;
+    }
+
+    /// <summary>
+    /// The value the rule compared with its thresholds at the last label (for CalibrationDrift,
+    /// the test's evidence); NaN before MinLabels or when undefined. Drawn by the report.
+    /// </summary>
+    public double LastValue { get; private set; } = double.NaN;
+
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private bool? EvaluateCore(IGradedWindow model, IGradedWindow prior, double p, int y, out double value)
+    {
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(prior);
         value = double.NaN;

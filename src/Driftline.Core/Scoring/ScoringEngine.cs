@@ -109,6 +109,18 @@ internal sealed class ScoringEngine
     /// <summary>Why the last <see cref="StepOutcome.Rejected"/> record was refused.</summary>
     public string? RejectReason { get; private set; }
 
+    /// <summary>The per-segment windows when <c>Monitor:SegmentBy</c> is set, else null.</summary>
+    public SegmentTracker? Segments => _segments;
+
+    /// <summary>
+    /// A rolling AUC over the report window's labels, when <see cref="TrackAuc"/> asked for one
+    /// (the report draws it; O(log n) a label, so it is off unless wanted).
+    /// </summary>
+    public RollingAuc? WindowAuc { get; private set; }
+
+    /// <summary>Starts <see cref="WindowAuc"/> over the last <paramref name="labels"/> labels.</summary>
+    public void TrackAuc(int labels) => WindowAuc ??= new RollingAuc(labels);
+
     /// <summary>Processes one parsed record.</summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public StepOutcome Process(ParsedRecord record)
@@ -215,6 +227,7 @@ internal sealed class ScoringEngine
     {
         model.Prior.Add(y);
         _segments?.Add(segment, p, y);
+        WindowAuc?.Add(p, y);
         Counters.Labels++;
         // Every window and total shares the bins, so each prediction's terms are computed once.
         var terms = GradedTerms.Of(p, y, _edges);

@@ -28,7 +28,11 @@ internal sealed class HtmlPage
         p.key a { color: inherit; margin-right: 18px; }
         th, td { padding: 5px 10px; border-bottom: 1px solid #e6e6e6; text-align: left; vertical-align: top; }
         th { background: #f2f2ee; font-weight: 600; }
-        table.alerts td:not(:last-child) { white-space: nowrap; }
+        table.alerts { display: table; width: 100%; }
+        table.alerts td:nth-child(-n+5) { white-space: nowrap; }
+        table.alerts td:last-child { min-width: 360px; }
+        .critical { color: #b03a2e; font-weight: 600; }
+        .warning { color: #9a6400; font-weight: 600; }
         td.num { text-align: right; font-variant-numeric: tabular-nums; }
         .raised { color: #b03a2e; font-weight: 600; }
         .cleared { color: #1e8449; font-weight: 600; }

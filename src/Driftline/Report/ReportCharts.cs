@@ -17,13 +17,14 @@ internal static class ReportCharts
     public const int Height = 330;
 
     /// <summary>Series colours, chosen to stay distinct for colour-blind readers (Okabe–Ito).</summary>
-    private static readonly Color[] Palette =
+    internal static readonly Color[] Palette =
         [Color.FromHex("#0072B2"), Color.FromHex("#D55E00"), Color.FromHex("#009E73"), Color.FromHex("#CC79A7"), Color.FromHex("#E69F00"), Color.FromHex("#56B4E9")];
 
-    private static readonly Color Ink = Color.FromHex("#333333");
-    private static readonly Color Faint = Color.FromHex("#888888");
-    private static readonly Color RaiseColour = Color.FromHex("#C0392B");
-    private static readonly Color ClearColour = Color.FromHex("#1E8449");
+    internal static readonly Color Ink = Color.FromHex("#333333");
+    internal static readonly Color Faint = Color.FromHex("#888888");
+    internal static readonly Color RaiseColour = Color.FromHex("#C0392B");
+    internal static readonly Color ClearColour = Color.FromHex("#1E8449");
+    internal static readonly Color WarningColour = Color.FromHex("#B9770E");
 
     private static readonly Lazy<string?> SansFont = new(() =>
         SkiaSharp.SKFontManager.Default.GetFontFamilies().FirstOrDefault(f => f is "DejaVu Sans" or "Liberation Sans" or "Noto Sans"));
@@ -50,6 +51,10 @@ internal static class ReportCharts
         {
             AlertMarks(plot, runs[0]);
         }
+        if (runs.Count > 0)
+        {
+            EventTimeAxis(plot, runs[0].Points);
+        }
         plot.ShowLegend(Alignment.UpperLeft);
         return Export(plot, "log-loss");
     }
@@ -68,6 +73,10 @@ internal static class ReportCharts
         if (alertMarks && runs.Count == 1)
         {
             AlertMarks(plot, runs[0]);
+        }
+        if (runs.Count > 0)
+        {
+            EventTimeAxis(plot, runs[0].Points);
         }
         plot.ShowLegend(Alignment.UpperLeft);
         return Export(plot, "citl");
@@ -152,7 +161,7 @@ internal static class ReportCharts
         return Export(plot, "reliability", size, size);
     }
 
-    private static Plot NewPlot(string title, string yLabel)
+    internal static Plot NewPlot(string title, string yLabel)
     {
         var plot = new Plot();
         // ScottPlot's generic "sans" resolves to a serif face on some Linux boxes; ask for DejaVu Sans by name when it is there.
@@ -169,7 +178,7 @@ internal static class ReportCharts
         return plot;
     }
 
-    private static ScottPlot.Plottables.Scatter Line(Plot plot, IReadOnlyList<ReportPoint> points, Func<ReportPoint, double> value, Color colour)
+    internal static ScottPlot.Plottables.Scatter Line(Plot plot, IReadOnlyList<ReportPoint> points, Func<ReportPoint, double> value, Color colour)
     {
         // NaN values (an empty window) are left out rather than drawn as gaps ScottPlot cannot place.
         var kept = points.Where(p => double.IsFinite(value(p))).ToArray();
@@ -179,20 +188,102 @@ internal static class ReportCharts
         return line;
     }
 
-    private static void AlertMarks(Plot plot, ReportData run)
+    /// <summary>
+    /// Marks each raise (solid: red for critical, amber for warning) and clear (green, dashed)
+    /// with its rule's name, and shades the stretches while an alert was open.
+    /// </summary>
+    internal static void AlertMarks(Plot plot, ReportData run, string? onlyRule = null)
     {
-        bool raisedInLegend = false, clearedInLegend = false;
+        OpenSpans(plot, run, onlyRule);
+        var shown = new HashSet<string>(StringComparer.Ordinal);
         foreach (var capture in run.Alerts)
         {
             var a = capture.Alert;
-            var mark = plot.Add.VerticalLine(a.Labels, 1.5f, a.Raised ? RaiseColour : ClearColour, a.Raised ? LinePattern.Solid : LinePattern.Dashed);
-            ref bool shown = ref a.Raised ? ref raisedInLegend : ref clearedInLegend;
-            if (!shown)
+            if (onlyRule is not null && a.Rule != onlyRule)
             {
-                mark.LegendText = a.Raised ? "alert raised" : "alert cleared";
-                shown = true;
+                continue;
+            }
+            bool critical = a.Severity == Core.Alerts.AlertSeverity.Critical;
+            var colour = !a.Raised ? ClearColour : critical ? RaiseColour : WarningColour;
+            var mark = plot.Add.VerticalLine(a.Labels, 1.5f, colour, a.Raised ? LinePattern.Solid : LinePattern.Dashed);
+            string kind = !a.Raised ? "cleared" : critical ? "critical raised" : "warning raised";
+            if (shown.Add(kind))
+            {
+                mark.LegendText = kind;
+            }
+            if (a.Raised && onlyRule is null)
+            {
+                mark.Text = a.Rule;
+                mark.LabelFontSize = 10;
+                mark.LabelOppositeAxis = true;
             }
         }
+    }
+
+    /// <summary>Shades, lightly, each stretch from a raise to its clear (or the run's end).</summary>
+    internal static void OpenSpans(Plot plot, ReportData run, string? onlyRule)
+    {
+        long end = run.Points.Count > 0 ? run.Points[^1].Labels : 0;
+        var opened = new Dictionary<string, (long At, bool Critical)>(StringComparer.Ordinal);
+        var spans = new List<(long From, long To, bool Critical)>();
+        foreach (var capture in run.Alerts)
+        {
+            var a = capture.Alert;
+            if (onlyRule is not null && a.Rule != onlyRule)
+            {
+                continue;
+            }
+            if (a.Raised)
+            {
+                opened[a.Rule] = (a.Labels, a.Severity == Core.Alerts.AlertSeverity.Critical);
+            }
+            else if (opened.Remove(a.Rule, out var from))
+            {
+                spans.Add((from.At, a.Labels, from.Critical));
+            }
+        }
+        spans.AddRange(opened.Values.Select(o => (o.At, Math.Max(o.At, end), o.Critical)));
+        bool inLegend = false;
+        foreach (var (from, to, critical) in spans)
+        {
+            var span = plot.Add.HorizontalSpan(from, to);
+            span.FillStyle.Color = (critical ? RaiseColour : WarningColour).WithAlpha(0.10);
+            span.LineStyle.Width = 0;
+            if (!inLegend)
+            {
+                span.LegendText = "alert open";
+                inLegend = true;
+            }
+        }
+    }
+
+    /// <summary>
+    /// Where events carry a time, labels the x axis (labels graded) with the event time too, two
+    /// lines a tick, so a reader can tell when in the day or week a stretch was.
+    /// </summary>
+    internal static void EventTimeAxis(Plot plot, IReadOnlyList<ReportPoint> points)
+    {
+        if (points.Count < 2 || points.Any(p => p.TimeTicks == Core.Events.ParsedRecord.NoTime))
+        {
+            return;
+        }
+        long last = points[^1].Labels;
+        double raw = last / 5.0;
+        double magnitude = Math.Pow(10, Math.Floor(Math.Log10(Math.Max(1, raw))));
+        double step = new[] { 1.0, 2.0, 2.5, 5.0, 10.0 }.Select(m => m * magnitude).First(v => v >= raw);
+        var ticks = new ScottPlot.TickGenerators.NumericManual();
+        int at = 0;
+        for (double x = 0; x <= last; x += step)
+        {
+            while (at < points.Count - 1 && points[at].Labels < x)
+            {
+                at++;
+            }
+            var time = new DateTime(points[at].TimeTicks, DateTimeKind.Utc);
+            ticks.AddMajor(x, x.ToString("N0", CultureInfo.InvariantCulture) + "\n" + time.ToString("MM-dd HH:mm", CultureInfo.InvariantCulture));
+        }
+        plot.Axes.Bottom.TickGenerator = ticks;
+        plot.XLabel("labels graded, and the event time then (UTC)");
     }
 
     private static (double[] X, double[] Late, double[] Expired) Shares(IReadOnlyList<ReportPoint> points, int stretches)
@@ -224,7 +315,7 @@ internal static class ReportCharts
 
     private static int _charts;
 
-    private static string Export(Plot plot, string kind, int width = Width, int height = Height)
+    internal static string Export(Plot plot, string kind, int width = Width, int height = Height)
     {
         int n = Interlocked.Increment(ref _charts);
         return SvgFragment.Inline(plot.GetSvgXml(width, height), $"{kind}{n}-", plot.Axes.Title.Label.Text);

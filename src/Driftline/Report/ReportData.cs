@@ -23,6 +23,12 @@ internal sealed class ReportData
     /// <summary>Rolling measures over the run, in label order.</summary>
     public List<ReportPoint> Points { get; } = [];
 
+    /// <summary>The rules drawn, in the order of <see cref="ReportPoint.RuleValues"/>; rules the report cannot draw are null.</summary>
+    public List<ReportRule?> Rules { get; } = [];
+
+    /// <summary>The segments' calibration at the end, furthest off first, when <c>Monitor:SegmentBy</c> is set.</summary>
+    public List<Core.Scoring.SegmentGap> Segments { get; } = [];
+
     /// <summary>Every alert transition, in order, with the windows around it.</summary>
     public List<AlertCapture> Alerts { get; } = [];
 

@@ -10,5 +10,10 @@ namespace Driftline.Report;
 /// <param name="Ece">Expected calibration error over the window.</param>
 /// <param name="LateLabels">Late labels joined so far.</param>
 /// <param name="ExpiredLabels">Predictions dropped unlabelled so far.</param>
+/// <param name="Brier">Brier score over the window; NaN when not recorded.</param>
+/// <param name="Auc">AUC over the window; NaN while it holds one class only or when not recorded.</param>
+/// <param name="TimeTicks">Latest event time seen (UTC ticks), or <see cref="Core.Events.ParsedRecord.NoTime"/> when events carry none.</param>
+/// <param name="RuleValues">Each rule's value at this moment, in <see cref="ReportData.Rules"/> order (what it compared with its thresholds); null when not recorded.</param>
 internal readonly record struct ReportPoint(long Labels, long Events, int WindowLabels, double LogLoss, double PriorLogLoss,
-    double CalibrationInTheLarge, double Ece, long LateLabels, long ExpiredLabels);
+    double CalibrationInTheLarge, double Ece, long LateLabels, long ExpiredLabels,
+    double Brier = double.NaN, double Auc = double.NaN, long TimeTicks = Core.Events.ParsedRecord.NoTime, double[]? RuleValues = null);

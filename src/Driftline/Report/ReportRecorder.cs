@@ -23,6 +23,9 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
     /// <summary>Most alert transitions kept with their windows (the report shows far fewer; this only bounds memory).</summary>
     public const int MaxAlerts = 10_000;
 
+    /// <summary>Most segments listed in the report, furthest off first.</summary>
+    public const int MaxSegmentRows = 50;
+
     private readonly Queue<BinsCapture> _recent = new();
     private readonly List<AlertCapture> _awaitingAfter = [];
     private ScoringEngine? _engine;
@@ -35,7 +38,17 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
     public ReportData Data => data;
 
     /// <summary>Connects the recorder to the engine it listens to (the engine is built around the sink, so this comes after).</summary>
-    public void Attach(ScoringEngine engine) => _engine = engine;
+    public void Attach(ScoringEngine engine)
+    {
+        ArgumentNullException.ThrowIfNull(engine);
+        _engine = engine;
+        _rules = engine.Rules.ToArray();
+        data.Rules.Clear();
+        data.Rules.AddRange(_rules.Select(ReportRule.Of));
+        engine.TrackAuc(engine.Window.Capacity);
+    }
+
+    private AlertRule[] _rules = [];
 
     /// <inheritdoc />
     public void OnPrediction(in Prediction prediction)
@@ -87,6 +100,11 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         data.ExpiredLabels = engine.Pending.Expired;
         data.WaitingLabels = engine.Pending.Waiting;
         data.OpenAlerts.AddRange(engine.Rules.Where(r => r.Raised).Select(r => r.Options.Name));
+        data.Segments.Clear();
+        if (engine.Segments is { } segments)
+        {
+            data.Segments.AddRange(segments.Worst(MaxSegmentRows));
+        }
     }
 
     private ScoringEngine Engine => _engine ?? throw new InvalidOperationException("Attach the engine before the run");
@@ -103,8 +121,14 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         var window = engine.Window.Current;
         var prior = engine.PriorWindow.Current;
         var points = data.Points;
+        var values = new double[_rules.Length];
+        for (int r = 0; r < values.Length; r++)
+        {
+            values[r] = _rules[r].LastValue;
+        }
         points.Add(new ReportPoint(labels, engine.Counters.Events, window.Count, window.LogLoss, prior.LogLoss,
-            window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired));
+            window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired,
+            window.Brier, engine.WindowAuc?.Value ?? double.NaN, engine.ClockTicks, values));
         if (points.Count >= MaxPoints)
         {
             // Keep every other point, then sample half as often.

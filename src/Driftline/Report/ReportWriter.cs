@@ -66,10 +66,14 @@ internal static class ReportWriter
         int window = run.Options.Monitor.Window;
         page.Heading(2, "Loss over time", "loss")
             .Raw(HtmlPage.Figure(ReportCharts.LogLoss([run], alertMarks: true),
-                $"Log-loss of the model and of the class-prior baseline over the last {window:N0} labels. The model earns its keep while its line stays below the dashed baseline; where they meet or cross, it predicts no better than the base rate. Red lines mark alerts raised, green dashed lines alerts cleared."));
+                $"Log-loss of the model and of the class-prior baseline over the last {window:N0} labels. The model earns its keep while its line stays below the dashed baseline; where they meet or cross, it predicts no better than the base rate. Marks name the rule that raised (red: critical, amber: warning); green dashed lines are clears, and shading shows while an alert was open."));
         page.Heading(2, "Calibration over time", "calibration")
             .Raw(HtmlPage.Figure(ReportCharts.CalibrationInTheLarge([run], alertMarks: true),
                 $"Mean predicted probability minus the observed rate over the last {window:N0} labels. Zero means the probabilities are right on average; above zero the model over-predicts, below it under-predicts. A drift away from zero is the first sign that a probability no longer means what it says."));
+        RuleSections(page, run);
+        page.Heading(2, "Ranking and accuracy over time", "ranking")
+            .Raw(HtmlPage.Figure(RuleCharts.AucAndBrier(run),
+                $"AUC (the chance that a positive is scored above a negative) and Brier score (mean squared error of the probability) over the last {window:N0} labels. AUC is about ranking only: it can stay high while calibration breaks, which is why the rules above watch calibration too."));
         page.Heading(2, "Reliability over the whole run", "reliability")
             .Raw(HtmlPage.Figure(ReportCharts.Reliability("Whole run", [("model", run.WholeRun)], 520),
                 "Each point is one probability bin: mean predicted probability across, observed rate of positives up, with its 95% Wilson interval and the number of labels in it. Points on the dashed diagonal are calibrated; an interval that misses the diagonal is a bin the model gets wrong beyond chance."));
@@ -81,9 +85,19 @@ internal static class ReportWriter
         }
         else
         {
-            page.Paragraph("Every raise and clear, in order. Below the table, the reliability of the rolling window before, when and after each raise.");
-            page.Table(["#", "rule", "state", "at label", "event time", "event", "why"], AlertRows([run], withConfig: false), "alerts");
+            page.Paragraph("Every raise and clear, in order. Below the table, the reliability of the rolling window before, when and after each raise, and how its predicted probabilities were spread.");
+            page.Table(["#", "rule", "severity", "state", "at label", "event time", "event", "why"], AlertRows([run], withConfig: false), "alerts");
             AlertWindows(page, run);
+        }
+
+        if (run.Segments.Count > 0)
+        {
+            page.Heading(2, $"Segments by {run.Options.Monitor.SegmentBy}", "segments")
+                .Paragraph($"Each value of {run.Options.Monitor.SegmentBy} over its own last {run.Options.Monitor.Window:N0} labels at the end of the run, furthest off first: the gap is mean p − observed rate, z is that gap in standard errors (so a small segment needs a bigger gap to rank high). At most {ReportRecorder.MaxSegmentRows} are listed.")
+                .Table(["segment", "labels", "mean p", "observed rate", "gap", "z"], run.Segments.Select(g => (IReadOnlyList<string>)
+                [
+                    g.Segment, $"#num {g.Count:N0}", Num(g.MeanP), Num(g.ObservedRate), Num(g.MeanP - g.ObservedRate), "#num " + (double.IsFinite(g.Z) ? g.Z.ToString("0.0", C) : "–"),
+                ]));
         }
 
         page.Heading(2, "Late and expired labels", "labels")
@@ -135,7 +149,7 @@ internal static class ReportWriter
         }
         else
         {
-            page.Table(["#", "configuration", "rule", "state", "at label", "event time", "event", "why"], AlertRows(runs, withConfig: true), "alerts");
+            page.Table(["#", "configuration", "rule", "severity", "state", "at label", "event time", "event", "why"], AlertRows(runs, withConfig: true), "alerts");
         }
 
         page.Heading(2, "Settings", "settings");
@@ -144,6 +158,29 @@ internal static class ReportWriter
             page.Heading(3, run.Name).Raw("<pre>" + HtmlPage.Encode(Describe(run.Options)) + "</pre>");
         }
         return page.ToString();
+    }
+
+    // One chart per rule that has a series: the value it compared, its raise and clear lines, its
+    // own open stretches; for the sequential test, its evidence against the threshold.
+    private static void RuleSections(HtmlPage page, ReportData run)
+    {
+        if (!run.Rules.Any(r => r is not null))
+        {
+            return;
+        }
+        page.Heading(2, "What each rule watched", "rules")
+            .Paragraph("Each rule over its own window, with the line it raises at (red, dashed) and the line it clears at (green, dotted); shaded stretches are the times it was raised. A threshold rule clears only after its value has stayed past the clear line for its hold.");
+        for (int i = 0; i < run.Rules.Count; i++)
+        {
+            if (run.Rules[i] is not { } rule)
+            {
+                continue;
+            }
+            string caption = rule.IsEvidence
+                ? $"The sequential calibration test's evidence against calibration: the largest of its CUSUMs, in log-likelihood-ratio units. It raises at {rule.Raise.ToString("0.0", C)} (at most one false alarm per {run.Options.EffectiveAlerts.FirstOrDefault(o => o.Name == rule.Name)?.LabelsPerFalseAlarm ?? 1e6:N0} labels on a calibrated stream) and clears once the evidence has fallen to {rule.Clear.ToString("0.0", C)}."
+                : $"{rule.Description}, as the rule computed it after each label (sampled). Raise at {rule.Raise.ToString("0.####", C)}, clear at {rule.Clear.ToString("0.####", C)}.";
+            page.Raw(HtmlPage.Figure(RuleCharts.RuleSeries(run, i), caption));
+        }
     }
 
     private static void AlertWindows(HtmlPage page, ReportData run)
@@ -175,6 +212,8 @@ internal static class ReportWriter
                 figures.Add(SmallDiagram("After", after, full ? "one window later" : "the last window (the run ended within a window of the alert)"));
             }
             page.Raw("<div class=\"row\">\n" + string.Join("\n", figures) + "\n</div>");
+            page.Raw(HtmlPage.Figure(RuleCharts.Distribution(capture),
+                "Share of the window's labels per probability bin, before, when and after the raise: mass moving towards 0 and 1 is growing confidence, towards the middle shrinking confidence."));
         }
     }
 
@@ -196,8 +235,8 @@ internal static class ReportWriter
                 if (++n > MaxAlertRows)
                 {
                     yield return withConfig
-                        ? ["", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; each configuration's alerts.jsonl lists every one."]
-                        : ["", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; alerts.jsonl lists every one."];
+                        ? ["", "", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; each configuration's alerts.jsonl lists every one."]
+                        : ["", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; alerts.jsonl lists every one."];
                     yield break;
                 }
                 var row = new List<string> { $"#num {n}" };
@@ -206,6 +245,7 @@ internal static class ReportWriter
                     row.Add(run.Name);
                 }
                 row.Add(a.Rule);
+                row.Add(a.Severity == Core.Alerts.AlertSeverity.Critical ? "#critical critical" : "#warning warning");
                 row.Add(a.Raised ? "#raised raised" : "#cleared cleared");
                 row.Add($"#num {a.Labels:N0}");
                 row.Add(a.TimeTicks == ParsedRecord.NoTime ? "–" : new DateTime(a.TimeTicks, DateTimeKind.Utc).ToString("yyyy-MM-dd HH:mm:ss 'UTC'", C));

@@ -44,4 +44,59 @@ public sealed class ReportFileTests(DemoReplay replay) : IClassFixture<DemoRepla
         var ids = Regex.Matches(html, "id=\"([^\"]+)\"").Select(m => m.Groups[1].Value).ToList();
         Assert.Equal(ids.Count, ids.Distinct().Count());
     }
+
+    [Fact]
+    public void Replay_DemoStream_DrawsEachRuleWithItsOwnThresholds()
+    {
+        string html = Html;
+        Assert.Contains("id=\"rules\"", html, StringComparison.Ordinal);
+        // The gap rule's own raise and clear lines (its defaults), and the sequential test's
+        // evidence against its threshold ln(10^6 x 13) = 16.38.
+        Assert.Contains("raise at 0.06", html, StringComparison.Ordinal);
+        Assert.Contains("clear at 0.03", html, StringComparison.Ordinal);
+        Assert.Contains("raise at 16.3805", html, StringComparison.Ordinal);
+        Assert.Contains("alert open", html, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Replay_DemoStream_AlertTableHasSeverityAndMarksNameTheRule()
+    {
+        string html = Html;
+        Assert.Contains("<th>severity</th>", html, StringComparison.Ordinal);
+        Assert.Contains("<td class=\"critical\">critical</td>", html, StringComparison.Ordinal);
+        Assert.Contains("<td class=\"warning\">warning</td>", html, StringComparison.Ordinal);
+        Assert.Contains("critical raised", html, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Replay_DemoStream_HasRankingChartDistributionsAndEventTimeAxis()
+    {
+        string html = Html;
+        Assert.Contains("id=\"ranking\"", html, StringComparison.Ordinal);
+        Assert.Contains("AUC (higher ranks better", html, StringComparison.Ordinal);
+        Assert.Contains("labels per probability bin, before, when and after the raise", html, StringComparison.Ordinal);
+        // The demo's events carry times from 2026-03-02: the x axis shows them under the label counts.
+        Assert.Contains("labels graded, and the event time then (UTC)", html, StringComparison.Ordinal);
+        Assert.Matches(new Regex(@">\s*03-0[2-9] [0-2][0-9]:[0-5][0-9]\s*<"), html);
+    }
+
+    [Fact]
+    public async Task Replay_SegmentByZone_ReportListsSegments()
+    {
+        using var folder = new TempFolder();
+        string config = folder.File("segments.json");
+        File.WriteAllText(config, """{"Monitor":{"SegmentBy":"zone"}}""");
+        var run = await TestCli.RunAsync("replay", replay.Input, "--config", config, "--out", folder.File("out"));
+        Assert.True(run.Code == 0, run.Error);
+
+        string html = File.ReadAllText(Path.Combine(folder.File("out"), ReportWriter.FileName));
+        Assert.Contains("id=\"segments\"", html, StringComparison.Ordinal);
+        Assert.Contains("Segments by zone", html, StringComparison.Ordinal);
+        // Every demo zone has its row (the demo's zones are listed in DemoScenario).
+        Assert.Contains("<td>riverside</td>", html, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Replay_NoSegmentBy_NoSegmentsSection() =>
+        Assert.DoesNotContain("id=\"segments\"", Html, StringComparison.Ordinal);
 }
