@@ -51,6 +51,10 @@ internal static class RecordJson
         }
         w.WriteNumber("labels"u8, a.Labels);
         w.WriteString("severity"u8, a.Severity == AlertSeverity.Critical ? "critical" : "warning");
+        if (a.Incident > 0)
+        {
+            w.WriteNumber("incident"u8, a.Incident);
+        }
         if (a.RelativeTo != AlertBaseline.None)
         {
             w.WriteString("relative_to"u8, a.RelativeTo == AlertBaseline.Prior ? "prior" : "reference");

@@ -33,6 +33,13 @@ internal sealed class ScoringCounters
     /// <summary>Alerts cleared.</summary>
     public long AlertsCleared { get; set; }
 
+    /// <summary>
+    /// Incidents: stretches during which at least one rule was raised. A raise while another
+    /// rule is already raised joins that incident, so one break reads as one incident however
+    /// many rules see it.
+    /// </summary>
+    public long Incidents { get; set; }
+
     /// <summary>A copy for snapshots.</summary>
     public ScoringCounters Copy() => (ScoringCounters)MemberwiseClone();
 }

@@ -260,6 +260,10 @@ internal sealed class ScoringEngine
                 if (raised)
                 {
                     Counters.AlertsRaised++;
+                    if (!AnyRaisedBesides(rule))
+                    {
+                        Counters.Incidents++;
+                    }
                 }
                 else
                 {
@@ -268,13 +272,26 @@ internal sealed class ScoringEngine
                 var o = rule.Options;
                 double threshold = rule.Cusum is { } cusum ? (raised ? cusum.Threshold : cusum.ClearFraction * cusum.Threshold) : raised ? o.Raise : o.Clear;
                 _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, threshold, o.Window, id, timeTicks, Counters.Labels,
-                    o.Severity, AlertExplanation.Of(window, _segments?.Worst()), o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null));
+                    o.Severity, AlertExplanation.Of(window, _segments?.Worst()), o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null, Counters.Incidents));
             }
         }
         if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
         {
             _sink.OnMetrics(CurrentMetrics(timeTicks));
         }
+    }
+
+    // Only at a raise (rare), so a scan of the rules is fine.
+    private bool AnyRaisedBesides(AlertRule rule)
+    {
+        foreach (var (other, _) in _rules)
+        {
+            if (other != rule && other.Raised)
+            {
+                return true;
+            }
+        }
+        return false;
     }
 
     /// <summary>The measures now, as reported every <c>Monitor:MetricsEvery</c> labels.</summary>

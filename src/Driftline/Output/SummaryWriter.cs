@@ -37,6 +37,7 @@ internal static class SummaryWriter
         Number(w, "ece", total.Ece);
         Number(w, "calibration_in_the_large", total.CalibrationInTheLarge);
         w.WriteNumber("alerts_raised", c.AlertsRaised);
+        w.WriteNumber("incidents", c.Incidents);
         w.WriteNumber("alerts_cleared", c.AlertsCleared);
         w.WriteStartArray("alerts_open");
         foreach (var rule in engine.Rules.Where(r => r.Raised))

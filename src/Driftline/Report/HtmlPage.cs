@@ -29,7 +29,7 @@ internal sealed class HtmlPage
         th, td { padding: 5px 10px; border-bottom: 1px solid #e6e6e6; text-align: left; vertical-align: top; }
         th { background: #f2f2ee; font-weight: 600; }
         table.alerts { display: table; width: 100%; }
-        table.alerts td:nth-child(-n+5) { white-space: nowrap; }
+        table.alerts td:nth-child(-n+6) { white-space: nowrap; }
         table.alerts td:last-child { min-width: 360px; }
         .critical { color: #b03a2e; font-weight: 600; }
         .warning { color: #9a6400; font-weight: 600; }

@@ -86,7 +86,7 @@ internal static class ReportWriter
         else
         {
             page.Paragraph("Every raise and clear, in order. Below the table, the reliability of the rolling window before, when and after each raise, and how its predicted probabilities were spread.");
-            page.Table(["#", "rule", "severity", "state", "at label", "event time", "event", "why"], AlertRows([run], withConfig: false), "alerts");
+            page.Table(["#", "incident", "rule", "severity", "state", "at label", "event time", "event", "why"], AlertRows([run], withConfig: false), "alerts");
             AlertWindows(page, run);
         }
 
@@ -149,7 +149,7 @@ internal static class ReportWriter
         }
         else
         {
-            page.Table(["#", "configuration", "rule", "severity", "state", "at label", "event time", "event", "why"], AlertRows(runs, withConfig: true), "alerts");
+            page.Table(["#", "configuration", "incident", "rule", "severity", "state", "at label", "event time", "event", "why"], AlertRows(runs, withConfig: true), "alerts");
         }
 
         page.Heading(2, "Settings", "settings");
@@ -235,8 +235,8 @@ internal static class ReportWriter
                 if (++n > MaxAlertRows)
                 {
                     yield return withConfig
-                        ? ["", "", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; each configuration's alerts.jsonl lists every one."]
-                        : ["", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; alerts.jsonl lists every one."];
+                        ? ["", "", "", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; each configuration's alerts.jsonl lists every one."]
+                        : ["", "", "", "", "", "", "", "", $"… the first {MaxAlertRows} are shown; alerts.jsonl lists every one."];
                     yield break;
                 }
                 var row = new List<string> { $"#num {n}" };
@@ -244,6 +244,7 @@ internal static class ReportWriter
                 {
                     row.Add(run.Name);
                 }
+                row.Add(a.Incident > 0 ? $"#num {a.Incident:N0}" : "–");
                 row.Add(a.Rule);
                 row.Add(a.Severity == Core.Alerts.AlertSeverity.Critical ? "#critical critical" : "#warning warning");
                 row.Add(a.Raised ? "#raised raised" : "#cleared cleared");
@@ -273,6 +274,7 @@ internal static class ReportWriter
         yield return ["expected calibration error", Num(r.Total.Ece)];
         yield return ["calibration-in-the-large (mean p − rate)", Num(r.Total.CalibrationInTheLarge)];
         yield return ["alerts raised / cleared", $"#num {c.AlertsRaised:N0} / {c.AlertsCleared:N0}"];
+        yield return ["incidents (stretches with any alert raised)", $"#num {c.Incidents:N0}"];
         yield return ["alerts open at the end", r.OpenAlerts.Count == 0 ? "none" : string.Join(", ", r.OpenAlerts)];
         yield return ["replay time", $"#num {r.Elapsed.TotalSeconds.ToString("0.0", C)} s"];
     }

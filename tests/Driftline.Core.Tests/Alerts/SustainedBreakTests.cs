@@ -34,6 +34,37 @@ public sealed class SustainedBreakTests
     }
 
     [Fact]
+    public void DefaultRules_SustainedSlopeBreak_EveryAlertInOneIncident()
+    {
+        var sink = new RecordingSink();
+        var engine = new ScoringEngine(new DriftlineOptions(), sink);
+
+        EngineDriver.Feed(engine, Stream(5, calibrated: 5_000, broken: 40_000));
+
+        Assert.NotEmpty(sink.Alerts);
+        // While a rule is raised, a raise of another joins its incident.
+        Assert.True(sink.Alerts.Count(a => a.Raised) > 1, "the break should be seen by more than one rule");
+        Assert.All(sink.Alerts, a => Assert.Equal(1, a.Incident));
+        Assert.Equal(1, engine.Counters.Incidents);
+    }
+
+    [Fact]
+    public void DefaultRules_TwoBreaksApart_TwoIncidents()
+    {
+        var sink = new RecordingSink();
+        var engine = new ScoringEngine(new DriftlineOptions(), sink);
+
+        EngineDriver.Feed(engine, Stream(6, calibrated: 5_000, broken: 10_000)
+            .Concat(Stream(7, calibrated: 30_000, broken: 10_000).Select(l => l.Replace("\"o-", "\"b-", StringComparison.Ordinal))));
+
+        Assert.Equal(2, engine.Counters.Incidents);
+        Assert.Equal([1L, 2L], sink.Alerts.Select(a => a.Incident).Distinct().Order().ToArray());
+        // Nothing of the second break is filed under the first.
+        long firstOfSecond = sink.Alerts.First(a => a.Incident == 2).Labels;
+        Assert.All(sink.Alerts.Where(a => a.Labels >= firstOfSecond), a => Assert.Equal(2, a.Incident));
+    }
+
+    [Fact]
     public void DefaultRules_SustainedSlopeBreak_GapRaisedAsEarlyAsWithoutHold()
     {
         // The hold applies to clears only, so the first raise comes at the same label as with
