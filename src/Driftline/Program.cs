@@ -5,13 +5,13 @@ using Serilog;
 Log.Logger = new LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
 try
 {
-    using var stop = new CancellationTokenSource();
-    Console.CancelKeyPress += (_, e) => { e.Cancel = true; stop.Cancel(); };
+    using var signals = new StopSignals();
     var context = new CommandContext(Console.Out, Console.Error, ConfigLoader.ProcessEnvironment(), Console.OpenStandardInput)
     {
         ErrorIsTerminal = !Console.IsErrorRedirected,
+        StoppedExitCode = () => signals.ExitCode,
     };
-    return await DriftlineCli.RunAsync(args, context, stop.Token);
+    return await DriftlineCli.RunAsync(args, context, signals.Token);
 }
 catch (Exception ex)
 {

@@ -20,6 +20,12 @@ internal sealed class CheckCommand(CommandContext context)
     /// <summary>Validates <paramref name="path"/>; returns the exit code.</summary>
     public int Run(string path)
     {
+        if (Directory.Exists(path))
+        {
+            // The same exit code as a configuration file that does not exist.
+            context.Error.WriteLine($"driftline: '{path}' is a folder; give the configuration file (JSON), such as config/default.json");
+            return ExitCode.Config;
+        }
         var options = ConfigLoader.Load(path, context.Environment, out var errors);
         if (options is null)
         {

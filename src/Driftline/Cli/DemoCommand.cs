@@ -1,5 +1,6 @@
 using System.CommandLine;
 using Driftline.Demo;
+using Driftline.Output;
 
 namespace Driftline.Cli;
 
@@ -35,15 +36,21 @@ internal sealed class DemoCommand(CommandContext context)
                 scenario.Write(buffered);
                 return ExitCode.Ok;
             }
+            if (Directory.Exists(path))
+            {
+                throw new OutputException(path, "it is a folder; --out names the file to write, such as " + Path.Combine(path, "demo.jsonl"));
+            }
             string? folder = Path.GetDirectoryName(Path.GetFullPath(path));
             if (folder is not null)
             {
-                Directory.CreateDirectory(folder);
+                OutputFolder.Create(folder);
             }
-            using (var file = new FileStream(path, FileMode.Create, FileAccess.Write, FileShare.None, 1 << 16))
-            {
-                scenario.Write(file);
-            }
+            OutputFile.Write(path, scenario.Write, context.CreateOutput);
+        }
+        catch (OutputException ex)
+        {
+            context.Error.WriteLine(ex.Line);
+            return ExitCode.Input;
         }
         catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
         {

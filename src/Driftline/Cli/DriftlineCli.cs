@@ -28,7 +28,9 @@ internal static class DriftlineCli
             await context.Error.WriteLineAsync("Run 'driftline --help' for the commands and options.").ConfigureAwait(false);
             return ExitCode.Usage;
         }
-        var invocation = new InvocationConfiguration { Output = context.Out, Error = context.Error };
+        // Signals are the host's (StopSignals): the library's own handler would end a replay
+        // after two seconds with its files half written.
+        var invocation = new InvocationConfiguration { Output = context.Out, Error = context.Error, ProcessTerminationTimeout = null };
         return await parsed.InvokeAsync(invocation, cancellation).ConfigureAwait(false);
     }
 }

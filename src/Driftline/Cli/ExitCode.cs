@@ -20,4 +20,13 @@ internal static class ExitCode
 
     /// <summary>The live worker stopped on a fatal Kafka error (nothing was committed past safe work).</summary>
     public const int Kafka = 5;
+
+    /// <summary>
+    /// A replay or monitor stopped by SIGINT (Ctrl-C) before the end of its input: 128 + 2, as
+    /// shells report a process ended by that signal (common practice).
+    /// </summary>
+    public const int Interrupted = 130;
+
+    /// <summary>A replay or monitor stopped by SIGTERM before the end of its input: 128 + 15 (common practice).</summary>
+    public const int Terminated = 143;
 }

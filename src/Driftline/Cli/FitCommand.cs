@@ -7,6 +7,7 @@ using Driftline.Core.Learning;
 using Driftline.Core.Options;
 using Driftline.Core.Scoring;
 using Driftline.Core.Snapshots;
+using Driftline.Output;
 
 namespace Driftline.Cli;
 
@@ -44,6 +45,11 @@ internal sealed class FitCommand(CommandContext context)
         {
             context.Error.WriteLine("driftline: --ridge must be 0 or a positive number");
             return ExitCode.Usage;
+        }
+        if (Directory.Exists(outPath))
+        {
+            context.Error.WriteLine(new OutputException(outPath, $"it is a folder; --out names the model file to write, such as {Path.Combine(outPath, ReplayCommand.ModelFile)}").Line);
+            return ExitCode.Input;
         }
         var lines = ReadLines(file);
         if (lines is null)
@@ -150,20 +156,31 @@ internal sealed class FitCommand(CommandContext context)
             Coefficients = fit.Coefficients.Select((c, i) => c * signs[i]).ToArray(),
             ZValues = fit.ZValues.Select((z, i) => z * signs[i]).ToArray(),
         };
-        context.Out.WriteLine(new FitReport(natural, columnNames).Format());
         if (!fit.Converged)
         {
+            context.Out.WriteLine(new FitReport(natural, columnNames).Format());
             context.Error.WriteLine($"driftline: the fit did not converge: {fit.Problem}");
             return ExitCode.Input;
         }
 
-        WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot);
+        // The model is on disk before any table is shown: a table above an error line would
+        // read as a result that was never saved.
+        try
+        {
+            WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot, context.CreateOutput);
+        }
+        catch (OutputException ex)
+        {
+            context.Error.WriteLine(ex.Line);
+            return ExitCode.Input;
+        }
+        context.Out.WriteLine(new FitReport(natural, columnNames).Format());
         context.Out.WriteLine($"Fitted {rows.Count:N0} labelled events ({rejected:N0} lines rejected) on {columns.Count:N0} features; model written to {outPath}.");
         return ExitCode.Ok;
     }
 
     private static void WriteModel(string path, DriftlineOptions options, Featurizer featurizer, LogisticFitResult fit,
-        int[] slotOf, List<double[]> design, List<double> labels, int biasSlot)
+        int[] slotOf, List<double[]> design, List<double> labels, int biasSlot, Func<string, Stream> create)
     {
         var weights = new Dictionary<int, double> { [biasSlot] = fit.Intercept };
         var squares = new Dictionary<int, double> { [biasSlot] = 0 };
@@ -204,10 +221,9 @@ internal sealed class FitCommand(CommandContext context)
         string? folder = Path.GetDirectoryName(Path.GetFullPath(path));
         if (folder is not null)
         {
-            Directory.CreateDirectory(folder);
+            OutputFolder.Create(folder);
         }
-        using var file = File.Create(path);
-        SnapshotCodec.Write(snapshot, file);
+        OutputFile.Write(path, file => SnapshotCodec.Write(snapshot, file), create);
     }
 
     private List<byte[]>? ReadLines(string file)

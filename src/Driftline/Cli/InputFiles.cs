@@ -10,6 +10,11 @@ internal static class InputFiles
         {
             return context.StandardInput();
         }
+        if (Directory.Exists(file))
+        {
+            context.Error.WriteLine($"driftline: '{file}' is a folder; give the file to read");
+            return null;
+        }
         try
         {
             return new FileStream(file, FileMode.Open, FileAccess.Read, FileShare.Read, 1 << 16, FileOptions.SequentialScan);

@@ -34,15 +34,8 @@ internal sealed class InspectCommand(CommandContext context)
             context.Error.WriteLine("driftline: --top must be at least 1.");
             return ExitCode.Usage;
         }
-        EngineSnapshot snapshot;
-        try
+        if (SavedModel.Read(path, context) is not { } snapshot)
         {
-            using var file = File.OpenRead(path);
-            snapshot = SnapshotCodec.Read(file);
-        }
-        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException or InvalidDataException)
-        {
-            context.Error.WriteLine($"driftline: cannot read model '{path}': {ex.Message}");
             return ExitCode.Input;
         }
 

@@ -24,6 +24,12 @@ internal sealed class ReplayCommand(CommandContext context)
     /// <summary>File name of the saved model in the output folder.</summary>
     public const string ModelFile = "model.json";
 
+    /// <summary>File name of the summary in the output folder: written last, so its presence means the run finished.</summary>
+    public const string SummaryFile = "summary.json";
+
+    /// <summary>The files written at the end of a run, which a new run into the folder removes first (the summary first).</summary>
+    public static IReadOnlyList<string> EndFiles { get; } = [SummaryFile, ModelFile, ReportWriter.FileName];
+
     /// <summary>Monitor mode (<c>driftline monitor</c>): grade an external model's probabilities; no model is trained or saved.</summary>
     public bool MonitorOnly { get; init; }
 
@@ -77,7 +83,7 @@ internal sealed class ReplayCommand(CommandContext context)
         EngineSnapshot? start = null;
         if (warmStart is not null)
         {
-            start = ReadModel(warmStart);
+            start = SavedModel.Read(warmStart, context);
             if (start is null)
             {
                 return ExitCode.Input;
@@ -101,15 +107,24 @@ internal sealed class ReplayCommand(CommandContext context)
         var outputs = new List<ReplayOutputs>();
         try
         {
+            // The previous run's end files go before anything is written, so a run killed from
+            // here on never leaves an old summary beside new predictions.
+            OutputFolder.Create(outDir);
+            OutputFolder.RemovePrevious(outDir, EndFiles);
+            foreach (var folder in folders.Where(f => compare))
+            {
+                OutputFolder.CreateInside(folder);
+                OutputFolder.RemovePrevious(folder, EndFiles);
+            }
             foreach (var folder in folders)
             {
-                outputs.Add(new ReplayOutputs(folder));
+                outputs.Add(new ReplayOutputs(folder, context.CreateOutput));
             }
         }
-        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        catch (OutputException ex)
         {
             outputs.ForEach(o => o.Dispose());
-            await context.Error.WriteLineAsync($"driftline: cannot write to '{outDir}': {ex.Message}").ConfigureAwait(false);
+            await context.Error.WriteLineAsync(ex.Line).ConfigureAwait(false);
             return ExitCode.Input;
         }
 
@@ -152,6 +167,13 @@ internal sealed class ReplayCommand(CommandContext context)
         try
         {
             await pipeline.RunAsync(input, outputs, cancellation).ConfigureAwait(false);
+            // Closing flushes the last predictions: on a full disk that fails here, not silently.
+            outputs.ForEach(o => o.Close());
+        }
+        catch (OutputException ex)
+        {
+            await context.Error.WriteLineAsync(ex.Line).ConfigureAwait(false);
+            return ExitCode.Input;
         }
         catch (IOException ex)
         {
@@ -173,51 +195,98 @@ internal sealed class ReplayCommand(CommandContext context)
         }
         clock.Stop();
         Report(progress, pipeline, done: true);
+        if (pipeline.Stopped)
+        {
+            // A stopped run is visibly unfinished: its line files hold what was scored, and no
+            // summary, model or report claims more.
+            await context.Error.WriteLineAsync($"driftline: stopped after {pipeline.Lines:N0} lines; what was scored is in {Path.GetFullPath(outDir)}, and no summary, model or report was written.").ConfigureAwait(false);
+            return context.StoppedExitCode();
+        }
 
         await warmUp.ConfigureAwait(false);
+        try
+        {
+            await WriteEndFilesAsync(file, outDir, configs.Select(c => c.Name).ToList(), folders, lanes, recorders, names, webhooks, clock.Elapsed).ConfigureAwait(false);
+        }
+        catch (OutputException ex)
+        {
+            await context.Error.WriteLineAsync(ex.Line).ConfigureAwait(false);
+            return ExitCode.Input;
+        }
+
         var o = context.Out;
         for (int i = 0; i < lanes.Count; i++)
         {
-            var engine = lanes[i].Engine;
-            var folder = folders[i];
-            SummaryWriter.Write(Path.Combine(folder, "summary.json"), engine, lanes[i].DeadLetters, clock.Elapsed, webhooks[i]);
-            // The model file and the report are independent: write one while rendering the other.
-            var modelWrite = Task.CompletedTask;
-            if (!MonitorOnly)
-            {
-                var snapshot = engine.Snapshot();
-                snapshot.FeatureNames = names.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
-                string modelPath = Path.Combine(folder, ModelFile);
-                modelWrite = Task.Run(() =>
-                {
-                    using var model = File.Create(modelPath);
-                    SnapshotCodec.Write(snapshot, model);
-                }, CancellationToken.None);
-            }
-            var recorder = recorders[i];
-            recorder.Finish();
-            recorder.Data.DeadLetters = lanes[i].DeadLetters;
-            recorder.Data.Elapsed = clock.Elapsed;
-            ReportWriter.WriteSingle(Path.Combine(folder, ReportWriter.FileName), file, recorder.Data);
-            await modelWrite.ConfigureAwait(false);
-
             if (compare)
             {
                 o.WriteLine($"[{configs[i].Name}]");
             }
-            WriteResult(o, pipeline, lanes[i], outputs[i], clock.Elapsed, folder);
+            WriteResult(o, pipeline, lanes[i], outputs[i], clock.Elapsed, folders[i]);
             if (webhooks[i] is { } hook)
             {
                 o.WriteLine($"Webhook: {hook.Sent:N0} alerts delivered, {hook.Failed:N0} failed, {hook.Dropped:N0} dropped.");
             }
         }
-        if (compare)
+        if (IsEmpty(lanes[0]))
         {
-            ReportWriter.WriteComparison(Path.Combine(outDir, ReportWriter.FileName), file, recorders.Select(r => r.Data).ToList());
+            o.WriteLine($"No events in '{file}': nothing was {(MonitorOnly ? "monitored" : "scored")}, so no {(MonitorOnly ? "" : "model or ")}report was written; summary.json records the empty run.");
+        }
+        else if (compare)
+        {
             o.WriteLine($"Comparison of {configs.Count} configurations in {Path.GetFullPath(Path.Combine(outDir, ReportWriter.FileName))}");
         }
         return ExitCode.Ok;
     }
+
+    /// <summary>
+    /// The end-of-run files, each whole through a temporary name: every model and report
+    /// first, then the comparison, then each summary.json last, so a summary on disk means
+    /// every other file of its run is complete. A run with nothing to score gets only its
+    /// summary: a model that learned nothing and charts without points would mislead.
+    /// </summary>
+    private async Task WriteEndFilesAsync(string file, string outDir, IReadOnlyList<string> names, string[] folders,
+        IReadOnlyList<ReplayLane> lanes, IReadOnlyList<ReportRecorder> recorders, FeatureNames featureNames, WebhookAlertSink?[] webhooks, TimeSpan elapsed)
+    {
+        bool empty = IsEmpty(lanes[0]);
+        for (int i = 0; i < lanes.Count && !empty; i++)
+        {
+            var engine = lanes[i].Engine;
+            var folder = folders[i];
+            // The model file and the report are independent: write one while rendering the other.
+            var modelWrite = Task.CompletedTask;
+            if (!MonitorOnly)
+            {
+                var snapshot = engine.Snapshot();
+                snapshot.FeatureNames = featureNames.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
+                string modelPath = Path.Combine(folder, ModelFile);
+                modelWrite = Task.Run(() => OutputFile.Write(modelPath, stream => SnapshotCodec.Write(snapshot, stream), context.CreateOutput), CancellationToken.None);
+            }
+            try
+            {
+                var recorder = recorders[i];
+                recorder.Finish();
+                recorder.Data.DeadLetters = lanes[i].DeadLetters;
+                recorder.Data.Elapsed = elapsed;
+                ReportWriter.WriteSingle(Path.Combine(folder, ReportWriter.FileName), file, recorder.Data, context.CreateOutput);
+            }
+            finally
+            {
+                await modelWrite.ConfigureAwait(false);
+            }
+        }
+        if (folders.Length > 1 && !empty)
+        {
+            ReportWriter.WriteComparison(Path.Combine(outDir, ReportWriter.FileName), file, recorders.Select(r => r.Data).ToList(), context.CreateOutput);
+        }
+        for (int i = 0; i < lanes.Count; i++)
+        {
+            SummaryWriter.Write(Path.Combine(folders[i], SummaryFile), lanes[i].Engine, lanes[i].DeadLetters, elapsed, webhooks[i], context.CreateOutput);
+        }
+    }
+
+    // Every lane reads the same records, so the first one tells.
+    private bool IsEmpty(ReplayLane lane) =>
+        (MonitorOnly ? lane.Engine.Counters.Probabilities : lane.Engine.Counters.Events) == 0;
 
     private static void Report(ReplayProgress progress, ReplayPipeline pipeline, bool done)
     {
@@ -252,22 +321,9 @@ internal sealed class ReplayCommand(CommandContext context)
         {
             o.WriteLine("No alerts.");
         }
+        string ends = IsEmpty(lane) ? SummaryFile : MonitorOnly ? $"{SummaryFile}, {ReportWriter.FileName}" : $"{SummaryFile}, {ModelFile}, {ReportWriter.FileName}";
         o.WriteLine(MonitorOnly
-            ? $"Outputs in {Path.GetFullPath(folder)}: alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ReportWriter.FileName}"
-            : $"Outputs in {Path.GetFullPath(folder)}: predictions.jsonl, alerts.jsonl, dead-letters.jsonl, metrics.csv, summary.json, {ModelFile}, {ReportWriter.FileName}");
-    }
-
-    private EngineSnapshot? ReadModel(string path)
-    {
-        try
-        {
-            using var stream = File.OpenRead(path);
-            return SnapshotCodec.Read(stream);
-        }
-        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException or InvalidDataException)
-        {
-            context.Error.WriteLine($"driftline: cannot load model '{path}': {ex.Message}");
-            return null;
-        }
+            ? $"Outputs in {Path.GetFullPath(folder)}: alerts.jsonl, dead-letters.jsonl, metrics.csv, {ends}"
+            : $"Outputs in {Path.GetFullPath(folder)}: predictions.jsonl, alerts.jsonl, dead-letters.jsonl, metrics.csv, {ends}");
     }
 }

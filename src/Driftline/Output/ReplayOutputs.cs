@@ -12,7 +12,10 @@ namespace Driftline.Output;
 /// <summary>
 /// The files a replay writes into its output folder: <c>predictions.jsonl</c>,
 /// <c>alerts.jsonl</c>, <c>dead-letters.jsonl</c> and <c>metrics.csv</c>. Used by the writer
-/// stage only (one thread).
+/// stage only (one thread). Alerts, dead letters and metric rows reach the file at the end of
+/// every batch that has any (a batch is at most <see cref="LineBatch.MaxLines"/> lines), so a
+/// killed run keeps them; predictions go out in 64 KiB writes and at the end. A failed write
+/// surfaces as an <see cref="OutputException"/> naming the file.
 /// </summary>
 internal sealed class ReplayOutputs : IDisposable
 {
@@ -20,24 +23,50 @@ internal sealed class ReplayOutputs : IDisposable
     public const string MetricsHeader =
         "labels,events,time,window_labels,log_loss,prior_log_loss,skill,brier,ece,calibration_in_the_large,mean_p,mean_y,total_log_loss,total_prior_log_loss,total_brier,total_ece,late_labels,expired_labels";
 
-    private readonly FileStream _predictions;
-    private readonly FileStream _alerts;
-    private readonly FileStream _deadLetters;
+    private readonly Stream _predictions;
+    private readonly Stream _alerts;
+    private readonly Stream _deadLetters;
     private readonly StreamWriter _metrics;
+    private readonly string _directory;
     private readonly ArrayBufferWriter<byte> _buffer = new(1 << 20);
     private readonly Utf8JsonWriter _json;
 
-    /// <summary>Creates (truncating) the output files in <paramref name="directory"/>.</summary>
-    public ReplayOutputs(string directory)
+    /// <summary>
+    /// Creates the output files anew in <paramref name="directory"/> (an existing file or link
+    /// of the same name is replaced, never followed), each opened with <paramref name="create"/>
+    /// (default <see cref="OutputFile.CreateNew"/>).
+    /// </summary>
+    /// <exception cref="OutputException">A file cannot be created.</exception>
+    public ReplayOutputs(string directory, Func<string, Stream>? create = null)
     {
-        Directory.CreateDirectory(directory);
-        _predictions = Create(directory, "predictions.jsonl");
-        _alerts = Create(directory, "alerts.jsonl");
-        _deadLetters = Create(directory, "dead-letters.jsonl");
-        _metrics = new StreamWriter(Create(directory, "metrics.csv"), new UTF8Encoding(false)) { NewLine = "\n" };
-        _metrics.WriteLine(MetricsHeader);
+        _directory = directory;
+        var opened = new List<Stream>();
+        try
+        {
+            OutputFolder.Create(directory);
+            _predictions = Open("predictions.jsonl");
+            _alerts = Open("alerts.jsonl");
+            _deadLetters = Open("dead-letters.jsonl");
+            _metrics = new StreamWriter(Open("metrics.csv"), new UTF8Encoding(false)) { NewLine = "\n" };
+        }
+        catch
+        {
+            opened.ForEach(s => s.Dispose());
+            throw;
+        }
         _json = new Utf8JsonWriter(_buffer, new JsonWriterOptions { SkipValidation = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
+        Guard("metrics.csv", () => _metrics.WriteLine(MetricsHeader));
+
+        Stream Open(string name)
+        {
+            var stream = OutputFile.CreateStreamed(Path.Combine(directory, name), create);
+            opened.Add(stream);
+            return stream;
+        }
     }
+
+    /// <summary>The files this writes, by name, in the order they are created.</summary>
+    public static IReadOnlyList<string> FileNames { get; } = ["predictions.jsonl", "alerts.jsonl", "dead-letters.jsonl", "metrics.csv"];
 
     /// <summary>Alerts written, for the summary.</summary>
     public List<AlertTransition> AlertsWritten { get; } = [];
@@ -49,18 +78,38 @@ internal sealed class ReplayOutputs : IDisposable
     public WebhookAlertSink? Webhook { get; set; }
 
     /// <summary>Writes one batch's results.</summary>
+    /// <exception cref="OutputException">A file cannot be written (disk full, for one).</exception>
     public void Write(OutputBatch batch)
+    {
+        string file = "predictions.jsonl";
+        try
+        {
+            WriteBatch(batch, ref file);
+        }
+        catch (Exception ex) when (ex is (IOException or UnauthorizedAccessException) and not OutputException)
+        {
+            throw new OutputException(Path.Combine(_directory, file), ex);
+        }
+    }
+
+    private void WriteBatch(OutputBatch batch, ref string file)
     {
         _buffer.ResetWrittenCount();
         PredictionLines.Append(_buffer, _json, batch.Predictions);
         _predictions.Write(_buffer.WrittenSpan);
 
+        file = "alerts.jsonl";
         foreach (var alert in batch.Alerts)
         {
             AlertsWritten.Add(alert);
             WriteLine(_alerts, w => RecordJson.WriteAlert(w, alert));
             Webhook?.Enqueue(alert);
         }
+        if (batch.Alerts.Count > 0)
+        {
+            _alerts.Flush();
+        }
+        file = "dead-letters.jsonl";
         foreach (var dead in batch.DeadLetters)
         {
             WriteLine(_deadLetters, w =>
@@ -72,9 +121,18 @@ internal sealed class ReplayOutputs : IDisposable
                 w.WriteEndObject();
             });
         }
+        if (batch.DeadLetters.Count > 0)
+        {
+            _deadLetters.Flush();
+        }
+        file = "metrics.csv";
         foreach (var row in batch.Metrics)
         {
             _metrics.WriteLine(FormatMetrics(row));
+        }
+        if (batch.Metrics.Count > 0)
+        {
+            _metrics.Flush();
         }
     }
 
@@ -94,7 +152,7 @@ internal sealed class ReplayOutputs : IDisposable
 
     private static string F(double v) => double.IsFinite(v) ? v.ToString("0.######", CultureInfo.InvariantCulture) : "";
 
-    private void WriteLine(FileStream file, Action<Utf8JsonWriter> write)
+    private void WriteLine(Stream file, Action<Utf8JsonWriter> write)
     {
         _buffer.ResetWrittenCount();
         _json.Reset(_buffer);
@@ -104,16 +162,51 @@ internal sealed class ReplayOutputs : IDisposable
         file.Write(_buffer.WrittenSpan);
     }
 
-    private static FileStream Create(string directory, string name) =>
-        new(Path.Combine(directory, name), FileMode.Create, FileAccess.Write, FileShare.Read, 1 << 16);
+    private void Guard(string name, Action write)
+    {
+        try
+        {
+            write();
+        }
+        catch (Exception ex) when (ex is (IOException or UnauthorizedAccessException) and not OutputException)
+        {
+            throw new OutputException(Path.Combine(_directory, name), ex);
+        }
+    }
+
+    /// <summary>Flushes and closes every file (on a failed flush, the others are still closed).</summary>
+    /// <exception cref="OutputException">The last buffered bytes of a file could not be written.</exception>
+    public void Close()
+    {
+        _json.Dispose();
+        OutputException? failure = null;
+        foreach (var (name, stream) in new (string, IDisposable)[] { ("predictions.jsonl", _predictions), ("alerts.jsonl", _alerts), ("dead-letters.jsonl", _deadLetters), ("metrics.csv", _metrics) })
+        {
+            try
+            {
+                Guard(name, stream.Dispose);
+            }
+            catch (OutputException ex)
+            {
+                failure ??= ex;
+            }
+        }
+        if (failure is not null)
+        {
+            throw failure;
+        }
+    }
 
     /// <inheritdoc />
     public void Dispose()
     {
-        _json.Dispose();
-        _predictions.Dispose();
-        _alerts.Dispose();
-        _deadLetters.Dispose();
-        _metrics.Dispose();
+        try
+        {
+            Close();
+        }
+        catch (OutputException)
+        {
+            // Dispose runs after a failure has already been reported; Close reports its own.
+        }
     }
 }

@@ -3,17 +3,24 @@ using Driftline.Core.Scoring;
 
 namespace Driftline.Output;
 
-/// <summary>Writes <c>summary.json</c>: the run's figures in one small object.</summary>
+/// <summary>
+/// Writes <c>summary.json</c>: the run's figures in one small object. It is the last file a
+/// finished run writes, so its presence means the run finished (see <see cref="OutputFile"/>).
+/// </summary>
 internal static class SummaryWriter
 {
     /// <summary>
     /// Writes the summary of <paramref name="engine"/>'s run to <paramref name="path"/>, with
     /// <c>webhook_sent</c>, <c>webhook_failed</c> and <c>webhook_dropped</c> when a
-    /// <paramref name="webhook"/> was in use (read them after it has drained).
+    /// <paramref name="webhook"/> was in use (read them after it has drained). The file is
+    /// written whole through a temporary name, opened with <paramref name="create"/>.
     /// </summary>
-    public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook = null)
+    /// <exception cref="OutputException">The file cannot be written.</exception>
+    public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook = null, Func<string, Stream>? create = null) =>
+        OutputFile.Write(path, file => Write(file, engine, deadLetters, elapsed, webhook), create);
+
+    private static void Write(Stream file, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook)
     {
-        using var file = File.Create(path);
         using var w = new Utf8JsonWriter(file, new JsonWriterOptions { Indented = true });
         var c = engine.Counters;
         var total = engine.Totals.Current;

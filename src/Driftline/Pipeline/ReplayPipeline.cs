@@ -65,6 +65,12 @@ internal sealed class ReplayPipeline
         init => _parser.Names = value;
     }
 
+    /// <summary>
+    /// True when the run ended on the caller's cancellation (a signal) before the end of the
+    /// input: every batch scored was written, the rest of the input was not read.
+    /// </summary>
+    public bool Stopped { get; private set; }
+
     /// <summary>Called on the scoring thread after each batch (progress reporting); may be null.</summary>
     public Action<ScoringEngine>? AfterBatch { get; init; }
 
@@ -114,49 +120,57 @@ internal sealed class ReplayPipeline
         var results = Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
 
         // One stage failing stops the others, and its exception (not their cancellation) surfaces.
-        using var stop = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
-        var token = stop.Token;
+        // A stop asked by the caller (a signal) is not a failure: the reader stops, the scorer
+        // finishes the batch in hand, and the writer writes every batch that was scored.
+        using var failed = new CancellationTokenSource();
+        using var reading = CancellationTokenSource.CreateLinkedTokenSource(cancellation, failed.Token);
+        // A pipe or a terminal read blocks until data comes; the stop must not wait for it.
+        var source = input.CanSeek ? input : new StopResponsiveStream(input);
         Task[] stages =
         [
             // Each batch is parsed on the reading thread before it is handed on: a parse stage of
             // its own cost more in hand-offs between the two cores than it saved
             // (tests/Driftline.Benchmarks replay, same-run A/B).
-            Stage(() => LineReader.RunAsync(input, _parser, linePool.Reader, lines.Writer, token), stop),
-            Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, results.Writer, token), stop),
-            Stage(() => WriteAsync(results.Reader, outputPool.Writer, write, token), stop),
+            Stage(() => LineReader.RunAsync(source, _parser, linePool.Reader, lines.Writer, reading.Token), failed, cancellation),
+            Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, results.Writer, failed.Token, cancellation), failed, cancellation),
+            Stage(() => WriteAsync(results.Reader, outputPool.Writer, write, failed.Token), failed, cancellation),
         ];
         try
         {
             await Task.WhenAll(stages).ConfigureAwait(false);
         }
-        catch (Exception) when (stages.FirstOrDefault(t => t.IsFaulted && t.Exception!.InnerException is not OperationCanceledException) is { } failed)
+        catch (Exception) when (stages.FirstOrDefault(t => t.IsFaulted && t.Exception!.InnerException is not OperationCanceledException) is { } failure)
         {
-            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Throw(failed.Exception!.InnerException!);
+            System.Runtime.ExceptionServices.ExceptionDispatchInfo.Throw(failure.Exception!.InnerException!);
         }
     }
 
-    private static Task Stage(Func<Task> body, CancellationTokenSource stop) =>
+    private static Task Stage(Func<Task> body, CancellationTokenSource failed, CancellationToken stop) =>
         Task.Run(async () =>
         {
             try
             {
                 await body().ConfigureAwait(false);
             }
+            catch (OperationCanceledException) when (stop.IsCancellationRequested && !failed.IsCancellationRequested)
+            {
+                // Stopped on request: the stages downstream finish what they hold.
+            }
             catch
             {
-                await stop.CancelAsync().ConfigureAwait(false);
+                await failed.CancelAsync().ConfigureAwait(false);
                 throw;
             }
         });
 
     private async Task ScoreAsync(ChannelReader<LineBatch> input, ChannelWriter<LineBatch> linePool,
-        ChannelReader<OutputBatch[]> outputPool, ChannelWriter<OutputBatch[]> output, CancellationToken cancellation)
+        ChannelReader<OutputBatch[]> outputPool, ChannelWriter<OutputBatch[]> output, CancellationToken cancellation, CancellationToken stop)
     {
         try
         {
-            while (await input.WaitToReadAsync(cancellation).ConfigureAwait(false))
+            while (await WaitForLinesAsync(input, cancellation, stop).ConfigureAwait(false))
             {
-                while (input.TryRead(out var batch))
+                while (!stop.IsCancellationRequested && input.TryRead(out var batch))
                 {
                     var result = await outputPool.ReadAsync(cancellation).ConfigureAwait(false);
                     for (int l = 0; l < _lanes.Length; l++)
@@ -175,12 +189,31 @@ internal sealed class ReplayPipeline
                     await output.WriteAsync(result, cancellation).ConfigureAwait(false);
                 }
             }
+            Stopped = stop.IsCancellationRequested;
             output.Complete();
         }
         catch (Exception ex)
         {
             output.Complete(ex);
             throw;
+        }
+    }
+
+    // False at the end of the input, or once a stop is asked (batches read but not scored are dropped).
+    private static async Task<bool> WaitForLinesAsync(ChannelReader<LineBatch> input, CancellationToken cancellation, CancellationToken stop)
+    {
+        if (stop.IsCancellationRequested)
+        {
+            return false;
+        }
+        try
+        {
+            return await input.WaitToReadAsync(cancellation).ConfigureAwait(false);
+        }
+        catch (OperationCanceledException) when (stop.IsCancellationRequested && !cancellation.IsCancellationRequested)
+        {
+            // The reader stopped on the request and completed the channel with its cancellation.
+            return false;
         }
     }
 

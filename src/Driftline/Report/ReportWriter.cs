@@ -24,13 +24,21 @@ internal static class ReportWriter
 
     private static readonly CultureInfo C = CultureInfo.InvariantCulture;
 
-    /// <summary>Writes the report of one run to <paramref name="path"/>.</summary>
-    public static void WriteSingle(string path, string input, ReportData run) =>
-        File.WriteAllText(path, Single(input, run), new UTF8Encoding(false));
+    /// <summary>Writes the report of one run to <paramref name="path"/>, whole, through a temporary name.</summary>
+    /// <exception cref="Output.OutputException">The file cannot be written.</exception>
+    public static void WriteSingle(string path, string input, ReportData run, Func<string, Stream>? create = null) =>
+        WriteText(path, Single(input, run), create);
 
-    /// <summary>Writes the comparison of several runs over the same input to <paramref name="path"/>.</summary>
-    public static void WriteComparison(string path, string input, IReadOnlyList<ReportData> runs) =>
-        File.WriteAllText(path, Comparison(input, runs), new UTF8Encoding(false));
+    /// <summary>Writes the comparison of several runs over the same input to <paramref name="path"/>, whole, through a temporary name.</summary>
+    /// <exception cref="Output.OutputException">The file cannot be written.</exception>
+    public static void WriteComparison(string path, string input, IReadOnlyList<ReportData> runs, Func<string, Stream>? create = null) =>
+        WriteText(path, Comparison(input, runs), create);
+
+    private static void WriteText(string path, string html, Func<string, Stream>? create)
+    {
+        byte[] bytes = new UTF8Encoding(false).GetBytes(html);
+        Output.OutputFile.Write(path, file => file.Write(bytes), create);
+    }
 
     /// <summary>
     /// Renders a small throwaway report, so that the chart library's first-use costs (loading
