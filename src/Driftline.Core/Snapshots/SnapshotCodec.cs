@@ -19,8 +19,9 @@ internal static class SnapshotCodec
     }
 
     /// <summary>
-    /// Reads a snapshot. Throws <see cref="InvalidDataException"/> with a plain reason when
-    /// the content is not a Driftline snapshot or is of an unknown version.
+    /// Reads a snapshot and checks it (<see cref="SnapshotValidator"/>). Throws
+    /// <see cref="InvalidDataException"/> with a plain reason when the content is not a
+    /// Driftline snapshot, is of an unknown version, repeats a property, or is damaged.
     /// </summary>
     public static EngineSnapshot Read(Stream stream)
     {
@@ -41,6 +42,7 @@ internal static class SnapshotCodec
         {
             throw new InvalidDataException($"snapshot format version {snapshot.FormatVersion} is not supported by this build (it reads version {EngineSnapshot.CurrentVersion})");
         }
+        SnapshotValidator.Check(snapshot);
         return snapshot;
     }
 }

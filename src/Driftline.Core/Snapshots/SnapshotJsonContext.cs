@@ -9,6 +9,8 @@ namespace Driftline.Core.Snapshots;
 [JsonSourceGenerationOptions(
     PropertyNamingPolicy = JsonKnownNamingPolicy.SnakeCaseLower,
     UseStringEnumConverter = true,
-    NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals)]
+    NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
+    // A repeated property is damage (or an edit gone wrong), not "the last one wins".
+    AllowDuplicateProperties = false)]
 [JsonSerializable(typeof(EngineSnapshot))]
 internal sealed partial class SnapshotJsonContext : JsonSerializerContext;
