@@ -5,7 +5,7 @@ using Serilog;
 Log.Logger = new LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
 try
 {
-    using var signals = new StopSignals();
+    using var signals = new StopSignals(args);
     var context = new CommandContext(Console.Out, Console.Error, ConfigLoader.ProcessEnvironment(), Console.OpenStandardInput)
     {
         ErrorIsTerminal = !Console.IsErrorRedirected,

@@ -6,20 +6,30 @@ namespace Driftline.Cli;
 /// SIGINT and SIGTERM as a cancellation token: the first of either asks the running command
 /// to stop cleanly (a replay flushes what it scored and writes no summary); a second one is
 /// left to the system's default action, so a stuck process can still be ended from the keyboard.
+/// Only commands that stop cleanly on their token take the signals over; the others (fit,
+/// demo, check, inspect) end at once, as any program does, and leave no file half written
+/// because every file they write appears by rename.
 /// </summary>
 internal sealed class StopSignals : IDisposable
 {
     private readonly CancellationTokenSource _stop = new();
-    private readonly PosixSignalRegistration _interrupt;
-    private readonly PosixSignalRegistration _terminate;
+    private readonly PosixSignalRegistration? _interrupt;
+    private readonly PosixSignalRegistration? _terminate;
     private int _signal;
 
-    /// <summary>Registers the handlers; dispose to restore the defaults.</summary>
-    public StopSignals()
+    /// <summary>Registers the handlers for the command in <paramref name="args"/> if it stops cleanly; dispose to restore the defaults.</summary>
+    public StopSignals(string[] args)
     {
-        _interrupt = PosixSignalRegistration.Create(PosixSignal.SIGINT, Handle);
-        _terminate = PosixSignalRegistration.Create(PosixSignal.SIGTERM, Handle);
+        ArgumentNullException.ThrowIfNull(args);
+        if (args.Length > 0 && StopsCleanly.Contains(args[0], StringComparer.Ordinal))
+        {
+            _interrupt = PosixSignalRegistration.Create(PosixSignal.SIGINT, Handle);
+            _terminate = PosixSignalRegistration.Create(PosixSignal.SIGTERM, Handle);
+        }
     }
+
+    /// <summary>The commands that watch their token and stop cleanly on it.</summary>
+    public static IReadOnlyList<string> StopsCleanly { get; } = ["replay", "monitor", "run"];
 
     /// <summary>Cancelled by the first signal.</summary>
     public CancellationToken Token => _stop.Token;
@@ -40,8 +50,8 @@ internal sealed class StopSignals : IDisposable
     /// <inheritdoc />
     public void Dispose()
     {
-        _interrupt.Dispose();
-        _terminate.Dispose();
+        _interrupt?.Dispose();
+        _terminate?.Dispose();
         _stop.Dispose();
     }
 }
