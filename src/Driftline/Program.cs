@@ -1,11 +1,15 @@
 using Driftline.Cli;
 using Driftline.Configuration;
+using System.Runtime.InteropServices;
 using Serilog;
 
 Log.Logger = new LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
 try
 {
     using var signals = new StopSignals(args);
+    // SIGXFSZ (a file-size limit reached, 25 on Linux) would abort the runtime; ignored, the
+    // write fails with EFBIG instead, and that is reported as any failed write is (exit 4).
+    using var fileSizeLimit = OperatingSystem.IsLinux() ? PosixSignalRegistration.Create((PosixSignal)25, c => c.Cancel = true) : null;
     var context = new CommandContext(Console.Out, Console.Error, ConfigLoader.ProcessEnvironment(), Console.OpenStandardInput)
     {
         ErrorIsTerminal = !Console.IsErrorRedirected,

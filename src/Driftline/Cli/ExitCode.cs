@@ -15,7 +15,10 @@ internal static class ExitCode
     /// <summary>The configuration is invalid.</summary>
     public const int Config = 3;
 
-    /// <summary>An input file cannot be read, or an output folder cannot be written.</summary>
+    /// <summary>
+    /// An input file cannot be read (missing, a folder, a damaged model), or an output cannot
+    /// be written (full disk, a folder where a file goes, --out naming a file); one line says which.
+    /// </summary>
     public const int Input = 4;
 
     /// <summary>The live worker stopped on a fatal Kafka error (nothing was committed past safe work).</summary>

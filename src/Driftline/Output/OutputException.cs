@@ -23,6 +23,11 @@ internal sealed class OutputException : IOException
     // The runtime's messages end with the path again (" : '/x/y'"), which the line already names.
     private static string Reason(Exception inner)
     {
+        if (inner is ArgumentOutOfRangeException)
+        {
+            // EFBIG, as the runtime reports it ("Specified file length was too large ...").
+            return "the file would be larger than the file system or the process's file-size limit (ulimit -f) allows";
+        }
         string message = inner.Message;
         int at = message.IndexOf(" : '", StringComparison.Ordinal);
         return at > 0 ? message[..at] : message;

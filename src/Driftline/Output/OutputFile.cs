@@ -16,18 +16,20 @@ internal sealed class OutputFile : IDisposable
     private readonly string _temporary;
     private bool _done;
 
+    private readonly OutputStream _stream;
+
     private OutputFile(string path, string temporary, Stream stream)
     {
         Path = path;
         _temporary = temporary;
-        Stream = stream;
+        _stream = new OutputStream(stream, path);
     }
 
     /// <summary>The name the file gets on <see cref="Commit"/>.</summary>
     public string Path { get; }
 
-    /// <summary>Where to write the content.</summary>
-    public Stream Stream { get; }
+    /// <summary>Where to write the content; its failures are <see cref="OutputException"/>s naming <see cref="Path"/>.</summary>
+    public Stream Stream => _stream;
 
     /// <summary>
     /// Creates a new file exclusively (O_CREAT | O_EXCL: it fails on any existing entry, a
@@ -68,7 +70,7 @@ internal sealed class OutputFile : IDisposable
         {
             write(file.Stream);
         }
-        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        catch (Exception ex) when (ex is (IOException or UnauthorizedAccessException) and not OutputException)
         {
             throw new OutputException(path, ex);
         }
@@ -86,7 +88,7 @@ internal sealed class OutputFile : IDisposable
         try
         {
             RemoveEntry(path);
-            return (create ?? CreateNew)(path);
+            return new OutputStream((create ?? CreateNew)(path), path);
         }
         catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
         {
@@ -124,12 +126,8 @@ internal sealed class OutputFile : IDisposable
     {
         try
         {
-            Stream.Flush();
-            if (Stream is FileStream file)
-            {
-                file.Flush(flushToDisk: true);
-            }
-            Stream.Dispose();
+            _stream.FlushToDisk();
+            _stream.Dispose();
             if (Directory.Exists(Path) && new FileInfo(Path).LinkTarget is null)
             {
                 throw new OutputException(Path, "a folder has this name; remove it or choose another name");
@@ -165,9 +163,9 @@ internal sealed class OutputFile : IDisposable
         try
         {
             // Closing flushes what is buffered, which fails again on a full disk; the file goes anyway.
-            Stream.Dispose();
+            _stream.Dispose();
         }
-        catch (IOException)
+        catch (OutputException)
         {
         }
         try
