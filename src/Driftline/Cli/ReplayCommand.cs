@@ -111,7 +111,7 @@ internal sealed class ReplayCommand(CommandContext context)
             // here on never leaves an old summary beside new predictions.
             OutputFolder.Create(outDir);
             OutputFolder.RemovePrevious(outDir, EndFiles);
-            foreach (var folder in folders.Where(f => compare))
+            foreach (var folder in compare ? folders : [])
             {
                 OutputFolder.CreateInside(folder);
                 OutputFolder.RemovePrevious(folder, EndFiles);

@@ -138,6 +138,28 @@ public sealed class OutputFailureTests
         Assert.True(File.Exists(dir.File("out/report.html")));
     }
 
+    [Fact]
+    public async Task Compare_RerunWhoseComparisonFails_LeavesNoSummaryInAnyConfigurationFolder()
+    {
+        using var dir = new TempFolder();
+        File.WriteAllText(dir.File("in.jsonl"), Events(1_000));
+        File.WriteAllText(dir.File("a.json"), "{}");
+        File.WriteAllText(dir.File("b.json"), """{"Model":{"LearningRate":0.2}}""");
+        string[] args = ["replay", dir.File("in.jsonl"), "--out", dir.File("out"), "--config", dir.File("a.json"), "--config", dir.File("b.json")];
+        Assert.Equal(0, (await CliRun.RunAsync(args)).ExitCode);
+        Assert.True(File.Exists(dir.File("out/a/summary.json")));
+
+        // The comparison is written after every configuration's model and report, and before any summary.
+        string comparison = dir.File("out/report.html") + "." + Environment.ProcessId + ".tmp";
+        var rerun = await CliRun.RunAsync(args, c => c with { CreateOutput = p => p == comparison ? new FullDiskStream(Driftline.Output.OutputFile.CreateNew(p), 10) : Driftline.Output.OutputFile.CreateNew(p) });
+        Assert.Equal(4, rerun.ExitCode);
+        AssertOneLine(rerun.Error, $"cannot write '{dir.File("out/report.html")}'");
+        Assert.False(File.Exists(dir.File("out/a/summary.json")));
+        Assert.False(File.Exists(dir.File("out/b/summary.json")));
+        Assert.False(File.Exists(dir.File("out/report.html")));
+        Assert.True(File.Exists(dir.File("out/b/model.json")));
+    }
+
     [Theory]
     [InlineData("replay")]
     [InlineData("monitor")]
