@@ -6,6 +6,19 @@ namespace Driftline.Core.Options;
 /// <param name="Fix">What to set instead.</param>
 internal sealed record OptionError(string Option, string Problem, string Fix)
 {
+    /// <summary>
+    /// Where the value came from, in the user's words (<c>config x.json</c>, <c>environment
+    /// DRIFTLINE_Model__HashBits</c>); empty when the mistake has no one place (two variables
+    /// that disagree); null when not known. Default null.
+    /// </summary>
+    public string? Source { get; init; }
+
+    /// <summary>
+    /// The whole sentence, for mistakes that read better as one (<c>unknown option
+    /// Model:LearningRat; did you mean Model:LearningRate?</c>). Default null: built from the parts.
+    /// </summary>
+    public string? Message { get; init; }
+
     /// <inheritdoc />
-    public override string ToString() => $"{Option}: {Problem}. {Fix}";
+    public override string ToString() => Message ?? $"{Option}: {Problem}. {Fix}";
 }

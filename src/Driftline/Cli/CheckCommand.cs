@@ -11,13 +11,27 @@ internal sealed class CheckCommand(CommandContext context)
     /// <summary>The command-line definition.</summary>
     public Command Build()
     {
-        var config = new Argument<string>("CONFIG") { Description = "JSON configuration file" };
-        var command = new Command("check", "Validate a configuration and print what would run") { config };
-        command.SetAction(result => Run(result.GetValue(config)!));
+        var config = new Argument<string?>("CONFIG") { Description = "JSON configuration file", Arity = ArgumentArity.ZeroOrOne, HelpName = "FILE" };
+        var list = new Option<bool>("--list") { Description = "Print every option with its built-in value and meaning, then stop" };
+        var command = new Command("check", "Validate a configuration (every section, the worker's too) and print what would run") { config, list };
+        command.SetAction(result =>
+        {
+            if (result.GetValue(list))
+            {
+                OptionList.Write(context.Out);
+                return ExitCode.Ok;
+            }
+            if (result.GetValue(config) is not { } path)
+            {
+                context.Error.WriteLine("driftline: check needs a configuration file (driftline check FILE), or --list for every option");
+                return ExitCode.Usage;
+            }
+            return Run(path);
+        });
         return command;
     }
 
-    /// <summary>Validates <paramref name="path"/>; returns the exit code.</summary>
+    /// <summary>Validates <paramref name="path"/> as <c>run</c> would (the Kafka and Worker sections too); returns the exit code.</summary>
     public int Run(string path)
     {
         if (Directory.Exists(path))
@@ -26,12 +40,16 @@ internal sealed class CheckCommand(CommandContext context)
             context.Error.WriteLine($"driftline: '{path}' is a folder; give the configuration file (JSON), such as config/default.json");
             return ExitCode.Config;
         }
-        var options = ConfigLoader.Load(path, context.Environment, out var errors);
-        if (options is null)
+        var settings = RunSettings.Load(path, context.Environment, new Dictionary<string, string?>(), out var errors);
+        if (settings is null)
         {
             return ConfigErrors.Report(context.Error, path, errors);
         }
-        Describe(options, context.Out);
+        Describe(settings.Core, context.Out);
+        var k = settings.Kafka;
+        context.Out.WriteLine(k.UsesKafka
+            ? $"Worker (run): group {k.Group} on {k.Bootstrap}, events from {k.EventsTopic}{(k.LabelsTopic is null ? "" : $", labels from {k.LabelsTopic}")}, predictions to {k.PredictionsTopic}."
+            : "Worker (run): no Kafka bootstrap, so events on standard input and predictions on standard output.");
         context.Out.WriteLine($"{path}: valid.");
         return ExitCode.Ok;
     }

@@ -5,13 +5,17 @@ namespace Driftline.Cli;
 /// <summary>Prints configuration mistakes the same way for every command.</summary>
 internal static class ConfigErrors
 {
-    /// <summary>Writes each error on its own line, naming the option and the fix, and returns <see cref="ExitCode.Config"/>.</summary>
+    /// <summary>
+    /// Writes each error on one line of its own, naming where it was set (the file, or the
+    /// environment variable), the option and the fix, and returns <see cref="ExitCode.Config"/>.
+    /// An error of unknown origin is put on <paramref name="path"/>, the configuration being loaded.
+    /// </summary>
     public static int Report(TextWriter error, string? path, IReadOnlyList<OptionError> errors)
     {
-        error.WriteLine(path is null ? "driftline: the configuration is invalid:" : $"driftline: the configuration in '{path}' is invalid:");
         foreach (var e in errors)
         {
-            error.WriteLine($"  {e}");
+            string? source = e.Source ?? (path is null ? null : $"config {path}");
+            error.WriteLine(string.IsNullOrEmpty(source) ? $"driftline: {e}" : $"driftline: {source}: {e}");
         }
         return ExitCode.Config;
     }

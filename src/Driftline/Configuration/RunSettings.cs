@@ -21,34 +21,36 @@ internal sealed record RunSettings(DriftlineOptions Core, KafkaOptions Kafka, Wo
     /// </summary>
     public static RunSettings? Load(string? configPath, IDictionary<string, string?>? environment, IReadOnlyDictionary<string, string?> overrides, out IReadOnlyList<OptionError> errors)
     {
-        var root = ConfigLoader.Build(configPath, environment, out var fileError);
+        var root = ConfigLoader.Build(configPath, environment, out var sources, out errors);
         if (root is null)
         {
-            errors = [fileError!];
+            return null;
+        }
+        // Unknown keys and unreadable values in any section first: binding would only fail on them.
+        var structure = OptionSchema.Check(root, sources);
+        if (structure.Count > 0)
+        {
+            errors = structure;
             return null;
         }
         var found = new List<OptionError>();
-        var core = ConfigLoader.Bind(root, out var coreErrors);
+        var core = ConfigLoader.Bind(root, sources, out var coreErrors);
         found.AddRange(coreErrors);
-        var kafka = BindSection<KafkaOptions>(root, "Kafka", found);
-        var worker = BindSection<WorkerOptions>(root, "Worker", found);
+        var kafka = BindSection<KafkaOptions>(root, "Kafka", sources, found);
+        var worker = BindSection<WorkerOptions>(root, "Worker", sources, found);
         new ConfigurationBuilder().AddInMemoryCollection(overrides.Where(kv => kv.Value is not null)).Build().Bind(kafka);
-        found.AddRange(kafka.Validate());
-        found.AddRange(worker.Validate());
+        found.AddRange(ConfigLoader.WithSources(kafka.Validate(), root, sources));
+        found.AddRange(ConfigLoader.WithSources(worker.Validate(), root, sources));
         errors = found;
         return found.Count == 0 && core is not null ? new RunSettings(core, kafka, worker) : null;
     }
 
-    private static T BindSection<T>(IConfiguration root, string section, List<OptionError> errors) where T : new()
+    private static T BindSection<T>(IConfiguration root, string section, ConfigSources sources, List<OptionError> errors) where T : new()
     {
         var options = new T();
-        try
+        if (ConfigLoader.BindChecked(root.GetSection(section), options, section, sources) is { } failure)
         {
-            root.GetSection(section).Bind(options, o => o.ErrorOnUnknownConfiguration = true);
-        }
-        catch (InvalidOperationException ex)
-        {
-            errors.Add(new OptionError(section, ex.InnerException is null ? ex.Message : $"{ex.Message} ({ex.InnerException.Message})", "Remove or correct it; `driftline run --help` and docker/README.md list the options"));
+            errors.Add(failure);
         }
         return options;
     }

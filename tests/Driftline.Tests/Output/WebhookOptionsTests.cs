@@ -49,7 +49,7 @@ public sealed class WebhookOptionsTests
     [InlineData("Webhook:MaxRetryDelay", "00:00:00.1", "Webhook:MaxRetryDelay")]
     [InlineData("Webhook:QueueLimit", "0", "Webhook:QueueLimit: 0 is outside 1–1,000,000")]
     [InlineData("Webhook:ShutdownGrace", "-00:00:01", "Webhook:ShutdownGrace")]
-    [InlineData("Webhook:Retries", "3", "'Retries'")]
+    [InlineData("Webhook:Retries", "3", "unknown option Webhook:Retries")]
     public void Bind_BadValue_NamesTheOption(string key, string value, string expected)
     {
         var options = Bind(new() { ["Webhook:Url"] = "http://127.0.0.1:9/alerts", [key] = value }, out var errors);
