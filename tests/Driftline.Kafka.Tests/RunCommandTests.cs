@@ -49,6 +49,47 @@ public sealed class RunCommandTests
     }
 
     [Fact]
+    public async Task Run_PlainHttpWebhook_WarnsOnceAtStart()
+    {
+        // Issue 12 item 13. The metrics port is taken, so the worker stops right after start-up.
+        using var dir = new TempDir();
+        using var taken = new System.Net.Sockets.TcpListener(System.Net.IPAddress.Loopback, 0);
+        taken.Start();
+        int port = ((System.Net.IPEndPoint)taken.LocalEndpoint).Port;
+        string host = $"alerts-{Guid.NewGuid():N}.example.com";
+        var env = new Dictionary<string, string?>
+        {
+            ["DRIFTLINE_Worker__MetricsPort"] = port.ToString(System.Globalization.CultureInfo.InvariantCulture),
+            ["DRIFTLINE_Webhook__Url"] = $"http://{host}/hook?token=abc",
+        };
+        using var log = new LogCapture();
+        var (code, _, error) = await RunAsync(["run", "--bootstrap", "127.0.0.1:9", "--checkpoint-dir", dir.Path], env);
+        Assert.True(code == ExitCode.Config, error);
+        var warning = Assert.Single(log.Messages(Serilog.Events.LogEventLevel.Warning), m => m.Contains(host, StringComparison.Ordinal));
+        Assert.Contains("plain http://", warning, StringComparison.Ordinal);
+        Assert.DoesNotContain("token=abc", warning, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task Run_HttpsWebhook_NoWarning()
+    {
+        using var dir = new TempDir();
+        using var taken = new System.Net.Sockets.TcpListener(System.Net.IPAddress.Loopback, 0);
+        taken.Start();
+        int port = ((System.Net.IPEndPoint)taken.LocalEndpoint).Port;
+        string host = $"alerts-{Guid.NewGuid():N}.example.com";
+        var env = new Dictionary<string, string?>
+        {
+            ["DRIFTLINE_Worker__MetricsPort"] = port.ToString(System.Globalization.CultureInfo.InvariantCulture),
+            ["DRIFTLINE_Webhook__Url"] = $"https://{host}/hook",
+        };
+        using var log = new LogCapture();
+        var (code, _, error) = await RunAsync(["run", "--bootstrap", "127.0.0.1:9", "--checkpoint-dir", dir.Path], env);
+        Assert.True(code == ExitCode.Config, error);
+        Assert.DoesNotContain(log.Messages(Serilog.Events.LogEventLevel.Warning), m => m.Contains(host, StringComparison.Ordinal));
+    }
+
+    [Fact]
     public async Task Run_AutoCommitTurnedOn_IsRefusedWithTheFix()
     {
         var env = new Dictionary<string, string?> { ["DRIFTLINE_Kafka__Client__enable.auto.commit"] = "true" };

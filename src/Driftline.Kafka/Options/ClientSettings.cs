@@ -92,16 +92,44 @@ internal static class ClientSettings
         return config;
     }
 
-    /// <summary>The pass-through settings with secrets masked, for the start-up log.</summary>
-    public static IReadOnlyDictionary<string, string> Masked(KafkaOptions options) =>
-        options.Client.ToDictionary(kv => kv.Key, kv => IsSecret(kv.Key) ? "*****" : kv.Value, StringComparer.Ordinal);
+    /// <summary>Shown in place of a secret value.</summary>
+    public const string Mask = "*****";
 
-    /// <summary>True for settings whose value must never be logged.</summary>
-    public static bool IsSecret(string name) =>
-        name.Contains("password", StringComparison.OrdinalIgnoreCase)
-        || name.Contains("secret", StringComparison.OrdinalIgnoreCase)
-        || name.Contains("sasl.jaas", StringComparison.OrdinalIgnoreCase)
-        || name.Contains("sasl.oauthbearer.config", StringComparison.OrdinalIgnoreCase);
+    /// <summary>
+    /// The pass-through settings with secrets masked, for the start-up log: every setting
+    /// <see cref="IsSecret"/> names, and any value holding a PEM block whatever its name.
+    /// </summary>
+    public static IReadOnlyDictionary<string, string> Masked(KafkaOptions options) =>
+        options.Client.ToDictionary(kv => kv.Key, kv => IsSecret(kv.Key) || HoldsPem(kv.Value) ? Mask : kv.Value, StringComparer.Ordinal);
+
+    /// <summary>
+    /// True for librdkafka settings whose value can hold a secret and must never be logged
+    /// (checked against every property in librdkafka's CONFIGURATION.md): PEM contents
+    /// (<c>ssl.key.pem</c>, <c>ssl.certificate.pem</c>, <c>ssl.ca.pem</c>, <c>https.ca.pem</c>,
+    /// <c>sasl.oauthbearer.assertion.private.key.pem</c>, the <c>ssl_key</c>,
+    /// <c>ssl_certificate</c> and <c>ssl_ca</c> objects), passwords and passphrases
+    /// (<c>sasl.password</c>, <c>ssl.key.password</c>, <c>ssl.keystore.password</c>,
+    /// <c>…private.key.passphrase</c>), client secrets (<c>sasl.oauthbearer.client.secret</c>
+    /// and its alias), <c>sasl.oauthbearer.config</c> (may carry a token or a secret) and the
+    /// Java-style <c>sasl.jaas.config</c>. Certificates are public, but are masked with the rest
+    /// of PEM contents: a long block says nothing an operator needs. Names are matched
+    /// ignoring case, and by pattern, so a secret added by a later librdkafka under a usual name
+    /// is masked too. Paths (<c>ssl.key.location</c>, <c>sasl.kerberos.keytab</c>) and user
+    /// names stay visible.
+    /// </summary>
+    public static bool IsSecret(string name)
+    {
+        string n = name.Trim().ToLowerInvariant();
+        return n.EndsWith(".pem", StringComparison.Ordinal)
+            || n is "ssl_key" or "ssl_certificate" or "ssl_ca" or "sasl.oauthbearer.config"
+            || n.Contains("password", StringComparison.Ordinal)
+            || n.Contains("passphrase", StringComparison.Ordinal)
+            || n.Contains("secret", StringComparison.Ordinal)
+            || n.Contains("jaas", StringComparison.Ordinal)
+            || n.Contains("private.key", StringComparison.Ordinal) && !n.EndsWith(".file", StringComparison.Ordinal);
+    }
+
+    private static bool HoldsPem(string? value) => value is not null && value.Contains("-----BEGIN", StringComparison.Ordinal);
 
     private static Dictionary<string, string> Base(KafkaOptions options)
     {

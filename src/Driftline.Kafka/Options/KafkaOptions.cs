@@ -71,7 +71,8 @@ internal sealed class KafkaOptions
 
     /// <summary>
     /// Any other librdkafka setting, passed through as given (security.protocol, sasl.*,
-    /// ssl.*, timeouts). Values whose name holds password, secret or sasl.jaas are never logged.
+    /// ssl.*, timeouts). Values that can hold a secret (PEM contents, passwords, passphrases,
+    /// client secrets, sasl.oauthbearer.config, sasl.jaas.config) are never logged; see <see cref="ClientSettings.IsSecret"/>.
     /// <c>enable.auto.commit</c> and <c>enable.auto.offset.store</c> are forced off.
     /// </summary>
     public Dictionary<string, string> Client { get; set; } = new(StringComparer.Ordinal);

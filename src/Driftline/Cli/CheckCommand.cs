@@ -79,6 +79,10 @@ internal sealed class CheckCommand(CommandContext context)
         o.WriteLine(w.Address() is { } hook
             ? $"Webhook: each alert POSTed to {hook.Scheme}://{hook.Authority}/…, up to {w.MaxAttempts} attempts of at most {w.Timeout.TotalSeconds:0.###} s each, backing off from {w.FirstRetryDelay.TotalSeconds:0.###} s to {w.MaxRetryDelay.TotalSeconds:0.###} s; at most {w.QueueLimit:N0} alerts wait, {w.ShutdownGrace.TotalSeconds:0.###} s to drain at shutdown."
             : "Webhook: off.");
+        if (w.Address() is { Scheme: "http" })
+        {
+            o.WriteLine("  warning: plain http://, so alerts and any token in the address cross the network unencrypted; use https://.");
+        }
         var rules = options.EffectiveAlerts;
         o.WriteLine(rules.Count == 0 ? "Alerts: none." : $"Alerts{(options.Alerts is null ? " (defaults)" : "")}:");
         foreach (var r in rules)

@@ -81,6 +81,11 @@ internal sealed class RunCommand(CommandContext context)
 
     private async Task<int> RunKafkaAsync(KafkaOptions kafka, DriftlineOptions core, WorkerOptions host, CancellationToken stop)
     {
+        if (core.Webhook.Address() is { Scheme: "http" } plain)
+        {
+            // Once per start, not per alert: the operator needs to know, not to be flooded.
+            Log.Warning("Webhook:Url {Host} is plain http://: alerts, and any token in the address, cross the network unencrypted; use https://", plain.Authority);
+        }
         // Alerts also go to the webhook when one is configured; its queue never blocks the partitions.
         await using var webhook = core.Webhook.Address() is not null ? new WebhookAlertSink(core.Webhook) : null;
         var worker = new KafkaWorker(kafka, core) { AlertObserver = webhook is null ? null : a => webhook.Enqueue(a) };

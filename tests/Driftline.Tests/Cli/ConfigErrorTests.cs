@@ -195,6 +195,17 @@ public sealed class ConfigErrorTests
         Assert.StartsWith("driftline: environment DRIFTLINE_Model__HashBits: Model:HashBits: 40 is outside 10–28.", run.Error, StringComparison.Ordinal);
     }
 
+    [Theory]
+    [InlineData("http://alerts.example.com/hook", true)]
+    [InlineData("https://alerts.example.com/hook", false)]
+    public async Task Check_PlainHttpWebhook_SaysItIsUnencrypted(string url, bool warned)
+    {
+        using var dir = new TempFolder();
+        var (run, _) = await CheckAsync(dir, "{\"Webhook\":{\"Url\":\"" + url + "\"}}");
+        Assert.True(run.ExitCode == 0, run.Error);
+        Assert.Equal(warned ? 1 : 0, run.Out.Split('\n').Count(l => l.Contains("plain http://", StringComparison.Ordinal)));
+    }
+
     [Fact]
     public async Task Check_List_PrintsEveryOptionWithDefaultAndMeaning()
     {
