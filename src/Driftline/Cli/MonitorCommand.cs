@@ -21,8 +21,16 @@ internal sealed class MonitorCommand(CommandContext context)
             Arity = ArgumentArity.ZeroOrMore,
         };
         var command = new Command("monitor", "Watch the calibration of an external model's probabilities") { file, output, config };
-        command.SetAction((result, token) => new ReplayCommand(context) { MonitorOnly = true }
-            .RunAsync(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config) ?? [], token, null));
+        command.SetAction((result, token) =>
+        {
+            string path = result.GetValue(file)!;
+            if (path != "-" && MonitorInputCheck.RecordsWithoutProbability(path) is > 0 and var records)
+            {
+                context.Error.WriteLine($"driftline: none of the first {records:N0} records in '{path}' carries a probability \"p\", so there is nothing to monitor; monitor grades another model's probabilities. To score these events with Driftline's own model, run: driftline replay {path} --out DIR");
+                return Task.FromResult(ExitCode.Input);
+            }
+            return new ReplayCommand(context) { MonitorOnly = true }.RunAsync(path, result.GetValue(output)!, result.GetValue(config) ?? [], token, null);
+        });
         return command;
     }
 }

@@ -53,6 +53,19 @@ internal sealed class RunCommand(CommandContext context)
         return command;
     }
 
+    /// <summary>The command-line flag of each <see cref="KafkaOptions"/> option <see cref="Build"/> offers.</summary>
+    private static readonly Dictionary<string, string> Flags = new(StringComparer.Ordinal)
+    {
+        [nameof(KafkaOptions.Bootstrap)] = "--bootstrap",
+        [nameof(KafkaOptions.Group)] = "--group",
+        [nameof(KafkaOptions.EventsTopic)] = "--events-topic",
+        [nameof(KafkaOptions.LabelsTopic)] = "--labels-topic",
+        [nameof(KafkaOptions.PredictionsTopic)] = "--predictions-topic",
+        [nameof(KafkaOptions.AlertsTopic)] = "--alerts-topic",
+        [nameof(KafkaOptions.DeadLetterTopic)] = "--dead-letter-topic",
+        [nameof(KafkaOptions.CheckpointDir)] = "--checkpoint-dir",
+    };
+
     /// <summary>Runs the worker; returns the exit code. <paramref name="overrides"/> are Kafka options from the command line (null = not given).</summary>
     public async Task<int> RunAsync(string? configPath, IReadOnlyDictionary<string, string?> overrides, CancellationToken cancellation)
     {
@@ -62,6 +75,21 @@ internal sealed class RunCommand(CommandContext context)
             return ConfigErrors.Report(context.Error, configPath, errors);
         }
         var (core, kafka, worker) = settings;
+        if (!kafka.UsesKafka)
+        {
+            // Without a broker these would be ignored and the worker would read standard input instead.
+            var given = overrides.Where(kv => kv.Value is not null && kv.Key != nameof(KafkaOptions.Bootstrap)).Select(kv => Flags[kv.Key]).ToList();
+            if (given.Count > 0)
+            {
+                await context.Error.WriteLineAsync($"driftline: {string.Join(", ", given)} {(given.Count == 1 ? "needs" : "need")} a Kafka broker: give --bootstrap HOST:PORT (or Kafka:Bootstrap in the configuration), or leave {(given.Count == 1 ? "it" : "them")} out to read events on standard input").ConfigureAwait(false);
+                return ExitCode.Usage;
+            }
+            if (settings.KafkaSectionWithoutBootstrap)
+            {
+                return ConfigErrors.Report(context.Error, configPath,
+                    [new("Kafka:Bootstrap", "is not set, so the Kafka section would be ignored and events read from standard input", "Set Kafka:Bootstrap (or --bootstrap, or DRIFTLINE_Kafka__Bootstrap), or set it to \"\" to read standard input on purpose")]);
+            }
+        }
         if (worker.LogFormat == "json")
         {
             Log.Logger = new LoggerConfiguration().WriteTo.Console(new CompactJsonFormatter(), standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();

@@ -15,6 +15,12 @@ namespace Driftline.Configuration;
 internal sealed record RunSettings(DriftlineOptions Core, KafkaOptions Kafka, WorkerOptions Worker)
 {
     /// <summary>
+    /// True when the configuration has a <c>Kafka</c> section with options but no
+    /// <c>Kafka:Bootstrap</c> key at all (an explicit empty one means "standard input on purpose").
+    /// </summary>
+    public bool KafkaSectionWithoutBootstrap { get; init; }
+
+    /// <summary>
     /// Loads and validates. Returns the settings, or null with every mistake in
     /// <paramref name="errors"/>. <paramref name="overrides"/> are <c>Kafka</c> options given on
     /// the command line (null values were not given).
@@ -42,7 +48,9 @@ internal sealed record RunSettings(DriftlineOptions Core, KafkaOptions Kafka, Wo
         found.AddRange(ConfigLoader.WithSources(kafka.Validate(), root, sources));
         found.AddRange(ConfigLoader.WithSources(worker.Validate(), root, sources));
         errors = found;
-        return found.Count == 0 && core is not null ? new RunSettings(core, kafka, worker) : null;
+        return found.Count == 0 && core is not null
+            ? new RunSettings(core, kafka, worker) { KafkaSectionWithoutBootstrap = root.GetSection("Kafka").GetChildren().Any() && root.GetSection("Kafka:Bootstrap").Value is null }
+            : null;
     }
 
     private static T BindSection<T>(IConfiguration root, string section, ConfigSources sources, List<OptionError> errors) where T : new()
