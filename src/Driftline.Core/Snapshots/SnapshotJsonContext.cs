@@ -8,7 +8,7 @@ namespace Driftline.Core.Snapshots;
 /// </summary>
 [JsonSourceGenerationOptions(
     PropertyNamingPolicy = JsonKnownNamingPolicy.SnakeCaseLower,
-    UseStringEnumConverter = true,
+    Converters = [typeof(EnumNamesOnly)],
     NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
     // A repeated property is damage (or an edit gone wrong), not "the last one wins".
     AllowDuplicateProperties = false)]

@@ -14,7 +14,7 @@ internal sealed class CheckpointStore
     private static readonly JsonSerializerOptions Json = new()
     {
         PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower,
-        Converters = { new JsonStringEnumConverter() },
+        Converters = { new EnumNamesOnly() },
         NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
     };
 

@@ -30,6 +30,25 @@ public sealed class InspectCommandTests(DemoReplay replay) : IClassFixture<DemoR
         Assert.Equal(3, table.Count());
     }
 
+    [Theory]
+    [InlineData("\"learner\":\"AdaGrad\"", "\"learner\":\"5\"")]
+    [InlineData("\"learner\":\"AdaGrad\"", "\"learner\":1")]
+    [InlineData("\"scaling\":\"Online\"", "\"scaling\":\"3\"")]
+    public async Task Inspect_EnumSavedAsANumber_IsRefusedAsDamaged(string name, string number)
+    {
+        // Issue 12 item 10 (names only, everywhere an enum is bound): a saved model's learner
+        // or scaling mode given as a number used to load as a member that does not exist.
+        using var dir = new TempFolder();
+        string json = File.ReadAllText(Path.Combine(replay.Output, "model.json"));
+        Assert.Contains(name, json, StringComparison.Ordinal);
+        File.WriteAllText(dir.File("m.json"), json.Replace(name, number, StringComparison.Ordinal));
+
+        var (code, _, stderr) = await TestCli.RunAsync("inspect", dir.File("m.json"));
+
+        Assert.Equal(4, code);
+        Assert.Single(stderr.TrimEnd().Split('\n'));
+    }
+
     [Fact]
     public async Task Inspect_NotAModel_IsAnInputError()
     {

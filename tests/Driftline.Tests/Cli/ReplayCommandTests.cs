@@ -90,7 +90,7 @@ public sealed class ReplayCommandTests
     [InlineData("""{"Model":{"HashBitz":20}}""", "HashBitz")]
     [InlineData("""{"Model":{"Learner":"Newton"}}""", "Model:Learner")]
     [InlineData("""{"Alerts":[{"Name":"x","Metric":"Ece","Raise":0.05,"Clear":0.08}]}""", "Alerts:0:Clear")]
-    [InlineData("""{"Model": """, "--config")]
+    [InlineData("""{"Model": """, "not valid JSON")]
     public async Task Replay_BadConfig_NamesTheOptionAndExitsWithTheConfigCode(string json, string option)
     {
         using var dir = new TempFolder();
@@ -112,13 +112,13 @@ public sealed class ReplayCommandTests
     }
 
     [Theory]
-    [InlineData("frobnicate")]
-    [InlineData("replay", "x.jsonl")]
-    public async Task Run_BadUsage_ExitsWithTheUsageCode(params string[] args)
+    [InlineData("commands are replay, run", "frobnicate")]
+    [InlineData("driftline replay --help", "replay", "x.jsonl")]
+    public async Task Run_BadUsage_ExitsWithTheUsageCode(string hint, params string[] args)
     {
         var run = await CliRun.RunAsync(args);
         Assert.Equal(2, run.ExitCode);
-        Assert.Contains("driftline --help", run.Error, StringComparison.Ordinal);
+        Assert.Contains(hint, run.Error, StringComparison.Ordinal);
     }
 
     [Fact]
