@@ -162,20 +162,21 @@ internal static class OptionSchema
                 MayBeEmpty = underlying is not null || type == typeof(string), Property = property, Default = value,
             };
         }
-        if (type.IsGenericType && type.GetGenericTypeDefinition() == typeof(Dictionary<,>))
+        if (Interface(type, typeof(IDictionary<,>)) is { } dictionary)
         {
-            var entry = Build("<name>", path + ":<name>", type.GetGenericArguments()[1], null, null);
+            var entry = Build("<name>", path + ":<name>", dictionary.GetGenericArguments()[1], null, null);
             return new OptionNode { Name = name, Path = path, Shape = OptionShape.Map, Type = type, Property = property, Default = value, Children = [entry] };
         }
-        if (type.IsGenericType && type.GetGenericTypeDefinition() == typeof(List<>))
+        if ((type.IsArray ? type.GetElementType() : Interface(type, typeof(IEnumerable<>))?.GetGenericArguments()[0]) is { } itemType)
         {
-            var itemType = type.GetGenericArguments()[0];
-            var item = Build("<n>", path + ":<n>", itemType, IsValue(itemType) ? null : Activator.CreateInstance(itemType), null);
+            var item = Build("<n>", path + ":<n>", itemType, IsValue(itemType) || itemType.IsAbstract || itemType.GetConstructor(Type.EmptyTypes) is null ? null : Activator.CreateInstance(itemType), null);
             return new OptionNode { Name = name, Path = path, Shape = OptionShape.List, Type = type, Property = property, Default = value, Children = [item] };
         }
         if (typeof(IEnumerable).IsAssignableFrom(type))
         {
-            throw new NotSupportedException($"options of type {type} are not described; add them to {nameof(OptionSchema)}");
+            // A collection the binder may fill in its own way: take any entries, check none.
+            var any = new OptionNode { Name = "<name>", Path = path + ":<name>", Shape = OptionShape.Value, Type = typeof(string), MayBeEmpty = true };
+            return new OptionNode { Name = name, Path = path, Shape = OptionShape.Map, Type = type, Property = property, Default = value, Children = [any] };
         }
         return new OptionNode
         {
@@ -184,6 +185,12 @@ internal static class OptionSchema
         };
     }
 
+    /// <summary>One value, as the binder sees it: anything its type converter reads from text (numbers, enums, TimeSpan, Uri…).</summary>
     private static bool IsValue(Type type) =>
-        type.IsPrimitive || type.IsEnum || type == typeof(string) || type == typeof(TimeSpan) || type == typeof(decimal);
+        type.IsPrimitive || type.IsEnum || type == typeof(string) || type == typeof(TimeSpan) || type == typeof(decimal)
+        || (!typeof(IEnumerable).IsAssignableFrom(type) && System.ComponentModel.TypeDescriptor.GetConverter(type).CanConvertFrom(typeof(string)));
+
+    private static Type? Interface(Type type, Type generic) =>
+        type.IsGenericType && type.GetGenericTypeDefinition() == generic ? type
+            : type.GetInterfaces().FirstOrDefault(i => i.IsGenericType && i.GetGenericTypeDefinition() == generic);
 }
