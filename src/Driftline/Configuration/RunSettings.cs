@@ -15,8 +15,8 @@ namespace Driftline.Configuration;
 internal sealed record RunSettings(DriftlineOptions Core, KafkaOptions Kafka, WorkerOptions Worker)
 {
     /// <summary>
-    /// True when the configuration has a <c>Kafka</c> section with options but no
-    /// <c>Kafka:Bootstrap</c> key at all (an explicit empty one means "standard input on purpose").
+    /// True when the configuration file has a <c>Kafka</c> section with options but nothing sets
+    /// <c>Kafka:Bootstrap</c> at all (an explicit empty one means "standard input on purpose").
     /// </summary>
     public bool KafkaSectionWithoutBootstrap { get; init; }
 
@@ -49,9 +49,18 @@ internal sealed record RunSettings(DriftlineOptions Core, KafkaOptions Kafka, Wo
         found.AddRange(ConfigLoader.WithSources(worker.Validate(), root, sources));
         errors = found;
         return found.Count == 0 && core is not null
-            ? new RunSettings(core, kafka, worker) { KafkaSectionWithoutBootstrap = root.GetSection("Kafka").GetChildren().Any() && root.GetSection("Kafka:Bootstrap").Value is null }
+            ? new RunSettings(core, kafka, worker) { KafkaSectionWithoutBootstrap = KafkaInFileOnly(root, sources) }
             : null;
     }
+
+    /// <summary>
+    /// The file sets Kafka options but nothing sets <c>Kafka:Bootstrap</c>. Environment defaults
+    /// (the Docker image sets <c>DRIFTLINE_Kafka__CheckpointDir</c>) do not count: they are there
+    /// for when a broker is given, and the image also serves standard input.
+    /// </summary>
+    private static bool KafkaInFileOnly(IConfiguration root, ConfigSources sources) =>
+        root.GetSection("Kafka:Bootstrap").Value is null
+        && root.GetSection("Kafka").AsEnumerable().Any(kv => kv.Value is not null && !sources.Variables.ContainsKey(kv.Key));
 
     private static T BindSection<T>(IConfiguration root, string section, ConfigSources sources, List<OptionError> errors) where T : new()
     {

@@ -129,6 +129,16 @@ public sealed class CommandLineTests
     }
 
     [Fact]
+    public async Task Run_KafkaDefaultsFromTheEnvironmentOnly_StillReadsStandardInput()
+    {
+        // The Docker image sets DRIFTLINE_Kafka__CheckpointDir and runs `run`; with no broker it reads stdin.
+        var env = new Dictionary<string, string?> { ["DRIFTLINE_Kafka__CheckpointDir"] = "/var/lib/driftline/checkpoints", ["DRIFTLINE_Worker__MetricsAddress"] = "*" };
+        var run = await CliRun.RunAsync(["run"], env, "{\"id\":\"a\",\"features\":{\"x\":1}}\n"u8.ToArray());
+        Assert.True(run.ExitCode == ExitCode.Ok, run.Error);
+        Assert.Contains("\"id\":\"a\"", run.Out, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task Monitor_EventsFile_StopsEarlyWithAHintToReplay()
     {
         // Issue 14 item 5: an events file used to give tens of thousands of dead letters and success.
