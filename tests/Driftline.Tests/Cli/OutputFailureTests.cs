@@ -166,7 +166,8 @@ public sealed class OutputFailureTests
     public async Task Command_OutIsAFile_SaysSo(string command)
     {
         using var dir = new TempFolder();
-        File.WriteAllText(dir.File("in.jsonl"), Events(10));
+        // monitor refuses a file of events with no "p" before it looks at --out, so it gets probabilities.
+        File.WriteAllText(dir.File("in.jsonl"), command == "monitor" ? string.Concat(Enumerable.Range(0, 10).Select(i => $"{{\"id\":\"o-{i}\",\"p\":0.3,\"label\":{i % 2}}}\n")) : Events(10));
         File.WriteAllText(dir.File("out"), "not a folder");
         var run = await CliRun.RunAsync(command, dir.File("in.jsonl"), "--out", dir.File("out"));
         Assert.Equal(4, run.ExitCode);
