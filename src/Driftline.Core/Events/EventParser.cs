@@ -17,7 +17,7 @@ namespace Driftline.Core.Events;
 /// string <c>id</c>, has <c>features</c> that is not an object, a feature value that is not a
 /// string, number, boolean, array of strings or null, a number that is not finite, a
 /// <c>label</c> other than 0, 1, true or false, a <c>p</c> that is not a finite number in
-/// [0, 1], or neither features, label nor p. Unknown top-level fields are ignored; a
+/// [0, 1], a string with an unpaired UTF-16 surrogate escape, or neither features, label nor p. Unknown top-level fields are ignored; a
 /// <c>null</c> field counts as absent.
 /// </remarks>
 internal sealed class EventParser
@@ -52,6 +52,9 @@ internal sealed class EventParser
         }
     }
 
+    /// <summary>The reason given for a string with an unpaired surrogate escape such as <c>"\ud800"</c>.</summary>
+    public const string LoneSurrogate = "not valid JSON: a string holds an unpaired UTF-16 surrogate escape (\\uD800 to \\uDFFF must come in pairs, RFC 8259 section 8.2)";
+
     /// <summary>Creates a parser.</summary>
     public EventParser() => _keyLookup = _keys.GetAlternateLookup<ReadOnlySpan<char>>();
 
@@ -77,6 +80,13 @@ internal sealed class EventParser
         catch (JsonException ex)
         {
             error = "not valid JSON: " + FirstSentence(ex.Message);
+        }
+        catch (InvalidOperationException)
+        {
+            // The reader checks an escape's hex digits, not that \uD800-\uDFFF comes in pairs;
+            // unescaping one that does not (GetString, CopyString, ValueTextEquals) throws this.
+            // Every other call here is guarded by a token-type check, so this is the only cause.
+            error = LoneSurrogate;
         }
         return error is null;
     }

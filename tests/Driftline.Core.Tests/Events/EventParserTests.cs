@@ -98,4 +98,32 @@ public sealed class EventParserTests
         Assert.True(Parse("""{"id":"b","key":"north","features":{}}""", out _));
         Assert.Same(first, _record.Key);
     }
+
+    // RFC 8259 section 8.2: an escape \uD800-\uDFFF that is not half of a pair names no
+    // Unicode character; System.Text.Json throws InvalidOperationException when it unescapes one.
+    [Theory]
+    [InlineData("""{"id":"a\ud800","features":{"x":1}}""")]
+    [InlineData("""{"id":"a","key":"k\udc00","features":{"x":1}}""")]
+    [InlineData("""{"id":"a","time":"2026-03-04T18:22:05Z\ud800","features":{"x":1}}""")]
+    [InlineData("""{"id":"a","features":{"zo\ud800ne":"north"}}""")]
+    [InlineData("""{"id":"a","features":{"zo\ud800ne":1}}""")]
+    [InlineData("""{"id":"a","features":{"zone":"no\udfffrth"}}""")]
+    [InlineData("""{"id":"a","features":{"tags":["ok","b\ud800"]}}""")]
+    [InlineData("""{"i\ud800d":"a","features":{"x":1}}""")]
+    [InlineData("""{"id":"a","lab\udbffel":1,"features":{"x":1}}""")]
+    [InlineData("""{"id":"a","features":{"zone":"\ud800\ud800"}}""")]
+    public void TryParse_LoneSurrogateEscape_IsRejectedWithReason(string json)
+    {
+        Assert.False(Parse(json, out var error));
+        Assert.Contains("surrogate", error, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void TryParse_PairedSurrogateEscape_IsAccepted()
+    {
+        // U+1F355 as the pair \uD83C\uDF55 (RFC 8259 section 7) equals its UTF-8 bytes.
+        Assert.True(Parse("""{"id":"a\ud83c\udf55","features":{"dish":"\ud83c\udf55"}}""", out var error), error);
+        Assert.Equal("a\U0001F355", _record.Id);
+        Assert.Equal(FeatureHash.Value(FeatureHash.Name("dish"u8), Encoding.UTF8.GetBytes("\U0001F355")), _record.Features[0].Hash);
+    }
 }
