@@ -68,7 +68,7 @@ public sealed class PartitionDrainerTests
         var outputs = new KafkaOutputs(producer, "pd-predictions", null, "pd-dead", counts, new DeliveryFailure());
         var state = new PartitionState(partition, new ScoringEngine(new DriftlineOptions(), outputs), checkpoint: null, hasLabels: false)
         {
-            Processor = new RecordProcessor(outputs, counts),
+            Processor = new RecordProcessor(outputs, counts, new Driftline.Core.Options.InputOptions()),
             Counts = counts,
         };
         for (int i = 0; i < events; i++)

@@ -7,7 +7,7 @@ namespace Driftline.Kafka.Tests;
 public sealed class WorkerPoisonRecordTests
 {
     // An unpaired UTF-16 surrogate escape (RFC 8259 section 8.2) in each place the parser
-    // unescapes a string. Before the fix each one crashed the worker before its offset was
+    // unescapes a string, and one message over the size limit. Before the fix each one crashed the worker before its offset was
     // committed, so every restart read it again.
     private static readonly string[] Poison =
     [
@@ -18,6 +18,8 @@ public sealed class WorkerPoisonRecordTests
         """{"id":"p5","features":{"zone":"no\udfffrth"}}""",
         """{"id":"p6","features":{"tags":["ok","b\ud800"]}}""",
         """{"i\ud800d":"p7","features":{"x":1}}""",
+        // Over Input:MaxLineBytes (4,096 here): refused before it is parsed.
+        "{\"id\":\"big\",\"features\":{\"note\":\"" + new string('n', 10_000) + "\"}}",
     ];
 
     [Fact]
@@ -56,6 +58,7 @@ public sealed class WorkerPoisonRecordTests
                 CheckpointDir = Path.Combine(dir.Path, "checkpoints"),
             },
             Worker = new { MetricsPort = 0 },
+            Input = new { MaxLineBytes = 4096 },
         }));
 
         int scored = good.Count(r => !r.IsLabel);
@@ -69,7 +72,10 @@ public sealed class WorkerPoisonRecordTests
 
         Assert.True(exit == 0, $"exit code {exit} after SIGTERM:\n{worker.Errors}");
         Assert.Equal(Poison.Length + 1, dead.Count);
-        Assert.All(dead, d => Assert.Contains("surrogate", d.GetProperty("reason").GetString(), StringComparison.Ordinal));
+        var reasons = dead.Select(d => d.GetProperty("reason").GetString()!).ToList();
+        // Seven on the events topic and one on the labels topic.
+        Assert.Equal(Poison.Length, reasons.Count(r => r.Contains("surrogate", StringComparison.Ordinal)));
+        Assert.Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"message of {Poison[^1].Length:N0} bytes exceeds Input:MaxLineBytes (4,096)"), reasons);
         Assert.Equal(Poison.Length, dead.Count(d => d.GetProperty("source_topic").GetString() == "poison-events"));
         Assert.Equal(scored, predictions.Select(p => JsonDocument.Parse(p).RootElement.GetProperty("id").GetString()).Distinct().Count());
         Assert.DoesNotContain("Unhandled", worker.Errors, StringComparison.Ordinal);

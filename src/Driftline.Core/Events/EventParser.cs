@@ -30,6 +30,12 @@ internal sealed class EventParser
     private byte[] _nameScratch = new byte[256];
     private byte[] _valueScratch = new byte[256];
 
+    /// <summary>
+    /// Longest id, key, feature name or feature value, in UTF-8 bytes after escapes are
+    /// resolved (<c>Input:MaxTextBytes</c>); a record with a longer one is rejected.
+    /// </summary>
+    public int MaxTextBytes { get; set; } = Options.InputOptions.DefaultMaxTextBytes;
+
     /// <summary>Where the text of feature names and values is recorded for later display; null records nothing.</summary>
     public FeatureNames? Names { get; set; }
 
@@ -115,7 +121,12 @@ internal sealed class EventParser
                 {
                     return "id must be a non-empty string";
                 }
-                record.Id = reader.GetString()!;
+                ReadOnlySpan<byte> id = Unescaped(ref reader, ref _valueScratch);
+                if (id.Length > MaxTextBytes)
+                {
+                    return TooLong("id", id.Length);
+                }
+                record.Id = Encoding.UTF8.GetString(id);
             }
             else if (reader.ValueTextEquals("features"u8))
             {
@@ -160,7 +171,7 @@ internal sealed class EventParser
                 {
                     return "key must be a string";
                 }
-                record.Key = InternKey(ref reader);
+                record.Key = InternKey(ref reader, out error);
             }
             else if (reader.ValueTextEquals("p"u8))
             {
@@ -239,6 +250,10 @@ internal sealed class EventParser
         while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
         {
             ReadOnlySpan<byte> name = Unescaped(ref reader, ref _nameScratch);
+            if (name.Length > MaxTextBytes)
+            {
+                return TooLong("feature name", name.Length);
+            }
             ulong nameHash = FeatureHash.Name(name);
             reader.Read();
             switch (reader.TokenType)
@@ -246,7 +261,10 @@ internal sealed class EventParser
                 case JsonTokenType.Null:
                     break;
                 case JsonTokenType.String:
-                    AddCategorical(ref reader, record, name, nameHash);
+                    if (AddCategorical(ref reader, record, name, nameHash) is { } tooLong)
+                    {
+                        return tooLong;
+                    }
                     break;
                 case JsonTokenType.Number:
                     if (!reader.TryGetDouble(out double x) || !double.IsFinite(x))
@@ -268,7 +286,10 @@ internal sealed class EventParser
                         {
                             return "feature '" + Encoding.UTF8.GetString(name) + "' is an array with a value that is not a string";
                         }
-                        AddCategorical(ref reader, record, name, nameHash);
+                        if (AddCategorical(ref reader, record, name, nameHash) is { } elementTooLong)
+                        {
+                            return elementTooLong;
+                        }
                     }
                     break;
                 default:
@@ -283,9 +304,13 @@ internal sealed class EventParser
     }
 
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    private void AddCategorical(ref Utf8JsonReader reader, ParsedRecord record, scoped ReadOnlySpan<byte> name, ulong nameHash)
+    private string? AddCategorical(ref Utf8JsonReader reader, ParsedRecord record, scoped ReadOnlySpan<byte> name, ulong nameHash)
     {
         ReadOnlySpan<byte> value = Unescaped(ref reader, ref _valueScratch);
+        if (value.Length > MaxTextBytes)
+        {
+            return TooLong("the value of feature '" + Encoding.UTF8.GetString(name) + "'", value.Length);
+        }
         ulong hash = FeatureHash.Value(nameHash, value);
         record.AddFeature(new RawFeature(nameHash, hash, 1.0, RawFeatureKind.Categorical));
         Names?.RecordValue(hash, name, value);
@@ -301,6 +326,7 @@ internal sealed class EventParser
             }
             record.Segment = segment;
         }
+        return null;
     }
 
     // The token's bytes with JSON escapes resolved; points into the input when there are none.
@@ -319,9 +345,15 @@ internal sealed class EventParser
         return scratch.AsSpan(0, written);
     }
 
-    private string InternKey(ref Utf8JsonReader reader)
+    private string? InternKey(ref Utf8JsonReader reader, out string? error)
     {
         ReadOnlySpan<byte> bytes = Unescaped(ref reader, ref _valueScratch);
+        error = null;
+        if (bytes.Length > MaxTextBytes)
+        {
+            error = TooLong("key", bytes.Length);
+            return null;
+        }
         if (bytes.Length > 256)
         {
             return Encoding.UTF8.GetString(bytes);
@@ -339,6 +371,9 @@ internal sealed class EventParser
         }
         return key;
     }
+
+    private string TooLong(string what, int bytes) =>
+        string.Create(System.Globalization.CultureInfo.InvariantCulture, $"{what} is {bytes:N0} bytes, more than Input:MaxTextBytes ({MaxTextBytes:N0})");
 
     private static string FirstSentence(string message)
     {

@@ -12,6 +12,13 @@ internal sealed class DriftlineOptions
     /// <summary>Late labels.</summary>
     public LabelOptions Labels { get; set; } = new();
 
+    /// <summary>
+    /// Size limits on input records. Read by the line reader and the parser, not engine
+    /// state, so left out of snapshots: a restored engine reads with the limits in force now.
+    /// </summary>
+    [JsonIgnore]
+    public InputOptions Input { get; set; } = new();
+
     /// <summary>Rolling measures.</summary>
     public MonitorOptions Monitor { get; set; } = new();
 
@@ -35,6 +42,7 @@ internal sealed class DriftlineOptions
         var errors = new List<OptionError>();
         errors.AddRange(Model.Validate());
         errors.AddRange(Labels.Validate());
+        errors.AddRange(Input.Validate());
         errors.AddRange(Monitor.Validate());
         errors.AddRange(Webhook.Validate());
         var rules = EffectiveAlerts;

@@ -284,7 +284,7 @@ internal sealed class KafkaWorker
             var engine = checkpoint is null ? new ScoringEngine(_core, outputs) : ScoringEngine.Restore(checkpoint.Snapshot, outputs);
             var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels)
             {
-                Processor = new RecordProcessor(outputs, counts),
+                Processor = new RecordProcessor(outputs, counts, _core.Input),
                 Counts = counts,
                 KnownModels = engine.Models.Count,
             };

@@ -1,4 +1,6 @@
+using System.Globalization;
 using Driftline.Core.Events;
+using Driftline.Core.Options;
 using Driftline.Core.Scoring;
 
 namespace Driftline.Kafka.Worker;
@@ -9,9 +11,9 @@ namespace Driftline.Kafka.Worker;
 /// input never stops the worker and never touches a model. One per partition (it reuses
 /// its parse buffers).
 /// </summary>
-internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats)
+internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats, InputOptions input)
 {
-    private readonly EventParser _parser = new();
+    private readonly EventParser _parser = new() { MaxTextBytes = input.MaxTextBytes };
     private readonly ParsedRecord _record = new();
 
     /// <summary>Processes <paramref name="record"/> from <paramref name="topic"/>; returns true when it graded a prediction.</summary>
@@ -23,6 +25,13 @@ internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats)
             _parser.SegmentFeature = engine.Options.Monitor.SegmentBy;
         }
         var value = record.Value.AsSpan();
+        if (value.Length > input.MaxLineBytes)
+        {
+            // The client has the message in memory already; refusing it keeps it off the parser and the outputs.
+            outputs.DeadLetter(string.Create(CultureInfo.InvariantCulture, $"message of {value.Length:N0} bytes exceeds Input:MaxLineBytes ({input.MaxLineBytes:N0})"),
+                topic, partition, record.Offset, record.Key, value[..Math.Min(value.Length, 8_000)]);
+            return false;
+        }
         if (value.Trim(" \t\r\n"u8).IsEmpty)
         {
             outputs.DeadLetter("empty message", topic, partition, record.Offset, record.Key, value);

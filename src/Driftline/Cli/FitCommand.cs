@@ -8,6 +8,7 @@ using Driftline.Core.Options;
 using Driftline.Core.Scoring;
 using Driftline.Core.Snapshots;
 using Driftline.Output;
+using Driftline.Pipeline;
 
 namespace Driftline.Cli;
 
@@ -51,13 +52,13 @@ internal sealed class FitCommand(CommandContext context)
             context.Error.WriteLine(new OutputException(outPath, $"it is a folder; --out names the model file to write, such as {Path.Combine(outPath, ReplayCommand.ModelFile)}").Line);
             return ExitCode.Input;
         }
-        var lines = ReadLines(file);
+        var lines = ReadLines(file, options.Input.MaxLineBytes);
         if (lines is null)
         {
             return ExitCode.Input;
         }
 
-        var parser = new EventParser();
+        var parser = new EventParser { MaxTextBytes = options.Input.MaxTextBytes };
         var record = new ParsedRecord();
         var featurizer = new Featurizer(options.Model);
         var x = new SparseVector();
@@ -66,9 +67,9 @@ internal sealed class FitCommand(CommandContext context)
         // Pass 1: scaling statistics over every event, and the late labels by id.
         foreach (var line in lines)
         {
-            if (!parser.TryParse(line, record, out _))
+            if (line is null || !parser.TryParse(line, record, out _))
             {
-                rejected += line.AsSpan().Trim(" \t"u8).IsEmpty ? 0 : 1;
+                rejected += line is not null && line.AsSpan().Trim(" \t"u8).IsEmpty ? 0 : 1;
                 continue;
             }
             if (record.Kind == RecordKind.Event)
@@ -91,7 +92,7 @@ internal sealed class FitCommand(CommandContext context)
         var labels = new List<double>();
         foreach (var line in lines)
         {
-            if (!parser.TryParse(line, record, out _) || record.Kind != RecordKind.Event)
+            if (line is null || !parser.TryParse(line, record, out _) || record.Kind != RecordKind.Event)
             {
                 continue;
             }
@@ -226,28 +227,28 @@ internal sealed class FitCommand(CommandContext context)
         OutputFile.Write(path, file => SnapshotCodec.Write(snapshot, file), create);
     }
 
-    private List<byte[]>? ReadLines(string file)
+    // The file's lines, each null where it is over Input:MaxLineBytes (skipped, not held).
+    private List<byte[]?>? ReadLines(string file, int maxLineBytes)
     {
         using var input = InputFiles.Open(file, context);
         if (input is null)
         {
             return null;
         }
-        var lines = new List<byte[]>();
-        using var buffered = new MemoryStream();
-        input.CopyTo(buffered);
-        var all = buffered.GetBuffer().AsSpan(0, (int)buffered.Length);
-        while (!all.IsEmpty)
+        var lines = new List<byte[]?>();
+        var splitter = new LineSplitter(maxLineBytes);
+        while (true)
         {
-            int nl = all.IndexOf((byte)'\n');
-            var line = nl < 0 ? all : all[..nl];
-            if (line.Length > 0 && line[^1] == (byte)'\r')
+            splitter.Advance(input.Read(splitter.Space().Span));
+            LineKind found;
+            while ((found = splitter.Next(out var line, out _)) is LineKind.Line or LineKind.Oversized)
             {
-                line = line[..^1];
+                lines.Add(found == LineKind.Line ? line.ToArray() : null);
             }
-            lines.Add(line.ToArray());
-            all = nl < 0 ? [] : all[(nl + 1)..];
+            if (found == LineKind.End)
+            {
+                return lines;
+            }
         }
-        return lines;
     }
 }

@@ -13,6 +13,7 @@ internal sealed class LineBatch
     private int[] _lengths = new int[8192];
     private ParsedRecord[] _records = [];
     private string?[] _errors = [];
+    private string?[] _refused = new string?[8192];
 
     /// <summary>Lines in the batch.</summary>
     public int Count { get; private set; }
@@ -39,7 +40,7 @@ internal sealed class LineBatch
     public string? Error(int i) => _errors[i];
 
     /// <summary>True when line <paramref name="i"/> holds nothing but blanks (skipped, but counted for line numbers).</summary>
-    public bool IsBlank(int i) => Line(i).Trim(" \t"u8).IsEmpty;
+    public bool IsBlank(int i) => _refused[i] is null && Line(i).Trim(" \t"u8).IsEmpty;
 
     /// <summary>Parses every line with <paramref name="parser"/> into the batch's records.</summary>
     public void Parse(EventParser parser)
@@ -56,7 +57,7 @@ internal sealed class LineBatch
         }
         for (int i = 0; i < Count; i++)
         {
-            _errors[i] = IsBlank(i) || parser.TryParse(Line(i), _records[i], out var error) ? null : error;
+            _errors[i] = _refused[i] ?? (IsBlank(i) || parser.TryParse(Line(i), _records[i], out var error) ? null : error);
         }
     }
 
@@ -70,6 +71,13 @@ internal sealed class LineBatch
         Bytes = 0;
     }
 
+    /// <summary>Appends a line refused before parsing (e.g. over the size limit), kept as <paramref name="prefix"/> with <paramref name="reason"/>.</summary>
+    public void AddRejected(ReadOnlySpan<byte> prefix, string reason)
+    {
+        Add(prefix);
+        _refused[Count - 1] = reason;
+    }
+
     /// <summary>Appends one line.</summary>
     public void Add(ReadOnlySpan<byte> line)
     {
@@ -81,10 +89,12 @@ internal sealed class LineBatch
         {
             Array.Resize(ref _starts, Count * 2);
             Array.Resize(ref _lengths, Count * 2);
+            Array.Resize(ref _refused, Count * 2);
         }
         line.CopyTo(_data.AsSpan(Bytes));
         _starts[Count] = Bytes;
         _lengths[Count] = line.Length;
+        _refused[Count] = null;
         Bytes += line.Length;
         Count++;
     }

@@ -4,47 +4,37 @@ using Driftline.Core.Events;
 namespace Driftline.Pipeline;
 
 /// <summary>
-/// The source stage for files and stdin: splits a byte stream into lines (LF, with an
-/// optional CR before it), parses each batch and sends it on. Blank lines are skipped but
-/// counted, so line numbers in dead letters match the file.
+/// The source stage for files and stdin: splits a byte stream into lines with
+/// <see cref="LineSplitter"/> (bounded memory, a leading byte order mark skipped), parses each
+/// batch and sends it on. Blank lines are skipped but counted, so line numbers in dead letters
+/// match the file.
 /// </summary>
 internal static class LineReader
 {
     /// <summary>
     /// Reads <paramref name="input"/> to its end into batches taken from <paramref name="pool"/>,
     /// parsed with <paramref name="parser"/> and written to <paramref name="output"/>; completes <paramref name="output"/> at the end,
-    /// with the exception if reading fails.
+    /// with the exception if reading fails. A line over <paramref name="maxLineBytes"/> is not
+    /// held whole: it is skipped to its end and handed on as a rejected line with its prefix.
     /// </summary>
-    public static async Task RunAsync(Stream input, EventParser parser, ChannelReader<LineBatch> pool, ChannelWriter<LineBatch> output, CancellationToken cancellation)
+    public static async Task RunAsync(Stream input, EventParser parser, ChannelReader<LineBatch> pool, ChannelWriter<LineBatch> output, CancellationToken cancellation,
+        int maxLineBytes = Core.Options.InputOptions.DefaultMaxLineBytes)
     {
         try
         {
-            var buffer = new byte[1 << 20];
-            int filled = 0;
+            var lines = new LineSplitter(maxLineBytes);
             long lineNumber = 1;
             var batch = await TakeAsync(pool, cancellation).ConfigureAwait(false);
             batch.FirstLine = lineNumber;
             while (true)
             {
-                if (filled == buffer.Length)
+                var space = lines.Space();
+                int read = await input.ReadAsync(space, cancellation).ConfigureAwait(false);
+                lines.Advance(read);
+                LineKind found;
+                while ((found = Take(lines, batch)) != LineKind.NeedMore && found != LineKind.End)
                 {
-                    // A line longer than the buffer: grow it (rare; parse rejects huge records).
-                    Array.Resize(ref buffer, buffer.Length * 2);
-                }
-                int read = await input.ReadAsync(buffer.AsMemory(filled), cancellation).ConfigureAwait(false);
-                bool end = read == 0;
-                filled += read;
-                int consumed = 0;
-                while (true)
-                {
-                    int newline = buffer.AsSpan(consumed, filled - consumed).IndexOf((byte)'\n');
-                    if (newline < 0)
-                    {
-                        break;
-                    }
-                    AddLine(batch, buffer.AsSpan(consumed, newline));
                     lineNumber++;
-                    consumed += newline + 1;
                     if (batch.IsFull)
                     {
                         await HandOnAsync(batch, parser, output, cancellation).ConfigureAwait(false);
@@ -52,7 +42,11 @@ internal static class LineReader
                         batch.FirstLine = lineNumber;
                     }
                 }
-                if (!end && batch.Count > 0 && filled < buffer.Length / 2 && read < buffer.Length / 2)
+                if (found == LineKind.End)
+                {
+                    break;
+                }
+                if (read > 0 && batch.Count > 0 && read < space.Length / 2)
                 {
                     // A short read means the source has nothing more ready (a live pipe):
                     // hand the lines on now rather than wait for a full batch.
@@ -60,16 +54,6 @@ internal static class LineReader
                     batch = await TakeAsync(pool, cancellation).ConfigureAwait(false);
                     batch.FirstLine = lineNumber;
                 }
-                if (end)
-                {
-                    if (consumed < filled)
-                    {
-                        AddLine(batch, buffer.AsSpan(consumed, filled - consumed));
-                    }
-                    break;
-                }
-                buffer.AsSpan(consumed, filled - consumed).CopyTo(buffer);
-                filled -= consumed;
             }
             if (batch.Count > 0)
             {
@@ -84,20 +68,26 @@ internal static class LineReader
         }
     }
 
+    // Moves one line from the splitter into the batch (blank lines are kept, as empty lines,
+    // so numbering stays aligned; the scorer skips them).
+    private static LineKind Take(LineSplitter lines, LineBatch batch)
+    {
+        var found = lines.Next(out var line, out long oversized);
+        if (found == LineKind.Line)
+        {
+            batch.Add(line);
+        }
+        else if (found == LineKind.Oversized)
+        {
+            batch.AddRejected(line, lines.OversizedReason(oversized));
+        }
+        return found;
+    }
+
     private static ValueTask HandOnAsync(LineBatch batch, EventParser parser, ChannelWriter<LineBatch> output, CancellationToken cancellation)
     {
         batch.Parse(parser);
         return output.WriteAsync(batch, cancellation);
-    }
-
-    private static void AddLine(LineBatch batch, ReadOnlySpan<byte> line)
-    {
-        if (line.Length > 0 && line[^1] == (byte)'\r')
-        {
-            line = line[..^1];
-        }
-        // Blank lines are kept (as empty lines) so numbering stays aligned; the scorer skips them.
-        batch.Add(line);
     }
 
     private static async ValueTask<LineBatch> TakeAsync(ChannelReader<LineBatch> pool, CancellationToken cancellation)

@@ -41,6 +41,8 @@ internal sealed class ReplayPipeline
         _lanes = [.. lanes];
         // One parse serves every lane, so they share the segment feature (replay checks that they agree).
         _parser.SegmentFeature = _lanes[0].Engine.Options.Monitor.SegmentBy;
+        // Likewise the size limits: the first configuration's Input section applies to the read.
+        _parser.MaxTextBytes = _lanes[0].Engine.Options.Input.MaxTextBytes;
     }
 
     /// <summary>The lanes, in the order given.</summary>
@@ -131,7 +133,7 @@ internal sealed class ReplayPipeline
             // Each batch is parsed on the reading thread before it is handed on: a parse stage of
             // its own cost more in hand-offs between the two cores than it saved
             // (tests/Driftline.Benchmarks replay, same-run A/B).
-            Stage(() => LineReader.RunAsync(source, _parser, linePool.Reader, lines.Writer, reading.Token), failed, cancellation),
+            Stage(() => LineReader.RunAsync(source, _parser, linePool.Reader, lines.Writer, reading.Token, _lanes[0].Engine.Options.Input.MaxLineBytes), failed, cancellation),
             Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, results.Writer, failed.Token, cancellation), failed, cancellation),
             Stage(() => WriteAsync(results.Reader, outputPool.Writer, write, failed.Token), failed, cancellation),
         ];

@@ -126,4 +126,26 @@ public sealed class EventParserTests
         Assert.Equal("a\U0001F355", _record.Id);
         Assert.Equal(FeatureHash.Value(FeatureHash.Name("dish"u8), Encoding.UTF8.GetBytes("\U0001F355")), _record.Features[0].Hash);
     }
+
+    [Theory]
+    [InlineData("""{"id":"aaaaaaaaaaaaaaaaa","features":{}}""", "id is 17 bytes, more than Input:MaxTextBytes (16)")]
+    [InlineData("""{"id":"a","key":"kkkkkkkkkkkkkkkkk","features":{}}""", "key is 17 bytes")]
+    [InlineData("""{"id":"a","features":{"nnnnnnnnnnnnnnnnn":1}}""", "feature name is 17 bytes")]
+    [InlineData("""{"id":"a","features":{"zone":"vvvvvvvvvvvvvvvvv"}}""", "the value of feature 'zone' is 17 bytes")]
+    [InlineData("""{"id":"a","features":{"tags":["ok","vvvvvvvvvvvvvvvvv"]}}""", "the value of feature 'tags' is 17 bytes")]
+    // Escapes are resolved before the count: six bytes of \u00e9 are two of UTF-8.
+    [InlineData("""{"id":"a","features":{"zone":"\u00e9\u00e9\u00e9\u00e9\u00e9\u00e9\u00e9\u00e9\u00e9"}}""", "is 18 bytes")]
+    public void TryParse_TextOverMaxTextBytes_IsRejectedWithItsLength(string json, string reason)
+    {
+        _parser.MaxTextBytes = 16;
+        Assert.False(Parse(json, out var error));
+        Assert.Contains(reason, error, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void TryParse_TextAtMaxTextBytes_IsAccepted()
+    {
+        _parser.MaxTextBytes = 16;
+        Assert.True(Parse("""{"id":"aaaaaaaaaaaaaaaa","key":"kkkkkkkkkkkkkkkk","features":{"nnnnnnnnnnnnnnnn":"vvvvvvvvvvvvvvvv"}}""", out var error), error);
+    }
 }
