@@ -236,8 +236,8 @@ internal sealed class EventParser
             case JsonTokenType.False:
                 record.Label = 0;
                 return null;
-            case JsonTokenType.Number when reader.TryGetDouble(out double v) && (v == 0 || v == 1):
-                record.Label = (int)v;
+            case JsonTokenType.Number when !reader.HasValueSequence && LabelNumber.Exact(reader.ValueSpan) is int v and >= 0:
+                record.Label = v;
                 return null;
             default:
                 return "label must be 0, 1, true or false";

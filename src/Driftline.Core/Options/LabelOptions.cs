@@ -9,6 +9,14 @@ internal sealed class LabelOptions
     /// <summary>Longest wait, in event time, before a prediction is dropped unlabelled. Default 7 days.</summary>
     public TimeSpan MaxAge { get; set; } = TimeSpan.FromDays(7);
 
+    /// <summary>
+    /// Furthest one record may move the event-time clock ahead. A record dated further ahead is
+    /// scored and graded as if dated at the clock plus this (its own time still goes out on its
+    /// prediction), and counted; so one bad timestamp cannot age out every waiting prediction.
+    /// Default 1 day.
+    /// </summary>
+    public TimeSpan MaxClockSkew { get; set; } = TimeSpan.FromDays(1);
+
     /// <summary>Checks every option; returns the mistakes found.</summary>
     public IEnumerable<OptionError> Validate(string section = "Labels")
     {
@@ -19,6 +27,10 @@ internal sealed class LabelOptions
         if (MaxAge <= TimeSpan.Zero)
         {
             yield return new($"{section}:MaxAge", $"{MaxAge} is not a positive duration", "Write it as days.hours:minutes:seconds, e.g. \"7.00:00:00\"");
+        }
+        if (MaxClockSkew <= TimeSpan.Zero)
+        {
+            yield return new($"{section}:MaxClockSkew", $"{MaxClockSkew} is not a positive duration", "Write it as days.hours:minutes:seconds, e.g. \"1.00:00:00\"");
         }
     }
 }

@@ -27,6 +27,9 @@ internal sealed class ScoringCounters
     /// <summary>Records the core refused (e.g. a new key beyond <c>Model:MaxModels</c>).</summary>
     public long Rejected { get; set; }
 
+    /// <summary>Records dated more than <c>Labels:MaxClockSkew</c> ahead of the clock, taken at the clock plus the skew.</summary>
+    public long ClampedTimes { get; set; }
+
     /// <summary>Alerts raised.</summary>
     public long AlertsRaised { get; set; }
 

@@ -48,6 +48,7 @@ internal sealed class ScoringEngine
     private readonly SegmentTracker? _segments;
     private readonly BinEdges _edges;
     private long _clockTicks = ParsedRecord.NoTime;
+    private readonly long _maxSkewTicks;
     private string? _lastKey;
     private int _lastModel;
 
@@ -60,6 +61,7 @@ internal sealed class ScoringEngine
         _options = options;
         _sink = sink;
         Pending = new PendingLabelStore(options.Labels.MaxPending, options.Labels.MaxAge);
+        _maxSkewTicks = options.Labels.MaxClockSkew.Ticks;
         var rules = options.EffectiveAlerts;
         var sizes = rules.Where(r => r.WindowTime is null).Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
         // A time window holds the last T of event time, at most the rule's Window labels.
@@ -126,23 +128,50 @@ internal sealed class ScoringEngine
     public StepOutcome Process(ParsedRecord record)
     {
         ArgumentNullException.ThrowIfNull(record);
-        if (record.HasTime && record.TimeTicks > _clockTicks)
+        long time = record.TimeTicks;
+        if (record.HasTime && time > _clockTicks)
         {
-            _clockTicks = record.TimeTicks;
+            if (_clockTicks != ParsedRecord.NoTime && time - _clockTicks > _maxSkewTicks)
+            {
+                // One event dated far ahead must not age out every waiting prediction nor
+                // empty the time windows: it moves the clock by Labels:MaxClockSkew at most,
+                // and the engine keeps it at that time. A real jump is caught up by the
+                // events that follow it, one skew at a time.
+                time = _clockTicks + _maxSkewTicks;
+                Counters.ClampedTimes++;
+            }
+            _clockTicks = time;
             Pending.ExpireBefore(_clockTicks);
         }
         return record.Kind switch
         {
-            RecordKind.Event => ScoreEvent(record),
-            RecordKind.Label => JoinLabel(record),
-            RecordKind.Probability => RecordProbability(record),
+            RecordKind.Event => ScoreEvent(record, time),
+            RecordKind.Label => JoinLabel(record, time),
+            RecordKind.Probability => RecordProbability(record, time),
             _ => throw new UnreachableException(),
         };
     }
 
-    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    private StepOutcome ScoreEvent(ParsedRecord record)
+    // An event whose id already waits for a label is refused: a later label could not tell
+    // which prediction it grades, and a redelivered event would be scored twice.
+    private bool RefuseWaitingId(ParsedRecord record)
     {
+        if (!Pending.IsWaiting(record.Id))
+        {
+            return false;
+        }
+        Counters.Rejected++;
+        RejectReason = $"id '{record.Id}' already has a prediction waiting for its label; a second event with that id is refused";
+        return true;
+    }
+
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private StepOutcome ScoreEvent(ParsedRecord record, long time)
+    {
+        if (RefuseWaitingId(record))
+        {
+            return StepOutcome.Rejected;
+        }
         int index = ModelFor(record.Key ?? DefaultKey);
         if (index < 0)
         {
@@ -159,11 +188,12 @@ internal sealed class ScoringEngine
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, p, priorP, record.Label, record.Id, record.TimeTicks, record.Segment);
+            Grade(model, p, priorP, record.Label, record.Id, time, record.Segment);
             model.Learner.Update(_x, record.Label, p);
+            Pending.AddGraded(record.Id, time, index);
             return StepOutcome.ScoredAndLearned;
         }
-        var pending = Pending.Add(record.Id, record.TimeTicks);
+        var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.P = p;
         pending.PriorP = priorP;
@@ -173,7 +203,7 @@ internal sealed class ScoringEngine
     }
 
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    private StepOutcome JoinLabel(ParsedRecord record)
+    private StepOutcome JoinLabel(ParsedRecord record, long time)
     {
         switch (Pending.TryJoin(record.Id, out var pending))
         {
@@ -187,7 +217,7 @@ internal sealed class ScoringEngine
         Debug.Assert(pending is not null, "a joined label has its prediction");
         Counters.LateLabels++;
         var model = _models[pending.Model];
-        long time = record.HasTime ? record.TimeTicks : pending.TimeTicks;
+        time = record.HasTime ? time : pending.TimeTicks;
         Grade(model, pending.P, pending.PriorP, record.Label, record.Id, time, pending.Segment);
         if (pending.Count > 0)
         {
@@ -197,8 +227,12 @@ internal sealed class ScoringEngine
         return StepOutcome.LateLabelJoined;
     }
 
-    private StepOutcome RecordProbability(ParsedRecord record)
+    private StepOutcome RecordProbability(ParsedRecord record, long time)
     {
+        if (RefuseWaitingId(record))
+        {
+            return StepOutcome.Rejected;
+        }
         int index = ModelFor(record.Key ?? DefaultKey);
         if (index < 0)
         {
@@ -210,10 +244,11 @@ internal sealed class ScoringEngine
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, record.Probability, priorP, record.Label, record.Id, record.TimeTicks, record.Segment);
+            Grade(model, record.Probability, priorP, record.Label, record.Id, time, record.Segment);
+            Pending.AddGraded(record.Id, time, index);
             return StepOutcome.ProbabilityRecorded;
         }
-        var pending = Pending.Add(record.Id, record.TimeTicks);
+        var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.P = record.Probability;
         pending.PriorP = priorP;

@@ -36,6 +36,7 @@ internal static class SummaryWriter
         w.WriteNumber("unknown_labels", c.UnknownLabels);
         w.WriteNumber("duplicate_labels", c.DuplicateLabels);
         w.WriteNumber("dead_letters", deadLetters);
+        w.WriteNumber("clamped_times", c.ClampedTimes);
         Number(w, "log_loss", total.LogLoss);
         Number(w, "prior_log_loss", prior.LogLoss);
         Number(w, "log_loss_skill", prior.LogLoss > 0 ? 1 - total.LogLoss / prior.LogLoss : double.NaN);

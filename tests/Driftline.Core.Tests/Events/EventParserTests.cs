@@ -148,4 +148,35 @@ public sealed class EventParserTests
         _parser.MaxTextBytes = 16;
         Assert.True(Parse("""{"id":"aaaaaaaaaaaaaaaa","key":"kkkkkkkkkkkkkkkk","features":{"nnnnnnnnnnnnnnnn":"vvvvvvvvvvvvvvvv"}}""", out var error), error);
     }
+
+    // Exact decimal values (RFC 8259 section 6 grammar): only a number equal to 0 or 1 is a label.
+    [Theory]
+    [InlineData("0", 0)]
+    [InlineData("-0", 0)]
+    [InlineData("0.000e7", 0)]
+    [InlineData("1", 1)]
+    [InlineData("1.0", 1)]
+    [InlineData("10e-1", 1)]
+    [InlineData("0.01E+2", 1)]
+    [InlineData("1e-400", -1)]
+    [InlineData("1.00000000000000000001", -1)]
+    [InlineData("0.99999999999999999999", -1)]
+    [InlineData("1e1", -1)]
+    [InlineData("11", -1)]
+    [InlineData("-1", -1)]
+    [InlineData("2", -1)]
+    [InlineData("1e99999999999999999999", -1)]
+    public void TryParse_NumericLabel_IsTakenOnlyWhenExactlyZeroOrOne(string number, int expected)
+    {
+        bool parsed = Parse($$"""{"id":"a","label":{{number}}}""", out var error);
+        Assert.Equal(expected >= 0, parsed);
+        if (parsed)
+        {
+            Assert.Equal(expected, _record.Label);
+        }
+        else
+        {
+            Assert.Contains("label must be", error, StringComparison.Ordinal);
+        }
+    }
 }

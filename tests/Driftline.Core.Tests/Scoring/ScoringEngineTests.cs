@@ -47,14 +47,14 @@ public sealed class ScoringEngineTests
         EngineDriver.Feed(engine, lines);
         var outcomes = EngineDriver.Feed(engine,
             ["""{"id":"late-1","features":{"level":"a"}}""", """{"id":"e0","label":1}""", """{"id":"late-1","label":0}""", """{"id":"late-1","label":0}""", """{"id":"nobody","label":0}"""]);
-        Assert.Equal([StepOutcome.Scored, StepOutcome.UnknownLabel, StepOutcome.LateLabelJoined, StepOutcome.DuplicateLabel, StepOutcome.UnknownLabel], outcomes);
-        // e0 was labelled inline already, so its id is not pending; late-1 is graded at the p it was given.
+        Assert.Equal([StepOutcome.Scored, StepOutcome.DuplicateLabel, StepOutcome.LateLabelJoined, StepOutcome.DuplicateLabel, StepOutcome.UnknownLabel], outcomes);
+        // e0 was labelled inline already, so a late label for it is a second one; late-1 is graded at the p it was given.
         double emitted = sink.Predictions[^1].P;
         var window = engine.Window.ToArray();
         Assert.Equal(emitted, window[^1].P);
         Assert.Equal(0, window[^1].Y);
-        Assert.Equal(1, engine.Counters.DuplicateLabels);
-        Assert.Equal(2, engine.Counters.UnknownLabels);
+        Assert.Equal(2, engine.Counters.DuplicateLabels);
+        Assert.Equal(1, engine.Counters.UnknownLabels);
     }
 
     [Fact]
