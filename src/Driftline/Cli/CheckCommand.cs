@@ -71,7 +71,8 @@ internal sealed class CheckCommand(CommandContext context)
             o.WriteLine($"  {name} divided by {scale}.");
         }
         o.WriteLine(m.Interactions.Count == 0 ? "  no interactions." : $"  interactions: {string.Join(", ", m.Interactions)}.");
-        o.WriteLine($"Late labels: up to {options.Labels.MaxPending:N0} predictions wait, each for at most {options.Labels.MaxAge} of event time.");
+        o.WriteLine($"Late labels: up to {options.Labels.MaxPending:N0} predictions wait, each for at most {options.Labels.MaxAge} of event time; one record moves the clock at most {options.Labels.MaxClockSkew} ahead.");
+        o.WriteLine($"Input: lines and Kafka messages up to {options.Input.MaxLineBytes:N0} bytes, ids, keys and feature names and values up to {options.Input.MaxTextBytes:N0} bytes; longer ones are dead letters.");
         o.WriteLine($"Monitor: rolling window of {options.Monitor.Window:N0} labels, {options.Monitor.Bins} reliability bins, a metrics row every {options.Monitor.MetricsEvery:N0} labels.");
         // Only scheme, host and port: the path and query of a webhook address often hold a secret,
         // and this text goes into report.html.
