@@ -100,21 +100,23 @@ internal sealed class LineSplitter
         {
             if (newline < 0 && !_ended)
             {
+                KeepPrefix(pending);
                 _skipped += pending.Length;
                 _skippedEndsInCr = !pending.IsEmpty ? pending[^1] == (byte)'\r' : _skippedEndsInCr;
                 _start = _end;
                 return LineKind.NeedMore;
             }
             int taken = newline < 0 ? pending.Length : newline;
+            KeepPrefix(pending[..taken]);
             _skipped += taken;
             _start += newline < 0 ? taken : taken + 1;
             _skipping = false;
             // The length reported, like a line's, leaves out a CR before the LF.
-            if (newline >= 0 && (newline > 0 ? pending[newline - 1] == (byte)'\r' : _skippedEndsInCr))
+            if (taken > 0 ? pending[taken - 1] == (byte)'\r' : _skippedEndsInCr)
             {
                 _skipped--;
             }
-            line = _prefix.AsSpan(0, _prefixLength);
+            line = _prefix.AsSpan(0, (int)Math.Min(_prefixLength, _skipped));
             oversizedBytes = _skipped;
             return LineKind.Oversized;
         }
@@ -123,8 +125,8 @@ internal sealed class LineSplitter
             if (pending.Length > _maxLineBytes + 1)
             {
                 // Longer than any allowed line even with a CR: keep a prefix and skip the rest.
-                _prefixLength = Math.Min(PrefixBytes, pending.Length);
-                pending[.._prefixLength].CopyTo(_prefix);
+                _prefixLength = 0;
+                KeepPrefix(pending);
                 _skipped = pending.Length;
                 _skippedEndsInCr = pending[^1] == (byte)'\r';
                 _skipping = true;
@@ -158,6 +160,14 @@ internal sealed class LineSplitter
             return LineKind.Oversized;
         }
         return LineKind.Line;
+    }
+
+    // The first PrefixBytes of the line being skipped, for its dead letter.
+    private void KeepPrefix(ReadOnlySpan<byte> bytes)
+    {
+        int n = Math.Min(PrefixBytes - _prefixLength, bytes.Length);
+        bytes[..n].CopyTo(_prefix.AsSpan(_prefixLength));
+        _prefixLength += n;
     }
 
     /// <summary>The dead-letter reason for an oversized line of <paramref name="bytes"/> bytes.</summary>

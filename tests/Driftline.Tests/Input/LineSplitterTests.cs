@@ -138,4 +138,37 @@ public sealed class LineSplitterTests
         var lines = Split("a\r\n\n\r\nb");
         Assert.Equal(["a", "", "", "b"], lines.Select(l => l.Text));
     }
+
+    /// <summary>Hands out its bytes in pieces of random size, as a pipe or a socket does.</summary>
+    private sealed class Chunked(byte[] data, Random random) : MemoryStream(data)
+    {
+        public override int Read(byte[] buffer, int offset, int count) => base.Read(buffer, offset, Math.Min(count, random.Next(1, 5_000)));
+    }
+
+    [Fact]
+    public void Next_AnyLinesInAnyReadSizes_SameAsSplittingTheWholeText()
+    {
+        // The reference is the plain split of the whole text at LF, CR removed, lines over the limit reported by length.
+        var random = new Random(12);
+        const int max = 3_000;
+        for (int round = 0; round < 200; round++)
+        {
+            var lines = Enumerable.Range(0, random.Next(0, 40)).Select(_ => random.Next(10) switch
+            {
+                0 => "",
+                1 => new string('a', random.Next(max - 2, max + 3)),
+                2 => new string('b', random.Next(max, 20_000)) + "\r",
+                3 => "\r",
+                _ => new string('c', random.Next(0, 200)),
+            }).ToList();
+            string text = string.Join("\n", lines) + (random.Next(2) == 0 ? "\n" : "");
+            var expected = (text.EndsWith('\n') ? text[..^1] : text).Split('\n').Where((_, i) => text.Length > 0)
+                .Select(l => l.EndsWith('\r') ? l[..^1] : l)
+                .Select(l => l.Length > max ? (LineKind.Oversized, l[..Math.Min(l.Length, LineSplitter.PrefixBytes)], (long)l.Length) : (LineKind.Line, l, 0L))
+                .ToList();
+            var actual = Split(new Chunked(Encoding.UTF8.GetBytes(text), random), max, out int largest);
+            Assert.Equal(expected, actual);
+            Assert.True(largest <= 1 << 20);
+        }
+    }
 }
