@@ -8,8 +8,8 @@ namespace Driftline.Core.Scoring;
 /// slots in arrival order: when it is full the oldest slot is recycled, and a prediction
 /// older than the age limit (by event time) is dropped; either way an unlabelled prediction
 /// leaving the store counts as expired. Graded entries stay until recycled so a second label
-/// for the same id is recognised as a duplicate; so do the ids of events that came with their
-/// label (<see cref="AddGraded"/>). O(1) per operation, no allocation once every slot has been used.
+/// for the same id is recognised as a duplicate. O(1) per operation, no allocation once
+/// every slot has been used.
 /// </summary>
 internal sealed class PendingLabelStore
 {
@@ -88,24 +88,6 @@ internal sealed class PendingLabelStore
     {
         int index = _byId.Find(id, PendingIndex.Hash(id));
         return index >= 0 && !_ring[index]!.Labelled;
-    }
-
-    /// <summary>
-    /// Remembers an id graded by its own inline label, so a late label for it later counts as
-    /// a duplicate rather than unknown. It takes a slot like any prediction (the ring is in
-    /// arrival order of events), holding no features.
-    /// </summary>
-    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    public void AddGraded(string id, long timeTicks, int model)
-    {
-        var slot = Add(id, timeTicks);
-        slot.Model = model;
-        slot.P = 0;
-        slot.PriorP = 0;
-        slot.Segment = null;
-        slot.SetFeatures([], []);
-        slot.Labelled = true;
-        Waiting--;
     }
 
     /// <summary>Finds the pending prediction for <paramref name="id"/> and marks it graded.</summary>

@@ -62,6 +62,7 @@ internal sealed class ScoringEngine
         _sink = sink;
         Pending = new PendingLabelStore(options.Labels.MaxPending, options.Labels.MaxAge);
         _maxSkewTicks = options.Labels.MaxClockSkew.Ticks;
+        InlineLabelled = new RecentIds(options.Labels.MaxPending);
         var rules = options.EffectiveAlerts;
         var sizes = rules.Where(r => r.WindowTime is null).Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
         // A time window holds the last T of event time, at most the rule's Window labels.
@@ -83,6 +84,9 @@ internal sealed class ScoringEngine
 
     /// <summary>Predictions waiting for late labels.</summary>
     public PendingLabelStore Pending { get; }
+
+    /// <summary>Ids of the latest events (at most <c>Labels:MaxPending</c>) that came with their label, to recognise a late label for one as a duplicate.</summary>
+    public RecentIds InlineLabelled { get; }
 
     /// <summary>The model over the whole run.</summary>
     public CalibrationTotals Totals { get; private set; }
@@ -190,7 +194,7 @@ internal sealed class ScoringEngine
             Counters.InlineLabels++;
             Grade(model, p, priorP, record.Label, record.Id, time, record.Segment);
             model.Learner.Update(_x, record.Label, p);
-            Pending.AddGraded(record.Id, time, index);
+            InlineLabelled.Add(record.Id);
             return StepOutcome.ScoredAndLearned;
         }
         var pending = Pending.Add(record.Id, time);
@@ -207,6 +211,10 @@ internal sealed class ScoringEngine
     {
         switch (Pending.TryJoin(record.Id, out var pending))
         {
+            case LabelJoin.UnknownId when InlineLabelled.Contains(record.Id):
+                // Its event came with its label: this one is a second label.
+                Counters.DuplicateLabels++;
+                return StepOutcome.DuplicateLabel;
             case LabelJoin.UnknownId:
                 Counters.UnknownLabels++;
                 return StepOutcome.UnknownLabel;
@@ -245,7 +253,7 @@ internal sealed class ScoringEngine
         {
             Counters.InlineLabels++;
             Grade(model, record.Probability, priorP, record.Label, record.Id, time, record.Segment);
-            Pending.AddGraded(record.Id, time, index);
+            InlineLabelled.Add(record.Id);
             return StepOutcome.ProbabilityRecorded;
         }
         var pending = Pending.Add(record.Id, time);
@@ -361,6 +369,7 @@ internal sealed class ScoringEngine
             Segment = e.Labelled ? null : e.Segment,
         }).ToList(),
         Segments = _segments?.Export(),
+        InlineLabelled = InlineLabelled.Entries().ToList(),
         ExpiredLabels = Pending.Expired,
         Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
         TimeWindows = _timeWindows.Select(w => new TimeWindowSnapshot
@@ -434,6 +443,10 @@ internal sealed class ScoringEngine
             }
         }
         Pending.RestoreCounters(snapshot.ExpiredLabels);
+        foreach (var id in snapshot.InlineLabelled ?? [])
+        {
+            InlineLabelled.Add(id);
+        }
         int bins = _options.Monitor.Bins;
         for (int i = 0; i < _windows.Length; i++)
         {

@@ -28,6 +28,13 @@ internal sealed class EngineSnapshot
     /// <summary>Predictions held for late labels, oldest first.</summary>
     public List<PendingSnapshot> Pending { get; set; } = [];
 
+    /// <summary>
+    /// Ids of the latest events that came with their label, oldest first, so a late label for
+    /// one after a restore is still a duplicate; null in older snapshots (none remembered).
+    /// </summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public List<string>? InlineLabelled { get; set; }
+
     /// <summary>Predictions that left the store unlabelled.</summary>
     public long ExpiredLabels { get; set; }
 
