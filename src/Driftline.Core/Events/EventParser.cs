@@ -16,9 +16,10 @@ namespace Driftline.Core.Events;
 /// A record is rejected, with a reason, when it is not JSON, not an object, has no non-empty
 /// string <c>id</c>, has <c>features</c> that is not an object, a feature value that is not a
 /// string, number, boolean, array of strings or null, a number that is not finite, a
-/// <c>label</c> other than 0, 1, true or false, a <c>p</c> that is not a finite number in
-/// [0, 1], a string with an unpaired UTF-16 surrogate escape, or neither features, label nor p. Unknown top-level fields are ignored; a
-/// <c>null</c> field counts as absent.
+/// <c>label</c> other than exactly 0 or 1, true or false, a <c>p</c> that is not a finite number in
+/// [0, 1], a string with an unpaired UTF-16 surrogate escape, an id, key, feature name or
+/// value longer than <see cref="MaxTextBytes"/>, or neither features, label nor p. Unknown
+/// top-level fields are ignored; a <c>null</c> field counts as absent.
 /// </remarks>
 internal sealed class EventParser
 {
