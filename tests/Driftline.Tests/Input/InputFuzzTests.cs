@@ -182,5 +182,25 @@ public sealed class InputFuzzTests
         Assert.True(monitor.ExitCode == 0, monitor.Error);
         var watched = JsonDocument.Parse(File.ReadAllText(dir.File("monitor/summary.json"))).RootElement;
         Assert.Equal(nonBlank, watched.GetProperty("probabilities").GetInt64() + watched.GetProperty("late_labels").GetInt64() + watched.GetProperty("dead_letters").GetInt64());
+
+        // fit reads the same file: it fits, or refuses in one line (flipped bytes make thousands
+        // of distinct categories, more than a batch fit takes), never a stack trace.
+        // The first 10,000 lines and the oversized ones keep its dense Newton steps short.
+        var head = file.AsSpan(0, IndexOfNth(file, (byte)'\n', 10_000) + 1).ToArray().Concat(file.AsSpan(IndexOfNth(file, (byte)'\n', Lines) + 1).ToArray()).ToArray();
+        File.WriteAllBytes(dir.File("fit.jsonl"), head);
+        var fit = await CliRun.RunAsync("fit", dir.File("fit.jsonl"), "--out", dir.File("fit.json"), "--ridge", "1");
+        Assert.True(fit.ExitCode is 0 or 4, fit.Error);
+        Assert.DoesNotContain("   at ", fit.Error, StringComparison.Ordinal);
+        TestContext.Current.SendDiagnosticMessage($"fit: exit {fit.ExitCode}, {fit.Error.Trim()}");
+    }
+
+    private static int IndexOfNth(byte[] bytes, byte value, int n)
+    {
+        int at = -1;
+        for (int k = 0; k < n; k++)
+        {
+            at = Array.IndexOf(bytes, value, at + 1);
+        }
+        return at;
     }
 }
