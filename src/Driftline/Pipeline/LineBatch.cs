@@ -69,12 +69,20 @@ internal sealed class LineBatch
     {
         Count = 0;
         Bytes = 0;
+        SkippedBytes = 0;
     }
 
-    /// <summary>Appends a line refused before parsing (e.g. over the size limit), kept as <paramref name="prefix"/> with <paramref name="reason"/>.</summary>
-    public void AddRejected(ReadOnlySpan<byte> prefix, string reason)
+    /// <summary>Source bytes of refused lines that the batch does not hold (all but their prefixes).</summary>
+    public long SkippedBytes { get; private set; }
+
+    /// <summary>
+    /// Appends a line refused before parsing (e.g. over the size limit), kept as
+    /// <paramref name="prefix"/> with <paramref name="reason"/>; <paramref name="lineBytes"/> is its full length.
+    /// </summary>
+    public void AddRejected(ReadOnlySpan<byte> prefix, string reason, long lineBytes)
     {
         Add(prefix);
+        SkippedBytes += lineBytes - prefix.Length;
         _refused[Count - 1] = reason;
     }
 

@@ -79,7 +79,7 @@ internal static class LineReader
         }
         else if (found == LineKind.Oversized)
         {
-            batch.AddRejected(line, lines.OversizedReason(oversized));
+            batch.AddRejected(line, lines.OversizedReason(oversized), oversized);
         }
         return found;
     }

@@ -185,7 +185,7 @@ internal sealed class ReplayPipeline
                         ProcessLine(batch, i, result);
                     }
                     Lines += batch.Count;
-                    BytesRead += batch.Bytes + batch.Count;
+                    BytesRead += batch.Bytes + batch.Count + batch.SkippedBytes;
                     await linePool.WriteAsync(batch, cancellation).ConfigureAwait(false);
                     AfterBatch?.Invoke(Engine);
                     await output.WriteAsync(result, cancellation).ConfigureAwait(false);

@@ -88,4 +88,15 @@ public sealed class SizeLimitTests
         Assert.True(run.ExitCode == 0, run.Error);
         Assert.Contains("Fitted 30 labelled events (1 lines rejected)", run.Out, StringComparison.Ordinal);
     }
+
+    [Fact]
+    public async Task ReplayPipeline_OversizedLine_CountsItsBytesForProgress()
+    {
+        // Progress is bytes read against the file's length: a skipped line must count whole.
+        byte[] input = Encoding.UTF8.GetBytes("{\"id\":\"a\",\"features\":{}}\n" + new string('x', 3_000_000) + "\n{\"id\":\"b\",\"features\":{}}\n");
+        var pipeline = new Driftline.Pipeline.ReplayPipeline(new Driftline.Core.Options.DriftlineOptions { Alerts = [] });
+        await pipeline.RunAsync(new MemoryStream(input), _ => { }, TestContext.Current.CancellationToken);
+        Assert.Equal(input.Length, pipeline.BytesRead);
+        Assert.Equal(1, pipeline.DeadLetters);
+    }
 }
