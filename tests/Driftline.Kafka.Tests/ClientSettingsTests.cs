@@ -136,6 +136,29 @@ public sealed class ClientSettingsTests
     }
 
     [Fact]
+    public void EventsConsumer_NoGroupProtocol_ClassicWithTheCooperativeAssignor()
+    {
+        // librdkafka's own default (range,roundrobin) is eager: every join revokes every partition.
+        var config = ClientSettings.EventsConsumer(Options());
+        Assert.Equal("classic", config.Get("group.protocol"));
+        Assert.Equal("cooperative-sticky", config.Get("partition.assignment.strategy"));
+    }
+
+    [Fact]
+    public void EventsConsumer_GroupProtocolGiven_IsHonouredAndGetsNoClientAssignor()
+    {
+        var options = Options();
+        options.Client["group.protocol"] = "consumer";
+        var config = ClientSettings.EventsConsumer(options);
+        Assert.Equal("consumer", config.Get("group.protocol"));
+        Assert.Null(config.Get("partition.assignment.strategy"));
+
+        options.Client["group.protocol"] = "classic";
+        options.Client["partition.assignment.strategy"] = "range";
+        Assert.Equal("range", ClientSettings.EventsConsumer(options).Get("partition.assignment.strategy"));
+    }
+
+    [Fact]
     public void Validate_OutputTopicIsAnInputTopic_IsAnError()
     {
         var options = Options();

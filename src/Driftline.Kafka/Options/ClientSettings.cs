@@ -24,6 +24,7 @@ internal static class ClientSettings
             EnablePartitionEof = true,
         };
         config.Set("auto.offset.reset", Get(options, "auto.offset.reset") ?? "earliest");
+        GroupProtocol.Apply(config, options.Client);
         foreach (var (name, value) in Forced)
         {
             config.Set(name, value);

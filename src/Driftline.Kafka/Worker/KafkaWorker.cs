@@ -232,10 +232,14 @@ internal sealed class KafkaWorker
         }
     }
 
-    /// <summary>Finishes what the merge can take now, on this thread and the pool (engines idle otherwise).</summary>
-    private void ProcessReady(IConsumer<byte[]?, byte[]> events)
+    /// <summary>
+    /// Finishes what the merge of <paramref name="states"/> can take now, on this thread and the
+    /// pool (engines idle otherwise). Only the partitions given up: the group waits for this
+    /// callback, and the partitions kept are drained by the loop as usual right after it.
+    /// </summary>
+    private void ProcessReady(IConsumer<byte[]?, byte[]> events, List<PartitionState> states)
     {
-        var busy = Busy();
+        var busy = states.Where(s => s.Events.Count + s.Labels.Count > 0).ToList();
         _drainer.DrainNow(busy);
         AfterDrain(events, busy);
     }
@@ -330,7 +334,7 @@ internal sealed class KafkaWorker
         }
         // Finish what is in flight (records consumed, and what the merge can take now), make it durable, commit, give up.
         ApplyStaged(events);
-        ProcessReady(events);
+        ProcessReady(events, states);
         _committer!.CheckpointAndCommit(events, states, wait: true);
         Drop(states.Select(s => s.Partition).ToList());
         Log.Information("Partitions {Partitions} revoked: checkpointed and committed", states.Select(s => s.Partition).ToArray());

@@ -5,10 +5,10 @@ namespace Driftline.Kafka.Tests.Support;
 /// <summary>Reads back what a worker left in its checkpoint folder.</summary>
 internal static class CheckpointFiles
 {
-    public static List<PartitionCheckpoint> All(string directory, string eventsTopic)
+    public static List<PartitionCheckpoint> All(string directory, string eventsTopic, int partitions = MockCluster.Partitions)
     {
         var store = new CheckpointStore(directory);
-        return Enumerable.Range(0, MockCluster.Partitions).Select(p => store.Read(eventsTopic, p)).OfType<PartitionCheckpoint>().ToList();
+        return Enumerable.Range(0, partitions).Select(p => store.Read(eventsTopic, p)).OfType<PartitionCheckpoint>().ToList();
     }
 
     /// <summary>True when the checkpoints plus what the worker did since cover every event and label.</summary>

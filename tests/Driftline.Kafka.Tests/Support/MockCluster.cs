@@ -31,5 +31,60 @@ internal sealed class MockCluster : IDisposable
     /// <summary>The brokers' addresses, for other clients and processes.</summary>
     public string Bootstrap { get; }
 
+    /// <summary>
+    /// Makes a topic of <paramref name="partitions"/> partitions. The mock answers no admin
+    /// CreateTopics (it has no controller), so this calls librdkafka's own
+    /// <c>rd_kafka_mock_topic_create</c> on the cluster this object started.
+    /// </summary>
+    public void CreateTopic(string topic, int partitions)
+    {
+        int error = Native.Value.TopicCreate(Handle(), topic, partitions, 1);
+        if (error != 0)
+        {
+            throw new InvalidOperationException($"rd_kafka_mock_topic_create({topic}, {partitions}) returned {error}");
+        }
+    }
+
+    /// <summary>
+    /// How long the mock's classic group waits for more members at a group's first join (a
+    /// broker's group.initial.rebalance.delay.ms; the mock's default is 3 s).
+    /// </summary>
+    public void InitialRebalanceDelay(int milliseconds) => Native.Value.InitialDelay(Handle(), milliseconds);
+
+    /// <summary>
+    /// The session timeout of consumer-protocol (KIP-848) groups, which the broker sets, not the
+    /// client (a broker's group.consumer.session.timeout.ms; 45 s by default).
+    /// </summary>
+    public void ConsumerSessionTimeout(int milliseconds) => Native.Value.ConsumerSessionTimeout(Handle(), milliseconds);
+
+    private IntPtr Handle()
+    {
+        // Confluent.Kafka keeps the librdkafka handle internal; the test reaches it by name.
+        var property = typeof(Confluent.Kafka.Handle).GetProperty("LibrdkafkaHandle", System.Reflection.BindingFlags.Instance | System.Reflection.BindingFlags.NonPublic)
+            ?? throw new InvalidOperationException("Confluent.Kafka no longer has Handle.LibrdkafkaHandle");
+        var safe = (System.Runtime.InteropServices.SafeHandle)property.GetValue(_host.Handle)!;
+        return Native.Value.ClusterHandle(safe.DangerousGetHandle());
+    }
+
+    private static readonly Lazy<MockApi> Native = new(() =>
+    {
+        // The variant Confluent.Kafka loaded (it picks one per Linux flavour), found in the process's own map.
+        string path = File.ReadLines("/proc/self/maps").Select(l => l.Split(' ', StringSplitOptions.RemoveEmptyEntries)).Where(f => f.Length >= 6 && f[5].EndsWith("librdkafka.so", StringComparison.Ordinal)).Select(f => f[5]).First();
+        IntPtr library = System.Runtime.InteropServices.NativeLibrary.Load(path);
+        return new MockApi(
+            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<ClusterHandleFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_handle_mock_cluster")),
+            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<TopicCreateFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_topic_create")),
+            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<SetIntFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_group_initial_rebalance_delay_ms")),
+            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<SetIntFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_set_group_consumer_session_timeout_ms")));
+    });
+
+    private delegate IntPtr ClusterHandleFn(IntPtr rk);
+
+    private delegate int TopicCreateFn(IntPtr mcluster, [System.Runtime.InteropServices.MarshalAs(System.Runtime.InteropServices.UnmanagedType.LPUTF8Str)] string topic, int partitions, int replicationFactor);
+
+    private delegate void SetIntFn(IntPtr mcluster, int value);
+
+    private sealed record MockApi(ClusterHandleFn ClusterHandle, TopicCreateFn TopicCreate, SetIntFn InitialDelay, SetIntFn ConsumerSessionTimeout);
+
     public void Dispose() => _host.Dispose();
 }

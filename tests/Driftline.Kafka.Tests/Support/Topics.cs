@@ -45,6 +45,76 @@ internal static class Topics
         Produce(bootstrap, labelsTopic, list.Where(r => r.IsLabel).Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
     }
 
+    /// <summary>
+    /// Produces both topics through one producer in time order at about
+    /// <paramref name="eventsPerSecond"/> events a second, as a live feed arrives.
+    /// </summary>
+    public static void ProducePaced(string bootstrap, string eventsTopic, string labelsTopic, IEnumerable<TestRecord> records, int eventsPerSecond, CancellationToken stop = default)
+    {
+        using var producer = new ProducerBuilder<byte[]?, byte[]>(new ProducerConfig { BootstrapServers = bootstrap, LingerMs = 5, EnableIdempotence = true })
+            .SetLogHandler((_, _) => { }).Build();
+        var clock = System.Diagnostics.Stopwatch.StartNew();
+        int sent = 0;
+        foreach (var r in records.OrderBy(r => r.TimestampMs))
+        {
+            if (stop.IsCancellationRequested)
+            {
+                break;
+            }
+            var message = new Message<byte[]?, byte[]>
+            {
+                Key = Encoding.UTF8.GetBytes(r.Key),
+                Value = Encoding.UTF8.GetBytes(r.Value),
+                Timestamp = new Timestamp(r.TimestampMs, TimestampType.CreateTime),
+            };
+            producer.Produce(r.IsLabel ? labelsTopic : eventsTopic, message);
+            if (!r.IsLabel && ++sent % 50 == 0)
+            {
+                double ahead = sent / (double)eventsPerSecond - clock.Elapsed.TotalSeconds;
+                if (ahead > 0)
+                {
+                    Thread.Sleep(TimeSpan.FromSeconds(ahead));
+                }
+            }
+        }
+        if (producer.Flush(TimeSpan.FromSeconds(30)) > 0)
+        {
+            throw new TimeoutException("producing the paced stream did not finish");
+        }
+    }
+
+    /// <summary>
+    /// Reads <paramref name="topic"/> from the start until it holds <paramref name="distinctIds"/>
+    /// distinct ids and has been quiet for half a second, or the time is up: every record with
+    /// where it sits and when it was written (the producer's time).
+    /// </summary>
+    public static List<(int Partition, long Offset, long TimestampMs, string Id, string Value)> ReadTimed(string bootstrap, string topic, int distinctIds, TimeSpan limit)
+    {
+        using var consumer = Reader(bootstrap, topic);
+        var records = new List<(int, long, long, string, string)>();
+        var ids = new HashSet<string>(StringComparer.Ordinal);
+        var deadline = DateTime.UtcNow + limit;
+        var quietSince = DateTime.UtcNow;
+        while (DateTime.UtcNow < deadline)
+        {
+            var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
+            if (r is not null && !r.IsPartitionEOF)
+            {
+                string value = Encoding.UTF8.GetString(r.Message.Value);
+                string id = CheckpointFiles.Id(value);
+                ids.Add(id);
+                records.Add((r.Partition.Value, r.Offset.Value, r.Message.Timestamp.UnixTimestampMs, id, value));
+                quietSince = DateTime.UtcNow;
+            }
+            else if (ids.Count >= distinctIds && DateTime.UtcNow - quietSince > TimeSpan.FromMilliseconds(500))
+            {
+                break;
+            }
+        }
+        consumer.Close();
+        return records;
+    }
+
     /// <summary>Reads the first <paramref name="count"/> records of <paramref name="topic"/> with where each one sits.</summary>
     public static List<(int Partition, long Offset, string Value)> ReadPlaced(string bootstrap, string topic, int count, TimeSpan limit)
     {

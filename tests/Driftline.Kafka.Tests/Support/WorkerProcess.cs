@@ -8,6 +8,8 @@ internal sealed class WorkerProcess : IDisposable
 {
     private readonly Process _process;
     private readonly StringBuilder _stderr = new();
+    private readonly HashSet<int> _owned = [];
+    private readonly List<(DateTime At, int Count)> _ownership = [];
 
     public WorkerProcess(string configPath, string bootstrap, IReadOnlyDictionary<string, string>? environment = null)
     {
@@ -31,6 +33,7 @@ internal sealed class WorkerProcess : IDisposable
             lock (_stderr)
             {
                 _stderr.AppendLine(e.Data);
+                Track(e.Data);
             }
         };
         _process.OutputDataReceived += (_, _) => { };
@@ -51,9 +54,76 @@ internal sealed class WorkerProcess : IDisposable
 
     public bool HasExited => _process.HasExited;
 
+    /// <summary>The process id (each member's share of the group is told apart by it).</summary>
+    public int Id => _process.Id;
+
+    /// <summary>Partitions owned now, as the worker's log tells it.</summary>
+    public IReadOnlyCollection<int> Owned
+    {
+        get
+        {
+            lock (_stderr)
+            {
+                return [.. _owned.Order()];
+            }
+        }
+    }
+
+    /// <summary>When the worker first owned a partition, or null.</summary>
+    public DateTime? FirstOwned
+    {
+        get
+        {
+            lock (_stderr)
+            {
+                return _ownership.Where(o => o.Count > 0).Select(o => (DateTime?)o.At).FirstOrDefault();
+            }
+        }
+    }
+
+    /// <summary>When the worker logged that it joins the group (UTC), after the runtime started and the settings were read.</summary>
+    public DateTime? JoinedAt { get; private set; }
+
+    /// <summary>When the process started (UTC).</summary>
+    public DateTime StartedAt { get; } = DateTime.UtcNow;
+
+    /// <summary>Follows the worker's "Partition N assigned" and "Partitions [..] revoked/lost" log lines.</summary>
+    private void Track(string? line)
+    {
+        if (line is null)
+        {
+            return;
+        }
+        var assigned = System.Text.RegularExpressions.Regex.Match(line, @"\bPartition (\d+) assigned");
+        if (assigned.Success)
+        {
+            _owned.Add(int.Parse(assigned.Groups[1].Value, System.Globalization.CultureInfo.InvariantCulture));
+        }
+        var gone = System.Text.RegularExpressions.Regex.Match(line, @"\bPartitions \[([\d, ]*)\] (revoked|lost)");
+        if (gone.Success)
+        {
+            foreach (var p in gone.Groups[1].Value.Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries))
+            {
+                _owned.Remove(int.Parse(p, System.Globalization.CultureInfo.InvariantCulture));
+            }
+        }
+        if (JoinedAt is null && line.Contains("Worker joining group", StringComparison.Ordinal))
+        {
+            JoinedAt = DateTime.UtcNow;
+        }
+        if (assigned.Success || gone.Success)
+        {
+            _ownership.Add((DateTime.UtcNow, _owned.Count));
+        }
+    }
+
+    /// <summary>True once <see cref="Kill"/> was called.</summary>
+    public bool Killed { get; private set; }
+
     /// <summary>SIGKILL: no chance to checkpoint or flush.</summary>
     public void Kill()
     {
+        Killed = true;
         _process.Kill();
         _process.WaitForExit(10_000);
     }
