@@ -12,7 +12,7 @@ internal sealed class WorkerGroup : IDisposable
     private readonly TempDir _dir = new();
     private readonly string _bootstrap;
 
-    public WorkerGroup(MockCluster cluster, string prefix, int partitions, IReadOnlyDictionary<string, string>? client = null, int checkpointEveryLabels = 5_000)
+    public WorkerGroup(MockCluster cluster, string prefix, int partitions, IReadOnlyDictionary<string, string>? client = null, int checkpointEveryLabels = 5_000, int initialRebalanceDelayMs = 200)
     {
         _bootstrap = cluster.Bootstrap;
         Prefix = prefix;
@@ -20,7 +20,10 @@ internal sealed class WorkerGroup : IDisposable
         Checkpoints = Path.Combine(_dir.Path, "checkpoints");
         ConfigPath = Path.Combine(_dir.Path, "driftline.json");
         // A broker waits 3 s for more members at a group's first join; the tests start members one by one.
-        cluster.InitialRebalanceDelay(200);
+        if (initialRebalanceDelayMs >= 0)
+        {
+            cluster.InitialRebalanceDelay(initialRebalanceDelayMs);
+        }
         cluster.CreateTopic(EventsTopic, partitions);
         cluster.CreateTopic(LabelsTopic, partitions);
         // Outputs exist beforehand too, as in production, so readers subscribed early see them at once.
@@ -48,7 +51,7 @@ internal sealed class WorkerGroup : IDisposable
                 CheckpointDir = Checkpoints,
                 CheckpointEveryLabels = checkpointEveryLabels,
                 CheckpointEvery = "00:00:01",
-                LabelHold = "00:00:00.500",
+                LabelHold = "00:00:02",
                 Client = settings,
             },
             Worker = new { MetricsPort = 0 },

@@ -1,0 +1,60 @@
+using Driftline.Kafka.Tests.Support;
+using Xunit;
+
+namespace Driftline.Kafka.Tests;
+
+/// <summary>Issue 12, item 15: crash determinism at scale, a real process killed again and again.</summary>
+public sealed class WorkerCrashTests
+{
+    private const int Partitions = 16;
+
+    [Fact]
+    public void Run_KilledAtTenRandomPointsAndRestarted_LastPredictionsEqualAnUninterruptedRunAndNoLabelLostOrDoubled()
+    {
+        using var cluster = new MockCluster();
+        // Checkpoints every 20 labels slow the worker enough to kill it ten times in one stream.
+        using var group = new WorkerGroup(cluster, "gk", Partitions, WorkerGroupProcessTests.Detect, checkpointEveryLabels: 20);
+        var records = TestStream.Generate(20_000, keys: 64, seed: 1215);
+        int events = records.Count(r => !r.IsLabel);
+        int late = records.Count(r => r.IsLabel);
+        Topics.ProduceStream(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records);
+
+        // Ten points in the stream, by labels made durable, each with a delay after it so a kill
+        // also lands between checkpoints, in the middle of a batch or a checkpoint write.
+        var random = new Random(1215);
+        var points = Enumerable.Range(0, 10).Select(_ => (Labels: (long)(random.NextDouble() * 0.85 * events), DelayMs: random.Next(300))).OrderBy(p => p.Labels).ToList();
+        var killedAt = new List<long>();
+        foreach (var (labels, delayMs) in points)
+        {
+            var member = group.Start();
+            var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(60);
+            while (member.FirstOwned is null)
+            {
+                Assert.True(DateTime.UtcNow < deadline && !member.HasExited, "the restarted worker got no partitions:\n" + member.Errors);
+                Thread.Sleep(10);
+            }
+            WorkerGroupProcessTests.WaitForLabels(group, l => l >= labels);
+            Thread.Sleep(delayMs);
+            member.Kill();
+            killedAt.Add(CheckpointFiles.All(group.Checkpoints, group.EventsTopic, Partitions).Sum(c => c.Snapshot.Counters.Labels));
+        }
+        TestContext.Current.SendDiagnosticMessage($"killed at {string.Join(", ", killedAt)} of {events} labels checkpointed");
+        Assert.True(killedAt[^1] < events, "the last kill came before the stream ended");
+
+        var last = group.Start();
+        Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(90)), "the last run did not finish\n" + group.Timeline());
+        Assert.Equal(0, last.Terminate(TimeSpan.FromSeconds(10)));
+
+        var checkpoints = CheckpointFiles.All(group.Checkpoints, group.EventsTopic, Partitions);
+        Assert.Equal(events, checkpoints.Sum(c => c.Snapshot.Counters.Events));
+        Assert.Equal(events, checkpoints.Sum(c => c.Snapshot.Counters.Labels));
+        Assert.Equal(late, checkpoints.Sum(c => c.Snapshot.Counters.LateLabels));
+        Assert.Equal(0, checkpoints.Sum(c => c.Snapshot.Counters.UnknownLabels + c.Snapshot.Counters.DuplicateLabels));
+
+        var actual = WorkerGroupProcessTests.LastPerId(Topics.ReadTimed(cluster.Bootstrap, group.PredictionsTopic, events, TimeSpan.FromSeconds(60)));
+        var expected = WorkerGroupProcessTests.Uninterrupted(cluster, group, events);
+        Assert.Equal(events, actual.Count);
+        int differ = expected.Count(kv => actual.GetValueOrDefault(kv.Key) != kv.Value);
+        Assert.True(differ == 0, $"{differ} ids' last prediction differs from an uninterrupted run's");
+    }
+}
