@@ -5,14 +5,28 @@ using Driftline.Kafka.Benchmarks;
 // Whole-pipeline figures through librdkafka's mock cluster on this machine: not a
 // BenchmarkDotNet micro-benchmark (a broker round trip is the unit), so each figure is a
 // median over repeated runs, next to a raw consume-only client in the same process and run.
-// part: all (default), engine, throughput (7 repeats instead of 3) or latency.
+// part: all (default), engine, throughput (7 repeats instead of 3), latency, or group
+// (1-4 real driftline processes in one group; not part of all).
 int events = args.Length > 0 ? int.Parse(args[0], CultureInfo.InvariantCulture) : 60_000;
 int rate = args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 50_000;
 string part = args.Length > 2 ? args[2] : "all";
-if (part is not ("all" or "engine" or "throughput" or "latency"))
+if (part is not ("all" or "engine" or "throughput" or "latency" or "group"))
 {
-    Console.Error.WriteLine($"unknown part '{part}': use all, engine, throughput or latency");
+    Console.Error.WriteLine($"unknown part '{part}': use all, engine, throughput, latency or group");
     return 2;
+}
+if (part is "group")
+{
+    try
+    {
+        GroupBenchmark.Run(events, maxWorkers: 4, repeats: 3);
+        return 0;
+    }
+    catch (InvalidOperationException ex)
+    {
+        Console.Error.WriteLine(ex.Message);
+        return 1;
+    }
 }
 if (part is "all" or "engine")
 {

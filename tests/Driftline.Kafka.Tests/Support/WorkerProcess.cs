@@ -54,6 +54,16 @@ internal sealed class WorkerProcess : IDisposable
 
     public bool HasExited => _process.HasExited;
 
+    /// <summary>Processor time the process has used so far (user and system).</summary>
+    public TimeSpan ProcessorTime
+    {
+        get
+        {
+            _process.Refresh();
+            return _process.TotalProcessorTime;
+        }
+    }
+
     /// <summary>The process id (each member's share of the group is told apart by it).</summary>
     public int Id => _process.Id;
 
