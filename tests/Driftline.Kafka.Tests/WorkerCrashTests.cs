@@ -14,18 +14,21 @@ public sealed class WorkerCrashTests
         using var cluster = new MockCluster();
         // Checkpoints every 20 labels slow the worker enough to kill it ten times in one stream.
         using var group = new WorkerGroup(cluster, "gk", Partitions, WorkerGroupProcessTests.Detect, checkpointEveryLabels: 20);
-        var records = TestStream.Generate(20_000, keys: 64, seed: 1215);
+        var records = TestStream.Generate(30_000, keys: 64, seed: 1215);
         int events = records.Count(r => !r.IsLabel);
         int late = records.Count(r => r.IsLabel);
         Topics.ProduceStream(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records);
 
-        // Ten points in the stream, by labels made durable, each with a delay after it so a kill
-        // also lands between checkpoints, in the middle of a batch or a checkpoint write.
+        // Ten points in the stream: each run is killed once it has predicted a random number of
+        // new ids, after a random delay, so a kill lands anywhere (in a batch, between
+        // checkpoints, in a checkpoint write) and every run gets further than the one before.
         var random = new Random(1215);
-        var points = Enumerable.Range(0, 10).Select(_ => (Labels: (long)(random.NextDouble() * 0.85 * events), DelayMs: random.Next(300))).OrderBy(p => p.Labels).ToList();
+        var points = Enumerable.Range(0, 10).Select(_ => (NewIds: 100 + random.Next(500), DelayMs: random.Next(50))).ToList();
         var killedAt = new List<long>();
-        foreach (var (labels, delayMs) in points)
+        using var watcher = new PredictionWatcher(cluster.Bootstrap, group.PredictionsTopic);
+        foreach (var (newIds, delayMs) in points)
         {
+            int ids = watcher.Distinct + newIds;
             var member = group.Start();
             var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(60);
             while (member.FirstOwned is null)
@@ -33,13 +36,18 @@ public sealed class WorkerCrashTests
                 Assert.True(DateTime.UtcNow < deadline && !member.HasExited, "the restarted worker got no partitions:\n" + member.Errors);
                 Thread.Sleep(10);
             }
-            WorkerGroupProcessTests.WaitForLabels(group, l => l >= labels);
+            while (watcher.Distinct < ids)
+            {
+                Assert.True(DateTime.UtcNow < deadline && !member.HasExited, "the restarted worker did not get on:\n" + member.Errors);
+                Thread.Sleep(1);
+            }
             Thread.Sleep(delayMs);
             member.Kill();
-            killedAt.Add(CheckpointFiles.All(group.Checkpoints, group.EventsTopic, Partitions).Sum(c => c.Snapshot.Counters.Labels));
+            killedAt.Add(watcher.Distinct);
         }
-        TestContext.Current.SendDiagnosticMessage($"killed at {string.Join(", ", killedAt)} of {events} labels checkpointed");
+        TestContext.Current.TestOutputHelper?.WriteLine($"killed at {string.Join(", ", killedAt)} of {events} ids predicted");
         Assert.True(killedAt[^1] < events, "the last kill came before the stream ended");
+        Assert.True(killedAt.Zip(killedAt.Skip(1)).All(p => p.First < p.Second), $"every run got further than the one before: {string.Join(", ", killedAt)}");
 
         var last = group.Start();
         Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(90)), "the last run did not finish\n" + group.Timeline());

@@ -16,6 +16,7 @@ public sealed class WorkerGroupProcessTests
     [InlineData(1)]
     [InlineData(2)]
     [InlineData(3)]
+    [InlineData(4)]
     public void Run_WorkersInOneGroup_SplitEvenlyPredictEveryIdAndStopOnSigterm(int workers)
     {
         using var cluster = new MockCluster();
@@ -28,7 +29,7 @@ public sealed class WorkerGroupProcessTests
         }
         // Spread: every partition owned once, the counts at most one apart, each member owning some within 5 s of its start.
         var split = group.WaitForSplit(s => s.Max() - s.Min() <= 1, TimeSpan.FromSeconds(30), TimeSpan.FromSeconds(1));
-        TestContext.Current.SendDiagnosticMessage($"{workers} workers: split {string.Join("/", split)}; first partitions after {string.Join(", ", group.Members.Select(m => $"{(m.FirstOwned!.Value - m.JoinedAt!.Value).TotalSeconds:0.0} s"))}");
+        TestContext.Current.TestOutputHelper?.WriteLine($"{workers} workers: split {string.Join("/", split)}; first partitions after {string.Join(", ", group.Members.Select(m => $"{(m.FirstOwned!.Value - m.JoinedAt!.Value).TotalSeconds:0.0} s"))}");
         foreach (var m in group.Members)
         {
             Assert.True(m.FirstOwned!.Value - m.JoinedAt!.Value <= TimeSpan.FromSeconds(5), $"a member owned its first partition {(m.FirstOwned.Value - m.JoinedAt.Value).TotalSeconds:0.0} s after it started");
@@ -45,7 +46,7 @@ public sealed class WorkerGroupProcessTests
             var clock = System.Diagnostics.Stopwatch.StartNew();
             int exit = m.Terminate(TimeSpan.FromSeconds(10));
             Assert.True(exit == 0, $"exit code {exit} after SIGTERM:\n{m.Errors}");
-            TestContext.Current.SendDiagnosticMessage($"stopped in {clock.Elapsed.TotalSeconds:0.0} s");
+            TestContext.Current.TestOutputHelper?.WriteLine($"stopped in {clock.Elapsed.TotalSeconds:0.0} s");
         }
         AssertAllCheckpointed(group, events);
     }
@@ -81,7 +82,7 @@ public sealed class WorkerGroupProcessTests
         long kill = new DateTimeOffset(killedAt).ToUnixTimeMilliseconds();
         var (gap, key, at) = LongestGap([.. predictions.Where(p => p.TimestampMs < kill)]);
         var (killGap, killKey, _) = LongestGap([.. predictions.Where(p => p.TimestampMs >= kill - 200)]);
-        Console.WriteLine($"[measured] joins and a clean leave under load: longest gap in one key's predictions {gap.TotalSeconds:0.00} s (key {key}, until {at:HH:mm:ss.fff}); after a SIGKILL: {killGap.TotalSeconds:0.00} s (key {killKey}; session timeout 1.5 s)");
+        TestContext.Current.TestOutputHelper?.WriteLine($"[measured] joins and a clean leave under load: longest gap in one key's predictions {gap.TotalSeconds:0.00} s (key {key}, until {at:HH:mm:ss.fff}); after a SIGKILL: {killGap.TotalSeconds:0.00} s (key {killKey}; session timeout 1.5 s)");
         Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(30)), "not every label was joined and checkpointed\n" + group.Timeline());
         foreach (var m in group.Members.Where(m => !m.Killed && !m.HasExited))
         {
@@ -99,7 +100,7 @@ public sealed class WorkerGroupProcessTests
         using var cluster = new MockCluster();
         // Checkpoints every 20 labels slow the group enough to kill members mid-stream.
         using var group = new WorkerGroup(cluster, "gt", Partitions, Detect, checkpointEveryLabels: 20);
-        var records = TestStream.Generate(20_000, Keys, seed: 71);
+        var records = TestStream.Generate(30_000, Keys, seed: 71);
         int events = records.Count(r => !r.IsLabel);
         int late = records.Count(r => r.IsLabel);
         Topics.ProduceStream(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records);
@@ -107,11 +108,22 @@ public sealed class WorkerGroupProcessTests
         var a = group.Start();
         var b = group.Start();
         var survivor = group.Start();
-        long atFirstKill = WaitForLabels(group, l => l >= events * 3 / 10);
-        a.Kill();
-        long atSecondKill = WaitForLabels(group, l => l >= events * 6 / 10);
-        b.Kill();
-        TestContext.Current.SendDiagnosticMessage($"killed at {atFirstKill} and {atSecondKill} of {events} labels checkpointed");
+        int atFirstKill, atSecondKill;
+        using (var watcher = new PredictionWatcher(cluster.Bootstrap, group.PredictionsTopic))
+        {
+            // All three own partitions before anyone is killed, so each kill moves partitions.
+            var split = group.WaitForSplit(s => s.All(c => c > 0), TimeSpan.FromSeconds(30), TimeSpan.Zero);
+            TestContext.Current.TestOutputHelper?.WriteLine($"split {string.Join("/", split)} with {watcher.Distinct} ids predicted");
+            WaitForIds(watcher, events * 3 / 10, group);
+            a.Kill();
+            atFirstKill = watcher.Distinct;
+            // The two left take the killed member's partitions over and get further before the next kill.
+            group.WaitForSplit(s => s.Length == 2 && s.All(c => c > 0), TimeSpan.FromSeconds(30), TimeSpan.Zero);
+            WaitForIds(watcher, Math.Max(events * 6 / 10, watcher.Distinct + 200), group);
+            b.Kill();
+            atSecondKill = watcher.Distinct;
+        }
+        TestContext.Current.TestOutputHelper?.WriteLine($"killed at {atFirstKill} and {atSecondKill} of {events} ids predicted");
         Assert.True(atSecondKill < events, "the second member was killed before the stream ended");
         Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(90)), "the survivor did not finish the stream\n" + group.Timeline());
         Assert.Equal(Partitions, survivor.Owned.Count);
@@ -156,26 +168,13 @@ public sealed class WorkerGroupProcessTests
     internal static Dictionary<string, string> LastPerId(List<(int Partition, long Offset, long TimestampMs, string Id, string Value)> predictions) =>
         predictions.GroupBy(p => p.Id).ToDictionary(g => g.Key, g => g.MaxBy(p => (p.Partition, p.Offset)).Value, StringComparer.Ordinal);
 
-    internal static long WaitForLabels(WorkerGroup group, Func<long, bool> enough)
+    private static void WaitForIds(PredictionWatcher watcher, int ids, WorkerGroup group)
     {
         var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(60);
-        while (true)
+        while (watcher.Distinct < ids)
         {
-            Assert.True(DateTime.UtcNow < deadline, "checkpoints did not advance\n" + group.Timeline());
-            long labels = 0;
-            try
-            {
-                labels = CheckpointFiles.All(group.Checkpoints, group.EventsTopic, Partitions).Sum(c => c.Snapshot.Counters.Labels);
-            }
-            catch (IOException)
-            {
-                // Not written yet.
-            }
-            if (enough(labels))
-            {
-                return labels;
-            }
-            Thread.Sleep(5);
+            Assert.True(DateTime.UtcNow < deadline, "predictions did not advance\n" + group.Timeline());
+            Thread.Sleep(1);
         }
     }
 

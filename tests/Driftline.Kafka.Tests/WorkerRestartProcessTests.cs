@@ -39,7 +39,7 @@ public sealed class WorkerRestartProcessTests
         }
         Assert.NotNull(second.FirstOwned);
         var waited = second.FirstOwned!.Value - second.JoinedAt!.Value;
-        Console.WriteLine($"[measured] {protocol}: first start waited {waitedFirst.TotalSeconds:0.0} s, restart after a clean stop waited {waited.TotalSeconds:0.0} s for its first partition");
+        TestContext.Current.TestOutputHelper?.WriteLine($"[measured] {protocol}: first start waited {waitedFirst.TotalSeconds:0.0} s, restart after a clean stop waited {waited.TotalSeconds:0.0} s for its first partition");
         Assert.Equal(0, second.Terminate(TimeSpan.FromSeconds(10)));
         Assert.True(waited <= TimeSpan.FromSeconds(5), $"{protocol}: the restarted worker waited {waited.TotalSeconds:0.0} s for its first partition\n{second.Errors}");
     }
