@@ -4,6 +4,7 @@ using Xunit;
 namespace Driftline.Kafka.Tests;
 
 /// <summary>Issue 12, item 15: crash determinism at scale, a real process killed again and again.</summary>
+[Collection(RealProcesses.Name)]
 public sealed class WorkerCrashTests
 {
     private const int Partitions = 16;

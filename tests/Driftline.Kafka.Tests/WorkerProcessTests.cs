@@ -7,6 +7,7 @@ using Xunit;
 
 namespace Driftline.Kafka.Tests;
 
+[Collection(RealProcesses.Name)]
 public sealed class WorkerProcessTests
 {
     [Fact]

@@ -4,6 +4,7 @@ using Xunit;
 namespace Driftline.Kafka.Tests;
 
 /// <summary>Issue 12, item 14: how long a cleanly stopped worker waits for its partitions when it starts again.</summary>
+[Collection(RealProcesses.Name)]
 public sealed class WorkerRestartProcessTests
 {
     private const int Partitions = 16;
