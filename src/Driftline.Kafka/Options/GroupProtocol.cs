@@ -17,8 +17,8 @@ namespace Driftline.Kafka.Options;
 /// <para><c>consumer</c> (KIP-848, the broker assigns) needs a Kafka 4.0 broker or later with
 /// the new group coordinator. It takes no client assignor and no client session timeout (the
 /// broker's <c>group.consumer.session.timeout.ms</c>, 45 s by default, decides when a dead
-/// member's partitions move); those client settings pass through as given, and librdkafka
-/// says at start when it refuses one.</para>
+/// member's partitions move); those client settings pass through as given and do not apply
+/// there.</para>
 /// </remarks>
 internal static class GroupProtocol
 {
