@@ -62,6 +62,34 @@ internal sealed class EventParser
     /// <summary>The reason given for a string with an unpaired surrogate escape such as <c>"\ud800"</c>.</summary>
     public const string LoneSurrogate = "not valid JSON: a string holds an unpaired UTF-16 surrogate escape (\\uD800 to \\uDFFF must come in pairs, RFC 8259 section 8.2)";
 
+    private Dictionary<string, int>? _classIndex;
+    private Dictionary<string, int>.AlternateLookup<ReadOnlySpan<char>> _classLookup;
+    private IReadOnlyList<string>? _classes;
+
+    /// <summary>
+    /// The class names of a multiclass model (<c>Model:Classes</c>), or null for a binary one.
+    /// With classes, a label names a class by its text (a string, or a number as written) and
+    /// is read as the class's index; a label naming no class is refused.
+    /// </summary>
+    public IReadOnlyList<string>? Classes
+    {
+        get => _classes;
+        set
+        {
+            _classes = value;
+            _classIndex = null;
+            if (value is not null)
+            {
+                _classIndex = new Dictionary<string, int>(StringComparer.Ordinal);
+                for (int i = 0; i < value.Count; i++)
+                {
+                    _classIndex.TryAdd(value[i], i);
+                }
+                _classLookup = _classIndex.GetAlternateLookup<ReadOnlySpan<char>>();
+            }
+        }
+    }
+
     /// <summary>Creates a parser.</summary>
     public EventParser() => _keyLookup = _keys.GetAlternateLookup<ReadOnlySpan<char>>();
 
@@ -227,6 +255,10 @@ internal sealed class EventParser
 
     private string? ReadLabel(ref Utf8JsonReader reader, ParsedRecord record)
     {
+        if (_classIndex is not null)
+        {
+            return ReadClassLabel(ref reader, record);
+        }
         switch (reader.TokenType)
         {
             case JsonTokenType.Null:
@@ -243,6 +275,38 @@ internal sealed class EventParser
             default:
                 return "label must be 0, 1, true or false";
         }
+    }
+
+    // A class is named by its text: "late", or a number as written (3 and "3" both name "3").
+    private string? ReadClassLabel(ref Utf8JsonReader reader, ParsedRecord record)
+    {
+        string text;
+        switch (reader.TokenType)
+        {
+            case JsonTokenType.Null:
+                return null;
+            case JsonTokenType.String:
+                text = reader.GetString()!;
+                break;
+            case JsonTokenType.Number:
+                text = Encoding.UTF8.GetString(reader.ValueSpan);
+                break;
+            case JsonTokenType.True:
+                text = "true";
+                break;
+            case JsonTokenType.False:
+                text = "false";
+                break;
+            default:
+                return "label must name one of the classes in Model:Classes";
+        }
+        if (_classLookup.TryGetValue(text.AsSpan(), out int index))
+        {
+            record.Label = index;
+            return null;
+        }
+        string shown = text.Length > 40 ? string.Concat(text.AsSpan(0, 40), "…") : text;
+        return $"label '{shown}' names no class in Model:Classes ({string.Join(", ", _classes!)})";
     }
 
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]

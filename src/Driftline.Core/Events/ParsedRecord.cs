@@ -23,7 +23,7 @@ internal sealed class ParsedRecord
     /// <summary>Event time as UTC ticks, or <see cref="NoTime"/> when the record has none.</summary>
     public long TimeTicks { get; set; } = NoTime;
 
-    /// <summary>The label: 0, 1, or -1 when absent.</summary>
+    /// <summary>The label: 0 or 1 (binary), the class index (multiclass), or -1 when absent.</summary>
     public int Label { get; set; } = -1;
 
     /// <summary>An external model's probability (monitor mode), or NaN when absent.</summary>

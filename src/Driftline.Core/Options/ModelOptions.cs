@@ -48,9 +48,41 @@ internal sealed class ModelOptions
     /// <summary>Most distinct keys (one model each) before new keys are rejected. Default 64.</summary>
     public int MaxModels { get; set; } = 64;
 
+    /// <summary>
+    /// The class names of a multiclass (softmax) model, in the order of its outputs; at least
+    /// three. Null (the default) keeps the model binary with labels 0 and 1. A label names a
+    /// class by its text, so <c>3</c> and <c>"3"</c> both name the class "3".
+    /// </summary>
+    public List<string>? Classes { get; set; }
+
+    /// <summary>Number of outcomes: the length of <see cref="Classes"/>, or 2 for a binary model.</summary>
+    public int ClassCount => Classes is { Count: > 0 } classes ? classes.Count : 2;
+
+    /// <summary>True when <see cref="Classes"/> makes the model multiclass.</summary>
+    public bool IsMulticlass => Classes is { Count: > 0 };
+
     /// <summary>Checks every option; returns the mistakes found.</summary>
     public IEnumerable<OptionError> Validate(string section = "Model")
     {
+        if (Classes is { } classes)
+        {
+            if (classes.Count < 3)
+            {
+                yield return new($"{section}:Classes", $"lists {classes.Count} class(es); a multiclass model needs at least 3",
+                    "List three or more class names, e.g. [\"on-time\",\"late\",\"failed\"], or remove Classes for a binary model with labels 0 and 1");
+            }
+            for (int i = 0; i < classes.Count; i++)
+            {
+                if (string.IsNullOrWhiteSpace(classes[i]))
+                {
+                    yield return new($"{section}:Classes:{i}", "is empty", "Give every class a name, e.g. \"late\"");
+                }
+                else if (classes.IndexOf(classes[i]) < i)
+                {
+                    yield return new($"{section}:Classes:{i}", $"'{classes[i]}' is listed twice", "List each class once");
+                }
+            }
+        }
         if (HashBits is < 10 or > 28)
         {
             yield return new($"{section}:HashBits", $"{HashBits} is outside 10–28", "Use 18 for up to about a hundred thousand distinct feature values, more for larger vocabularies");

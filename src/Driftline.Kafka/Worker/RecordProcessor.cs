@@ -24,6 +24,10 @@ internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats, 
         {
             _parser.SegmentFeature = engine.Options.Monitor.SegmentBy;
         }
+        if (!ReferenceEquals(_parser.Classes, engine.Options.Model.Classes))
+        {
+            _parser.Classes = engine.Options.Model.Classes;
+        }
         var value = record.Value.AsSpan();
         if (value.Length > input.MaxLineBytes)
         {

@@ -80,6 +80,16 @@ internal sealed class ReplayCommand(CommandContext context)
                 [new("Monitor:SegmentBy", $"'{other.Options.Monitor.SegmentBy ?? "(none)"}' here but '{first.Options.Monitor.SegmentBy ?? "(none)"}' in '{first.Name}'; configurations compared in one replay share one parse",
                     "Give every configuration the same Monitor:SegmentBy, or replay them one at a time")]);
         }
+        // Labels are read as class indexes by the shared parse, so the classes must agree too.
+        static string ClassesOf(DriftlineOptions o) => o.Model.Classes is { } c ? string.Join(", ", c) : "(binary)";
+        if (configs.Select(c => ClassesOf(c.Options)).Distinct(StringComparer.Ordinal).Count() > 1)
+        {
+            var first = configs[0];
+            var other = configs.First(c => ClassesOf(c.Options) != ClassesOf(first.Options));
+            return ConfigErrors.Report(context.Error, other.Name,
+                [new("Model:Classes", $"'{ClassesOf(other.Options)}' here but '{ClassesOf(first.Options)}' in '{first.Name}'; configurations compared in one replay share one parse",
+                    "Give every configuration the same Model:Classes, or replay them one at a time")]);
+        }
         EngineSnapshot? start = null;
         if (warmStart is not null)
         {

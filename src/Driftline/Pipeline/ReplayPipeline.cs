@@ -43,6 +43,7 @@ internal sealed class ReplayPipeline
         _parser.SegmentFeature = _lanes[0].Engine.Options.Monitor.SegmentBy;
         // Likewise the size limits: the first configuration's Input section applies to the read.
         _parser.MaxTextBytes = _lanes[0].Engine.Options.Input.MaxTextBytes;
+        _parser.Classes = _lanes[0].Engine.Options.Model.Classes;
     }
 
     /// <summary>The lanes, in the order given.</summary>
