@@ -67,6 +67,14 @@ internal sealed class AlertRuleOptions
     /// <summary>True for measures decided by a sequential detector rather than by Raise/Clear thresholds.</summary>
     public bool IsDetector => Metric is AlertMetric.CalibrationDrift or AlertMetric.LossShift or AlertMetric.LossChange;
 
+    /// <summary>
+    /// True for measures of the whole model (its log-loss, alone or against the prior, and the
+    /// change detectors on it): with <c>Model:Classes</c> they watch the true class's
+    /// probability; every other measure runs once per class, one class against the rest.
+    /// </summary>
+    [System.Text.Json.Serialization.JsonIgnore]
+    public bool WatchesWholeModel => Metric is AlertMetric.LogLoss or AlertMetric.LogLossOverPrior or AlertMetric.LossShift or AlertMetric.LossChange;
+
     /// <summary>Severity given to the alert. Default <see cref="AlertSeverity.Warning"/>.</summary>
     public AlertSeverity Severity { get; set; } = AlertSeverity.Warning;
 
@@ -143,4 +151,16 @@ internal sealed class AlertRuleOptions
         new() { Name = "calibration-drift", Metric = AlertMetric.CalibrationDrift, Window = 1_000, MinLabels = 2_000, LabelsPerFalseAlarm = 1e6, Severity = AlertSeverity.Critical },
         new() { Name = "worse-than-prior", Metric = AlertMetric.LogLossOverPrior, Window = 2_000, MinLabels = 1_000, Raise = 1.0, Clear = 0.95 },
     ];
+
+    /// <summary>
+    /// This rule as it runs for each of <paramref name="classes"/> classes one against the rest:
+    /// the sequential test's labels per false alarm are multiplied by the number of classes
+    /// (Bonferroni), so the K tests together keep the false-alarm promise made for the model.
+    /// </summary>
+    public AlertRuleOptions PerClass(int classes)
+    {
+        var copy = (AlertRuleOptions)MemberwiseClone();
+        copy.LabelsPerFalseAlarm = LabelsPerFalseAlarm * classes;
+        return copy;
+    }
 }

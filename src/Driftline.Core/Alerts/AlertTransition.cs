@@ -15,6 +15,7 @@ namespace Driftline.Core.Alerts;
 /// <param name="RelativeTo">What the value is measured against.</param>
 /// <param name="Break">For the sequential calibration test: the recalibration that best explains the labels, in words.</param>
 /// <param name="Incident">The incident the transition belongs to (1, 2, …): a stretch with at least one rule raised; 0 when not known.</param>
+/// <param name="Class">Multiclass: the class the rule watches one against the rest; null for the whole model.</param>
 internal sealed record AlertTransition(string Rule, bool Raised, AlertMetric Metric, double Value, double Threshold,
     int Window, string EventId, long TimeTicks, long Labels, AlertSeverity Severity = AlertSeverity.Warning,
-    AlertExplanation? Explanation = null, AlertBaseline RelativeTo = AlertBaseline.None, string? Break = null, long Incident = 0);
+    AlertExplanation? Explanation = null, AlertBaseline RelativeTo = AlertBaseline.None, string? Break = null, string? Class = null, long Incident = 0);

@@ -39,7 +39,8 @@ internal static class PredictionLines
         ArgumentNullException.ThrowIfNull(json);
         foreach (ref readonly var p in predictions)
         {
-            if (p.Id.AsSpan().ContainsAnyExcept(Plain) || p.Key.AsSpan().ContainsAnyExcept(Plain))
+            // Multiclass lines (p an object over the classes) go through the writer too.
+            if (p.Classes is not null || p.Id.AsSpan().ContainsAnyExcept(Plain) || p.Key.AsSpan().ContainsAnyExcept(Plain))
             {
                 json.Reset(buffer);
                 RecordJson.WritePrediction(json, p);

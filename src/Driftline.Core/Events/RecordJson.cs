@@ -17,7 +17,20 @@ internal static class RecordJson
         w.WriteStartObject();
         w.WriteString("id"u8, p.Id);
         w.WriteString("key"u8, p.Key);
-        w.WriteNumber("p"u8, p.P);
+        if (p.Classes is { } classes && p.ClassNames is { } names)
+        {
+            // Multiclass: an object over the classes in the configured order.
+            w.WriteStartObject("p"u8);
+            for (int k = 0; k < classes.Length; k++)
+            {
+                w.WriteNumber(names[k], classes[k]);
+            }
+            w.WriteEndObject();
+        }
+        else
+        {
+            w.WriteNumber("p"u8, p.P);
+        }
         w.WriteNumber("model_version"u8, p.ModelVersion);
         if (p.TimeTicks != ParsedRecord.NoTime)
         {
@@ -35,6 +48,10 @@ internal static class RecordJson
     {
         w.WriteStartObject();
         w.WriteString("rule"u8, a.Rule);
+        if (a.Class is not null)
+        {
+            w.WriteString("class"u8, a.Class);
+        }
         w.WriteString("state"u8, a.Raised ? "raised" : "cleared");
         w.WriteString("metric"u8, MetricName(a.Metric));
         w.WriteNumber("value"u8, a.Value);
@@ -170,6 +187,14 @@ internal static class RecordJson
         string threshold = a.Threshold.ToString("0.####", CultureInfo.InvariantCulture);
         // Compared as printed, so a reader never sees "0.06, above the raise threshold 0.06".
         string relation = value == threshold ? "at" : a.Value > a.Threshold ? "above" : "below";
+        if (a.Class is not null)
+        {
+            measure = $"for class '{a.Class}' against the rest, {measure}";
+            if (a.Raised && a.Explanation is { } c && double.IsFinite(c.MeanP) && double.IsFinite(c.ObservedRate))
+            {
+                why = $" Class '{a.Class}' {(c.MeanP < c.ObservedRate ? "under" : "over")}-predicted: predicted {c.MeanP:0.00}, observed {c.ObservedRate:0.00}." + why;
+            }
+        }
         return a.Raised
             ? $"Raised: {measure}{relative} {over} is {value}, {relation} the raise threshold {threshold}.{brk}{why}"
             : $"Cleared: {measure}{relative} {over} is back to {value}, {relation} the clear threshold {threshold}.{why}";

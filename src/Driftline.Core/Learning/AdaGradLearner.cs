@@ -23,20 +23,20 @@ internal sealed class AdaGradLearner : OnlineLearner
         _alpha = options.LearningRate;
         _beta = options.RateSmoothing;
         _l2 = options.L2;
-        _w = new double[Written.Capacity];
-        _g2 = new double[Written.Capacity];
+        _w = new double[Written.Capacity * Outputs];
+        _g2 = new double[Written.Capacity * Outputs];
     }
 
     /// <inheritdoc />
-    protected override double WeightAt(int position) => _w[position];
+    protected override double WeightAt(int index) => _w[index];
 
     /// <inheritdoc />
-    protected override void Step(int position, double g)
+    protected override void Step(int index, double g)
     {
-        g += _l2 * _w[position];
+        g += _l2 * _w[index];
         double inflation = Inflation;
-        _g2[position] += g * g * inflation;
-        _w[position] -= _alpha * g / (_beta + Math.Sqrt(_g2[position] / inflation));
+        _g2[index] += g * g * inflation;
+        _w[index] -= _alpha * g / (_beta + Math.Sqrt(_g2[index] / inflation));
     }
 
     /// <inheritdoc />
@@ -62,8 +62,8 @@ internal sealed class AdaGradLearner : OnlineLearner
         return new LearnerState
         {
             Slots = SlotsAt(positions),
-            First = Array.ConvertAll(positions, i => _w[i]),
-            Second = Array.ConvertAll(positions, i => _g2[i]),
+            First = EntriesAt(positions, _w),
+            Second = EntriesAt(positions, _g2),
             Inflation = Inflation,
             Updates = Updates,
             RefusedUpdates = RefusedUpdates,

@@ -34,34 +34,34 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         _beta = options.RateSmoothing;
         _l1 = options.L1;
         _l2 = options.L2;
-        _z = new double[Written.Capacity];
-        _n = new double[Written.Capacity];
-        _sigma = new double[Written.Capacity];
+        _z = new double[Written.Capacity * Outputs];
+        _n = new double[Written.Capacity * Outputs];
+        _sigma = new double[Written.Capacity * Outputs];
     }
 
     /// <inheritdoc />
-    protected override double WeightAt(int position)
+    protected override double WeightAt(int index)
     {
         double inflation = Inflation;
-        double z = _z[position] / inflation;
+        double z = _z[index] / inflation;
         if (Math.Abs(z) <= _l1)
         {
             return 0;
         }
-        double sigma = _sigma[position] / inflation;
+        double sigma = _sigma[index] / inflation;
         return -(z - Math.Sign(z) * _l1) / (_beta / _alpha + sigma + _l2);
     }
 
     /// <inheritdoc />
-    protected override void Step(int position, double g)
+    protected override void Step(int index, double g)
     {
         double inflation = Inflation;
-        double w = WeightAt(position);
-        double n = _n[position] / inflation;
+        double w = WeightAt(index);
+        double n = _n[index] / inflation;
         double sigma = (Math.Sqrt(n + g * g) - Math.Sqrt(n)) / _alpha;
-        _z[position] += (g - sigma * w) * inflation;
-        _n[position] += g * g * inflation;
-        _sigma[position] += sigma * inflation;
+        _z[index] += (g - sigma * w) * inflation;
+        _n[index] += g * g * inflation;
+        _sigma[index] += sigma * inflation;
     }
 
     /// <inheritdoc />
@@ -90,9 +90,9 @@ internal sealed class FtrlProximalLearner : OnlineLearner
         return new LearnerState
         {
             Slots = SlotsAt(positions),
-            First = Array.ConvertAll(positions, i => _z[i]),
-            Second = Array.ConvertAll(positions, i => _n[i]),
-            Third = Array.ConvertAll(positions, i => _sigma[i]),
+            First = EntriesAt(positions, _z),
+            Second = EntriesAt(positions, _n),
+            Third = EntriesAt(positions, _sigma),
             Inflation = Inflation,
             Updates = Updates,
             RefusedUpdates = RefusedUpdates,

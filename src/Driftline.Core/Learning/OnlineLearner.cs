@@ -5,8 +5,13 @@ using Driftline.Core.Options;
 namespace Driftline.Core.Learning;
 
 /// <summary>
-/// Binary logistic regression trained one label at a time, with per-coordinate adaptive
-/// rates and exponential forgetting. Forgetting discounts the learner's accumulated
+/// Logistic regression trained one label at a time, with per-coordinate adaptive
+/// rates and exponential forgetting: binary (one weight vector, P(y = 1) = σ(w·x)) or, with
+/// <c>Model:Classes</c>, multinomial (softmax) over K classes with K weight vectors fitted
+/// jointly by the gradient of the multinomial log-loss, ∂/∂w_k = (p_k − [y = k]) x (e.g.
+/// Bishop 2006, "Pattern Recognition and Machine Learning", §4.3.4). Both are the same code:
+/// a model has <see cref="Outputs"/> weight vectors (1 for binary, K for softmax), scores
+/// into a span of that many probabilities and learns from the true class index. Forgetting discounts the learner's accumulated
 /// statistics by γ = 2^(−1/half-life) per label, so evidence from h labels ago counts half and
 /// the rates never shrink to nothing: the model keeps following drift instead of freezing.
 /// </summary>
@@ -15,6 +20,9 @@ namespace Driftline.Core.Learning;
 /// divided by γ^t, so a label touches only its own coordinates (O(active features)). The
 /// stored values are renormalised, O(written slots), when the factor nears the range of a double,
 /// which happens once every several hundred half-lives.
+/// Each hashed slot holds <see cref="Outputs"/> consecutive statistics, one per weight vector,
+/// so a softmax model costs one hash lookup per feature like a binary one. Forgetting and the
+/// per-coordinate rates act on every output's coordinate alike.
 /// </remarks>
 internal abstract class OnlineLearner
 {
@@ -28,6 +36,7 @@ internal abstract class OnlineLearner
     {
         ArgumentNullException.ThrowIfNull(options);
         Size = 1 << options.HashBits;
+        Outputs = options.IsMulticlass ? options.ClassCount : 1;
         _discount = options.HalfLifeLabels > 0 ? Math.Pow(2, -1 / options.HalfLifeLabels) : 1.0;
     }
 
@@ -39,6 +48,13 @@ internal abstract class OnlineLearner
 
     /// <summary>Number of weight slots.</summary>
     public int Size { get; }
+
+    /// <summary>
+    /// Weight vectors: 1 for a binary model (its one probability is P(y = 1)), K for a softmax
+    /// model over K classes (one probability per class). Subclasses keep this many statistics per
+    /// written slot, at dense index position × Outputs + output.
+    /// </summary>
+    public int Outputs { get; }
 
     /// <summary>Labels learned from: the model version.</summary>
     public long Updates { get; protected set; }
@@ -68,32 +84,117 @@ internal abstract class OnlineLearner
         return m;
     }
 
-    /// <summary>P(y = 1 | x), never exactly 0 or 1 (the margin is limited to ±35).</summary>
+    /// <summary>P(y = 1 | x), never exactly 0 or 1 (the margin is limited to ±35); binary models only.</summary>
     public double Predict(SparseVector x) => Sigmoid(Margin(x));
+
+    /// <summary>The <see cref="Outputs"/> margins of <paramref name="x"/> (for binary, the log-odds).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    public void Margins(SparseVector x, Span<double> margins)
+    {
+        int k = Outputs;
+        margins = margins[..k];
+        margins.Clear();
+        var slots = x.Slots;
+        var values = x.Values;
+        var written = Written;
+        for (int i = 0; i < slots.Length; i++)
+        {
+            int at = written.Find(slots[i]);
+            if (at >= 0)
+            {
+                int first = at * k;
+                for (int j = 0; j < k; j++)
+                {
+                    margins[j] += WeightAt(first + j) * values[i];
+                }
+            }
+        }
+    }
+
+    /// <summary>
+    /// Scores <paramref name="x"/> into <paramref name="probabilities"/> (<see cref="Outputs"/>
+    /// values): for binary, P(y = 1) exactly as <see cref="Predict"/>; for softmax, the K class
+    /// probabilities, summing to 1, each at least about e^−35 / K (every margin is held within
+    /// 35 of the largest) so no log-loss is infinite.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    public void Score(SparseVector x, Span<double> probabilities)
+    {
+        if (Outputs == 1)
+        {
+            probabilities[0] = Predict(x);
+            return;
+        }
+        Margins(x, probabilities);
+        Softmax(probabilities[..Outputs]);
+    }
+
+    /// <summary>Turns margins into softmax probabilities in place, each margin held within 35 of the largest.</summary>
+    public static void Softmax(Span<double> margins)
+    {
+        double max = double.NegativeInfinity;
+        foreach (double m in margins)
+        {
+            max = Math.Max(max, m);
+        }
+        double sum = 0;
+        for (int j = 0; j < margins.Length; j++)
+        {
+            double e = Math.Exp(Math.Max(margins[j] - max, -MarginLimit));
+            margins[j] = e;
+            sum += e;
+        }
+        for (int j = 0; j < margins.Length; j++)
+        {
+            margins[j] /= sum;
+        }
+    }
 
     /// <summary>
     /// Learns from one label: one gradient step of the log-loss at the current weights.
     /// Returns false, leaving the model untouched, when a gradient is not finite.
     /// </summary>
-    public bool Update(SparseVector x, int y) => Update(x, y, Predict(x));
+    public bool Update(SparseVector x, int y)
+    {
+        Span<double> p = stackalloc double[Outputs];
+        Score(x, p);
+        return Update(x, y, p);
+    }
 
     /// <summary>
     /// As <see cref="Update(SparseVector, int)"/>, with <paramref name="p"/> the prediction for
     /// <paramref name="x"/> under the current weights (saves a second pass when the label comes
-    /// with the event).
+    /// with the event); binary models only.
+    /// </summary>
+    public bool Update(SparseVector x, int y, double p) => Update(x, y, new ReadOnlySpan<double>(in p));
+
+    /// <summary>
+    /// Learns from one label, <paramref name="y"/> the true class index (0 or 1 for binary), with
+    /// <paramref name="probabilities"/> the <see cref="Score"/> of <paramref name="x"/> under the
+    /// current weights: one gradient step of the log-loss, (p_k − [y = k]) x for every output k
+    /// at once. Returns false, leaving the model untouched, when a gradient is not finite.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    public bool Update(SparseVector x, int y, double p)
+    public bool Update(SparseVector x, int y, ReadOnlySpan<double> probabilities)
     {
-        double g = p - y;
+        int k = Outputs;
+        // Output j stands for class j of a softmax model, and for class 1 of a binary one.
+        Span<double> g = stackalloc double[k];
+        for (int j = 0; j < k; j++)
+        {
+            g[j] = probabilities[j] - ((k == 1 ? 1 : j) == y ? 1 : 0);
+        }
         var values = x.Values;
         for (int i = 0; i < values.Length; i++)
         {
-            double gi = g * values[i];
-            if (!double.IsFinite(gi * gi))
+            for (int j = 0; j < k; j++)
             {
-                RefusedUpdates++;
-                return false;
+                double gi = g[j] * values[i];
+                if (!double.IsFinite(gi * gi))
+                {
+                    RefusedUpdates++;
+                    return false;
+                }
             }
         }
         var slots = x.Slots;
@@ -103,9 +204,13 @@ internal abstract class OnlineLearner
             int at = written.FindOrAdd(slots[i], out bool grew);
             if (grew)
             {
-                Resize(written.Capacity);
+                Resize(written.Capacity * k);
             }
-            Step(at, g * values[i]);
+            int first = at * k;
+            for (int j = 0; j < k; j++)
+            {
+                Step(first + j, g[j] * values[i]);
+            }
         }
         Updates++;
         if (_discount < 1)
@@ -113,7 +218,7 @@ internal abstract class OnlineLearner
             Inflation /= _discount;
             if (Inflation > RenormaliseAbove)
             {
-                Renormalise(1 / Inflation, Written.Count);
+                Renormalise(1 / Inflation, Written.Count * k);
                 Inflation = 1;
             }
         }
@@ -127,23 +232,25 @@ internal abstract class OnlineLearner
         return 1 / (1 + Math.Exp(-margin));
     }
 
-    /// <summary>The current weight of <paramref name="slot"/> (0 for a slot never written).</summary>
-    public double Weight(int slot)
+    /// <summary>The current weight of <paramref name="slot"/> for <paramref name="output"/> (0 for a slot never written).</summary>
+    public double Weight(int slot, int output = 0)
     {
+        ArgumentOutOfRangeException.ThrowIfNegative(output);
+        ArgumentOutOfRangeException.ThrowIfGreaterThanOrEqual(output, Outputs);
         int at = Written.Find(slot);
-        return at < 0 ? 0 : WeightAt(at);
+        return at < 0 ? 0 : WeightAt(at * Outputs + output);
     }
 
-    /// <summary>The current weight of the slot at dense <paramref name="position"/>.</summary>
-    protected abstract double WeightAt(int position);
+    /// <summary>The current weight at dense <paramref name="index"/> (position × Outputs + output).</summary>
+    protected abstract double WeightAt(int index);
 
-    /// <summary>Applies gradient <paramref name="g"/> to the slot at dense <paramref name="position"/>.</summary>
-    protected abstract void Step(int position, double g);
+    /// <summary>Applies gradient <paramref name="g"/> at dense <paramref name="index"/>.</summary>
+    protected abstract void Step(int index, double g);
 
-    /// <summary>Grows the dense arrays to <paramref name="capacity"/> positions, keeping their contents.</summary>
+    /// <summary>Grows the dense arrays to <paramref name="capacity"/> entries (positions × Outputs), keeping their contents.</summary>
     protected abstract void Resize(int capacity);
 
-    /// <summary>Multiplies every discounted statistic of the first <paramref name="count"/> positions by <paramref name="factor"/>.</summary>
+    /// <summary>Multiplies every discounted statistic of the first <paramref name="count"/> entries by <paramref name="factor"/>.</summary>
     protected abstract void Renormalise(double factor, int count);
 
     /// <summary>The learner's exact state, for a snapshot.</summary>
@@ -161,11 +268,16 @@ internal abstract class OnlineLearner
         ArgumentNullException.ThrowIfNull(first);
         ArgumentNullException.ThrowIfNull(second);
         var positions = new List<int>(Written.Count);
+        int k = Outputs;
         for (int at = 0; at < Written.Count; at++)
         {
-            if (first[at] != 0 || second[at] != 0)
+            for (int j = at * k; j < at * k + k; j++)
             {
-                positions.Add(at);
+                if (first[j] != 0 || second[j] != 0)
+                {
+                    positions.Add(at);
+                    break;
+                }
             }
         }
         positions.Sort((x, y) => Written.SlotAt(x).CompareTo(Written.SlotAt(y)));
@@ -174,6 +286,23 @@ internal abstract class OnlineLearner
 
     /// <summary>The slots at <paramref name="positions"/>.</summary>
     protected int[] SlotsAt(int[] positions) => Array.ConvertAll(positions, Written.SlotAt);
+
+    /// <summary>
+    /// The entries of <paramref name="statistic"/> at <paramref name="positions"/>, each
+    /// position's <see cref="Outputs"/> entries in turn (for binary, one per position).
+    /// </summary>
+    protected double[] EntriesAt(int[] positions, double[] statistic)
+    {
+        ArgumentNullException.ThrowIfNull(positions);
+        ArgumentNullException.ThrowIfNull(statistic);
+        int k = Outputs;
+        var entries = new double[positions.Length * k];
+        for (int i = 0; i < positions.Length; i++)
+        {
+            Array.Copy(statistic, positions[i] * k, entries, i * k, k);
+        }
+        return entries;
+    }
 
     /// <summary>
     /// Restores the counters on import and writes the imported slots into the table in
@@ -185,9 +314,10 @@ internal abstract class OnlineLearner
     {
         ArgumentNullException.ThrowIfNull(state);
         int n = state.Slots.Length;
-        if (state.First.Length != n || state.Second.Length != n || (statistics == 3 ? state.Third.Length != n : state.Third.Length != 0))
+        int entries = n * Outputs;
+        if (state.First.Length != entries || state.Second.Length != entries || (statistics == 3 ? state.Third.Length != entries : state.Third.Length != 0))
         {
-            throw new InvalidDataException($"the saved model's statistics do not match its {n} weight slots (it was saved by another learner, or is damaged)");
+            throw new InvalidDataException($"the saved model's statistics do not match its {n} weight slots × {Outputs} output(s) (it was saved by another learner or for another number of classes, or is damaged)");
         }
         Written.Clear();
         foreach (int slot in state.Slots)
@@ -203,7 +333,7 @@ internal abstract class OnlineLearner
                 throw new InvalidDataException($"the saved model lists weight slot {slot} twice");
             }
         }
-        Resize(Written.Capacity);
+        Resize(Written.Capacity * Outputs);
         Updates = state.Updates;
         RefusedUpdates = state.RefusedUpdates;
         Inflation = state.Inflation;

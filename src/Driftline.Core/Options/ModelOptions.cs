@@ -1,3 +1,5 @@
+using System.Text.Json.Serialization;
+
 namespace Driftline.Core.Options;
 
 /// <summary>
@@ -53,12 +55,15 @@ internal sealed class ModelOptions
     /// three. Null (the default) keeps the model binary with labels 0 and 1. A label names a
     /// class by its text, so <c>3</c> and <c>"3"</c> both name the class "3".
     /// </summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public List<string>? Classes { get; set; }
 
     /// <summary>Number of outcomes: the length of <see cref="Classes"/>, or 2 for a binary model.</summary>
+    [JsonIgnore]
     public int ClassCount => Classes is { Count: > 0 } classes ? classes.Count : 2;
 
     /// <summary>True when <see cref="Classes"/> makes the model multiclass.</summary>
+    [JsonIgnore]
     public bool IsMulticlass => Classes is { Count: > 0 };
 
     /// <summary>Checks every option; returns the mistakes found.</summary>

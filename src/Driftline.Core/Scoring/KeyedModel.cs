@@ -14,6 +14,7 @@ internal sealed class KeyedModel
         Key = key;
         Featurizer = new Featurizer(options);
         Learner = OnlineLearner.Create(options);
+        Prior = new PriorBaseline(options.ClassCount);
     }
 
     /// <summary>The key the model serves.</summary>
@@ -26,7 +27,7 @@ internal sealed class KeyedModel
     public OnlineLearner Learner { get; }
 
     /// <summary>The Laplace-corrected class prior kept beside the model.</summary>
-    public PriorBaseline Prior { get; set; } = new();
+    public PriorBaseline Prior { get; set; }
 
     /// <summary>Events scored by this model.</summary>
     public long Scored { get; set; }

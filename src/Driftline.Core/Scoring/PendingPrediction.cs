@@ -50,6 +50,39 @@ internal sealed class PendingPrediction
     /// <summary>The class-prior baseline's probability at the same moment.</summary>
     public double PriorP { get; set; }
 
+    /// <summary>Multiclass: the class probabilities emitted (empty for binary).</summary>
+    public ReadOnlySpan<double> ClassP => _classP;
+
+    /// <summary>Multiclass: the class prior's probabilities at the same moment (empty for binary).</summary>
+    public ReadOnlySpan<double> ClassPriorP => _classPriorP;
+
+    private double[] _classP = [];
+    private double[] _classPriorP = [];
+
+    /// <summary>
+    /// Keeps the model's and the prior's outputs: one value each for a binary model (in
+    /// <see cref="P"/> and <see cref="PriorP"/>), K for a multiclass one (the entry's arrays are
+    /// reused from one prediction to the next).
+    /// </summary>
+    public void SetProbabilities(ReadOnlySpan<double> p, ReadOnlySpan<double> priorP)
+    {
+        if (p.Length == 1)
+        {
+            P = p[0];
+            PriorP = priorP[0];
+            return;
+        }
+        if (_classP.Length != p.Length)
+        {
+            _classP = new double[p.Length];
+            _classPriorP = new double[p.Length];
+        }
+        p.CopyTo(_classP);
+        priorP.CopyTo(_classPriorP);
+        P = double.NaN;
+        PriorP = double.NaN;
+    }
+
     /// <summary>The event's segment (see <c>Monitor:SegmentBy</c>), or null.</summary>
     public string? Segment { get; set; }
 

@@ -40,13 +40,14 @@ internal sealed class ScoringEngine
     private readonly List<KeyedModel> _models = [];
     private readonly SparseVector _x = new();
     private readonly SparseVector _lateX = new();
-    private readonly (int Size, CalibrationWindow Model, CalibrationWindow Prior)[] _windows;
-    private readonly int _reportWindow;
-    private readonly (AlertRule Rule, int Window)[] _rules;
-    private readonly (TimeSpan Span, TimeWindow Model, TimeWindow Prior)[] _timeWindows;
-    private readonly int[] _ruleTimeWindow;
+    // Channel 0 is the model as a whole (binary: the only one); with Model:Classes, channel
+    // k + 1 is class k against the rest.
+    private readonly GradingChannel[] _channels;
     private readonly SegmentTracker? _segments;
     private readonly BinEdges _edges;
+    private readonly int _outputs;
+    private readonly double[] _p;
+    private readonly double[] _priorP;
     private long _clockTicks = ParsedRecord.NoTime;
     private readonly long _maxSkewTicks;
     private string? _lastKey;
@@ -64,18 +65,24 @@ internal sealed class ScoringEngine
         _maxSkewTicks = options.Labels.MaxClockSkew.Ticks;
         InlineLabelled = new RecentIds(options.Labels.MaxPending);
         var rules = options.EffectiveAlerts;
-        var sizes = rules.Where(r => r.WindowTime is null).Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
-        // A time window holds the last T of event time, at most the rule's Window labels.
-        var spans = rules.Where(r => r.WindowTime is not null).Select(r => (Span: r.WindowTime!.Value, Max: r.Window)).Distinct().ToArray();
-        _timeWindows = spans.Select(t => (t.Span, new TimeWindow(t.Span, t.Max, options.Monitor.Bins), new TimeWindow(t.Span, t.Max, options.Monitor.Bins))).ToArray();
-        _ruleTimeWindow = rules.Select(r => r.WindowTime is null ? -1 : Array.IndexOf(spans, (r.WindowTime.Value, r.Window))).ToArray();
         int bins = options.Monitor.Bins;
         _edges = new BinEdges(bins);
-        _windows = sizes.Select(s => (s, new CalibrationWindow(s, bins), new CalibrationWindow(s, bins))).ToArray();
-        _reportWindow = Array.IndexOf(sizes, options.Monitor.Window);
-        _rules = rules.Select(r => (new AlertRule(r), Array.IndexOf(sizes, r.Window))).ToArray();
-        Totals = new CalibrationTotals(bins);
-        PriorTotals = new CalibrationTotals(bins);
+        if (options.Model.Classes is { Count: > 0 } classes)
+        {
+            // Whole-model rules watch the true class's probability; the others run per class.
+            var perClass = rules.Where(r => !r.WatchesWholeModel).Select(r => r.PerClass(classes.Count)).ToList();
+            _channels = [new GradingChannel(options, rules.Where(r => r.WatchesWholeModel).ToList(), null),
+                .. classes.Select(c => new GradingChannel(options, perClass, c))];
+            ClassNames = classes;
+            TopLabel = new CalibrationTotals(bins);
+        }
+        else
+        {
+            _channels = [new GradingChannel(options, rules, null)];
+        }
+        _outputs = options.Model.IsMulticlass ? options.Model.ClassCount : 1;
+        _p = new double[_outputs];
+        _priorP = new double[_outputs];
         _segments = options.Monitor.SegmentBy is null ? null : new SegmentTracker(options.Monitor.Window, options.Monitor.MaxSegments);
     }
 
@@ -88,23 +95,35 @@ internal sealed class ScoringEngine
     /// <summary>Ids of the latest events (at most <c>Labels:MaxPending</c>) that came with their label, to recognise a late label for one as a duplicate.</summary>
     public RecentIds InlineLabelled { get; }
 
-    /// <summary>The model over the whole run.</summary>
-    public CalibrationTotals Totals { get; private set; }
+    /// <summary>The model over the whole run (multiclass: graded on the true class's probability, so its log-loss is the multiclass log-loss).</summary>
+    public CalibrationTotals Totals => _channels[0].Totals;
 
     /// <summary>The class-prior baseline over the whole run.</summary>
-    public CalibrationTotals PriorTotals { get; private set; }
+    public CalibrationTotals PriorTotals => _channels[0].PriorTotals;
+
+    /// <summary>The class names of a multiclass model, or null for a binary one.</summary>
+    public IReadOnlyList<string>? ClassNames { get; }
+
+    /// <summary>
+    /// Multiclass: the top label over the whole run, graded (max_k p_k, [argmax = y]), so its
+    /// ECE is the top-label (confidence) ECE; null for a binary model.
+    /// </summary>
+    public CalibrationTotals? TopLabel { get; private set; }
+
+    /// <summary>The grading channels: the whole model first, then (multiclass) each class against the rest.</summary>
+    public IReadOnlyList<GradingChannel> Channels => _channels;
 
     /// <summary>The models, in the order their keys first appeared.</summary>
     public IReadOnlyList<KeyedModel> Models => _models;
 
     /// <summary>The alert rules and their states.</summary>
-    public IEnumerable<AlertRule> Rules => _rules.Select(r => r.Rule);
+    public IEnumerable<AlertRule> Rules => _channels.SelectMany(c => c.Rules.Select(r => r.Rule));
 
     /// <summary>The reported rolling window of the model.</summary>
-    public CalibrationWindow Window => _windows[_reportWindow].Model;
+    public CalibrationWindow Window => _channels[0].Window;
 
     /// <summary>The reported rolling window of the baseline.</summary>
-    public CalibrationWindow PriorWindow => _windows[_reportWindow].Prior;
+    public CalibrationWindow PriorWindow => _channels[0].PriorWindow;
 
     /// <summary>The options the engine runs with.</summary>
     public DriftlineOptions Options => _options;
@@ -183,11 +202,15 @@ internal sealed class ScoringEngine
         }
         var model = _models[index];
         model.Featurizer.Featurize(record, _x);
-        double p = model.Learner.Predict(_x);
-        double priorP = model.Prior.Predict();
+        var p = _p;
+        var priorP = _priorP;
+        model.Learner.Score(_x, p);
+        model.Prior.Predict(priorP);
         model.Scored++;
         Counters.Events++;
-        _sink.OnPrediction(new Prediction(record.Id, model.Key, p, model.Learner.Updates, record.TimeTicks));
+        _sink.OnPrediction(_outputs == 1
+            ? new Prediction(record.Id, model.Key, p[0], model.Learner.Updates, record.TimeTicks)
+            : new Prediction(record.Id, model.Key, double.NaN, model.Learner.Updates, record.TimeTicks, (double[])p.Clone(), ClassNames));
 
         if (record.HasLabel)
         {
@@ -199,8 +222,7 @@ internal sealed class ScoringEngine
         }
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
-        pending.P = p;
-        pending.PriorP = priorP;
+        pending.SetProbabilities(p, priorP);
         pending.Segment = record.Segment;
         pending.SetFeatures(_x.Slots, _x.Values);
         return StepOutcome.Scored;
@@ -226,7 +248,16 @@ internal sealed class ScoringEngine
         Counters.LateLabels++;
         var model = _models[pending.Model];
         time = record.HasTime ? time : pending.TimeTicks;
-        Grade(model, pending.P, pending.PriorP, record.Label, record.Id, time, pending.Segment);
+        if (_outputs == 1)
+        {
+            double p = pending.P;
+            double priorP = pending.PriorP;
+            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, pending.Segment);
+        }
+        else
+        {
+            Grade(model, pending.ClassP, pending.ClassPriorP, record.Label, record.Id, time, pending.Segment);
+        }
         if (pending.Count > 0)
         {
             _lateX.CopyFrom(pending.Slots, pending.Values);
@@ -247,56 +278,79 @@ internal sealed class ScoringEngine
             return StepOutcome.Rejected;
         }
         var model = _models[index];
+        if (_outputs != 1)
+        {
+            Counters.Rejected++;
+            RejectReason = "p must be an object over the classes of Model:Classes, e.g. {\"" + ClassNames![0] + "\":0.7,...}";
+            return StepOutcome.Rejected;
+        }
         double priorP = model.Prior.Predict();
+        double p = record.Probability;
         Counters.Probabilities++;
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, record.Probability, priorP, record.Label, record.Id, time, record.Segment);
+            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, record.Segment);
             InlineLabelled.Add(record.Id);
             return StepOutcome.ProbabilityRecorded;
         }
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
-        pending.P = record.Probability;
-        pending.PriorP = priorP;
+        pending.SetProbabilities(new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP));
         pending.Segment = record.Segment;
         pending.SetFeatures([], []);
         return StepOutcome.ProbabilityRecorded;
     }
 
+    // The grading step: one graded label becomes one (p, y) pair per channel. Binary: the
+    // pair itself. Multiclass: (p_y, 1) for the whole model, whose log-loss is then −ln p_y,
+    // and (p_k, [y = k]) for each class k against the rest.
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    private void Grade(KeyedModel model, double p, double priorP, int y, string id, long timeTicks, string? segment)
+    private void Grade(KeyedModel model, ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, int y, string id, long timeTicks, string? segment)
     {
         model.Prior.Add(y);
-        _segments?.Add(segment, p, y);
-        WindowAuc?.Add(p, y);
         Counters.Labels++;
+        if (_outputs == 1)
+        {
+            _segments?.Add(segment, p[0], y);
+            WindowAuc?.Add(p[0], y);
+            GradeChannel(_channels[0], p[0], priorP[0], y, id, timeTicks, explain: true);
+        }
+        else
+        {
+            int top = 0;
+            for (int k = 1; k < p.Length; k++)
+            {
+                if (p[k] > p[top])
+                {
+                    top = k;
+                }
+            }
+            TopLabel!.Add(GradedTerms.Of(p[top], top == y ? 1 : 0, _edges));
+            GradeChannel(_channels[0], p[y], priorP[y], 1, id, timeTicks, explain: false);
+            for (int k = 0; k < p.Length; k++)
+            {
+                GradeChannel(_channels[k + 1], p[k], priorP[k], k == y ? 1 : 0, id, timeTicks, explain: true);
+            }
+        }
+        if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
+        {
+            _sink.OnMetrics(CurrentMetrics(timeTicks));
+        }
+    }
+
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private void GradeChannel(GradingChannel channel, double p, double priorP, int y, string id, long timeTicks, bool explain)
+    {
         // Every window and total shares the bins, so each prediction's terms are computed once.
         var terms = GradedTerms.Of(p, y, _edges);
         var priorTerms = GradedTerms.Of(priorP, y, _edges);
-        Totals.Add(terms);
-        PriorTotals.Add(priorTerms);
-        foreach (var (_, window, priorWindow) in _windows)
+        channel.Add(terms, priorTerms, timeTicks);
+        var rules = channel.Rules;
+        for (int r = 0; r < rules.Length; r++)
         {
-            window.Add(terms);
-            priorWindow.Add(priorTerms);
-        }
-        if (timeTicks != ParsedRecord.NoTime)
-        {
-            var at = new DateTimeOffset(timeTicks, TimeSpan.Zero);
-            foreach (var (_, window, priorWindow) in _timeWindows)
-            {
-                window.Add(at, terms);
-                priorWindow.Add(at, priorTerms);
-            }
-        }
-        for (int r = 0; r < _rules.Length; r++)
-        {
-            var (rule, w) = _rules[r];
-            int t = _ruleTimeWindow[r];
-            IGradedWindow window = t >= 0 ? _timeWindows[t].Model : _windows[w].Model;
-            IGradedWindow priorWindow = t >= 0 ? _timeWindows[t].Prior : _windows[w].Prior;
+            var rule = rules[r].Rule;
+            var (window, priorWindow) = channel.WindowsOf(r);
             bool? change = rule.Evaluate(window, priorWindow, p, y, out double value);
             if (change is bool raised)
             {
@@ -315,19 +369,16 @@ internal sealed class ScoringEngine
                 var o = rule.Options;
                 double threshold = rule.Cusum is { } cusum ? (raised ? cusum.Threshold : cusum.ClearFraction * cusum.Threshold) : raised ? o.Raise : o.Clear;
                 _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, threshold, o.Window, id, timeTicks, Counters.Labels,
-                    o.Severity, AlertExplanation.Of(window, _segments?.Worst()), o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null, Counters.Incidents));
+                    o.Severity, explain ? AlertExplanation.Of(window, _segments?.Worst()) : null, o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null,
+                    channel.ClassName, Counters.Incidents));
             }
-        }
-        if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
-        {
-            _sink.OnMetrics(CurrentMetrics(timeTicks));
         }
     }
 
     // Only at a raise (rare), so a scan of the rules is fine.
     private bool AnyRaisedBesides(AlertRule rule)
     {
-        foreach (var (other, _) in _rules)
+        foreach (var other in Rules)
         {
             if (other != rule && other.Raised)
             {
@@ -352,6 +403,7 @@ internal sealed class ScoringEngine
             Scaling = m.Featurizer.Scaler.Export().ToList(),
             PriorCount = m.Prior.Count,
             PriorPositives = m.Prior.Positives,
+            PriorClassCounts = ClassNames is null ? null : m.Prior.ClassCounts.ToArray(),
             Scored = m.Scored,
         }).ToList(),
         Pending = Pending.Entries().Select(e => new PendingSnapshot
@@ -363,6 +415,8 @@ internal sealed class ScoringEngine
             // features are spent, so the snapshot keeps just the id, its place and the flag.
             P = e.Labelled ? 0 : e.P,
             PriorP = e.Labelled ? 0 : e.PriorP,
+            ClassP = e.Labelled || _outputs == 1 ? null : e.ClassP.ToArray(),
+            ClassPriorP = e.Labelled || _outputs == 1 ? null : e.ClassPriorP.ToArray(),
             Labelled = e.Labelled,
             Slots = e.Labelled ? null : e.Slots.ToArray(),
             Values = e.Labelled ? null : e.Values.ToArray(),
@@ -371,19 +425,13 @@ internal sealed class ScoringEngine
         Segments = _segments?.Export(),
         InlineLabelled = InlineLabelled.Entries().ToList(),
         ExpiredLabels = Pending.Expired,
-        Windows = _windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
-        TimeWindows = _timeWindows.Select(w => new TimeWindowSnapshot
-        {
-            Span = w.Span,
-            MaxCount = w.Model.MaxCount,
-            ModelLatest = w.Model.Latest,
-            PriorLatest = w.Prior.Latest,
-            Model = w.Model.ToArray(),
-            Prior = w.Prior.ToArray(),
-        }).ToList(),
+        Windows = ExportChannel(_channels[0]).Windows,
+        TimeWindows = ExportChannel(_channels[0]).TimeWindows,
         Totals = Totals.ToState(),
         PriorTotals = PriorTotals.ToState(),
-        Rules = _rules.Select(r => SnapshotRule(r.Rule)).ToList(),
+        Rules = ExportChannel(_channels[0]).Rules,
+        Classes = ClassNames is null ? null : _channels.Skip(1).Select(ExportChannel).ToList(),
+        TopLabel = TopLabel?.ToState(),
         Counters = Counters.Copy(),
         ClockTicks = _clockTicks,
     };
@@ -421,7 +469,11 @@ internal sealed class ScoringEngine
             {
                 model.Featurizer.Scaler.Import(stats);
             }
-            model.Prior = PriorBaseline.Restore(m.PriorCount, m.PriorPositives);
+            model.Prior = m.PriorClassCounts is { } counts ? PriorBaseline.Restore(counts) : PriorBaseline.Restore(m.PriorCount, m.PriorPositives);
+            if (model.Prior.Classes != _options.Model.ClassCount)
+            {
+                throw new InvalidDataException($"the saved model's class prior counts {model.Prior.Classes} classes but this configuration has {_options.Model.ClassCount}");
+            }
             model.Scored = m.Scored;
         }
     }
@@ -433,8 +485,15 @@ internal sealed class ScoringEngine
         {
             var slot = Pending.Add(e.Id, e.TimeTicks);
             slot.Model = e.Model;
-            slot.P = e.P;
-            slot.PriorP = e.PriorP;
+            if (e.ClassP is { } classP && e.ClassPriorP is { } classPriorP)
+            {
+                slot.SetProbabilities(classP, classPriorP);
+            }
+            else
+            {
+                slot.P = e.P;
+                slot.PriorP = e.PriorP;
+            }
             slot.SetFeatures(e.Slots ?? [], e.Values ?? []);
             slot.Segment = e.Segment;
             if (e.Labelled)
@@ -447,34 +506,83 @@ internal sealed class ScoringEngine
         {
             InlineLabelled.Add(id);
         }
-        int bins = _options.Monitor.Bins;
-        for (int i = 0; i < _windows.Length; i++)
+        ImportChannel(_channels[0], new ChannelSnapshot
         {
-            var saved = snapshot.Windows.FirstOrDefault(w => w.Size == _windows[i].Size);
-            if (saved is not null)
+            Windows = snapshot.Windows,
+            TimeWindows = snapshot.TimeWindows,
+            Totals = snapshot.Totals,
+            PriorTotals = snapshot.PriorTotals,
+            Rules = snapshot.Rules,
+        });
+        for (int c = 1; c < _channels.Length; c++)
+        {
+            if (snapshot.Classes?.FirstOrDefault(saved => saved.Class == _channels[c].ClassName) is { } saved)
             {
-                _windows[i] = (saved.Size, CalibrationWindow.Restore(saved.Size, bins, saved.Model), CalibrationWindow.Restore(saved.Size, bins, saved.Prior));
+                ImportChannel(_channels[c], saved);
             }
         }
-        for (int i = 0; i < _timeWindows.Length; i++)
+        if (snapshot.TopLabel is not null && TopLabel is not null)
         {
-            var (span, model, _) = _timeWindows[i];
+            TopLabel = CalibrationTotals.Restore(snapshot.TopLabel);
+        }
+        if (_segments is not null && snapshot.Segments is { } segments)
+        {
+            _segments.Import(segments);
+        }
+        Counters = snapshot.Counters.Copy();
+        _clockTicks = snapshot.ClockTicks;
+    }
+
+    private static ChannelSnapshot ExportChannel(GradingChannel channel) => new()
+    {
+        Class = channel.ClassName,
+        Windows = channel.Windows.Select(w => new WindowSnapshot { Size = w.Size, Model = w.Model.ToArray(), Prior = w.Prior.ToArray() }).ToList(),
+        TimeWindows = channel.TimeWindows.Select(w => new TimeWindowSnapshot
+        {
+            Span = w.Span,
+            MaxCount = w.Model.MaxCount,
+            ModelLatest = w.Model.Latest,
+            PriorLatest = w.Prior.Latest,
+            Model = w.Model.ToArray(),
+            Prior = w.Prior.ToArray(),
+        }).ToList(),
+        Totals = channel.Totals.ToState(),
+        PriorTotals = channel.PriorTotals.ToState(),
+        Rules = channel.Rules.Select(r => SnapshotRule(r.Rule)).ToList(),
+    };
+
+    private void ImportChannel(GradingChannel channel, ChannelSnapshot snapshot)
+    {
+        int bins = _options.Monitor.Bins;
+        var windows = channel.Windows;
+        for (int i = 0; i < windows.Length; i++)
+        {
+            var saved = snapshot.Windows.FirstOrDefault(w => w.Size == windows[i].Size);
+            if (saved is not null)
+            {
+                windows[i] = (saved.Size, CalibrationWindow.Restore(saved.Size, bins, saved.Model), CalibrationWindow.Restore(saved.Size, bins, saved.Prior));
+            }
+        }
+        var timeWindows = channel.TimeWindows;
+        for (int i = 0; i < timeWindows.Length; i++)
+        {
+            var (span, model, _) = timeWindows[i];
             var saved = snapshot.TimeWindows.FirstOrDefault(w => w.Span == span && w.MaxCount == model.MaxCount);
             if (saved is not null)
             {
-                _timeWindows[i] = (span, TimeWindow.Restore(span, saved.MaxCount, bins, saved.ModelLatest, saved.Model),
+                timeWindows[i] = (span, TimeWindow.Restore(span, saved.MaxCount, bins, saved.ModelLatest, saved.Model),
                     TimeWindow.Restore(span, saved.MaxCount, bins, saved.PriorLatest, saved.Prior));
             }
         }
         if (snapshot.Totals is not null)
         {
-            Totals = CalibrationTotals.Restore(snapshot.Totals);
+            channel.Totals = CalibrationTotals.Restore(snapshot.Totals);
         }
         if (snapshot.PriorTotals is not null)
         {
-            PriorTotals = CalibrationTotals.Restore(snapshot.PriorTotals);
+            channel.PriorTotals = CalibrationTotals.Restore(snapshot.PriorTotals);
         }
-        foreach (var (rule, _) in _rules)
+        foreach (var (rule, _) in channel.Rules)
         {
             var saved = snapshot.Rules.FirstOrDefault(r => r.Name == rule.Options.Name);
             if (saved is not null)
@@ -491,12 +599,6 @@ internal sealed class ScoringEngine
                 rule.ImportMonitors(saved);
             }
         }
-        if (_segments is not null && snapshot.Segments is { } segments)
-        {
-            _segments.Import(segments);
-        }
-        Counters = snapshot.Counters.Copy();
-        _clockTicks = snapshot.ClockTicks;
     }
 
     // Every rule continues exactly after a restore: the calibration test, the loss detectors,

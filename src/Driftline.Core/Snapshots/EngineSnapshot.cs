@@ -1,3 +1,4 @@
+using System.Text.Json.Serialization;
 using Driftline.Core.Features;
 using Driftline.Core.Learning;
 using Driftline.Core.Metrics;
@@ -54,6 +55,17 @@ internal sealed class EngineSnapshot
     public List<RuleSnapshot> Rules { get; set; } = [];
 
     /// <summary>
+    /// Multiclass: each class's one-against-the-rest channel (windows, totals, rules), in the
+    /// order of Model:Classes; the fields above then hold the whole model's. Null for binary.
+    /// </summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public List<ChannelSnapshot>? Classes { get; set; }
+
+    /// <summary>Multiclass: the top-label totals (confidence against accuracy); null for binary.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public CalibrationTotalsState? TopLabel { get; set; }
+
+    /// <summary>
     /// The per-segment windows of <c>Monitor:SegmentBy</c>, in the order the segments first
     /// appeared; null when segments are not tracked (or in an older snapshot: they start empty).
     /// </summary>
@@ -97,6 +109,10 @@ internal sealed class ModelSnapshot
     /// <summary>Positive labels the prior has seen.</summary>
     public long PriorPositives { get; set; }
 
+    /// <summary>Multiclass: labels of each class the prior has seen, in the order of Model:Classes; null for binary.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public long[]? PriorClassCounts { get; set; }
+
     /// <summary>Events scored.</summary>
     public long Scored { get; set; }
 }
@@ -120,6 +136,14 @@ internal sealed class PendingSnapshot
     /// <summary>Baseline probability at the same moment (left out, as 0, once graded).</summary>
     [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingDefault)]
     public double PriorP { get; set; }
+
+    /// <summary>Multiclass: the class probabilities emitted (null for binary or once labelled).</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public double[]? ClassP { get; set; }
+
+    /// <summary>Multiclass: the class prior's probabilities at the same moment.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public double[]? ClassPriorP { get; set; }
 
     /// <summary>Already graded (kept to recognise duplicates).</summary>
     public bool Labelled { get; set; }

@@ -10,7 +10,7 @@ internal static class EngineDriver
 {
     public static List<StepOutcome> Feed(ScoringEngine engine, IEnumerable<string> lines)
     {
-        var parser = new EventParser { SegmentFeature = engine.Options.Monitor.SegmentBy };
+        var parser = new EventParser { SegmentFeature = engine.Options.Monitor.SegmentBy, Classes = engine.Options.Model.Classes };
         var record = new ParsedRecord();
         var outcomes = new List<StepOutcome>();
         foreach (var line in lines)
