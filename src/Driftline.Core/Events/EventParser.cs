@@ -209,6 +209,15 @@ internal sealed class EventParser
                 {
                     continue;
                 }
+                if (_classIndex is not null)
+                {
+                    error = ReadClassProbabilities(ref reader, record);
+                    if (error is not null)
+                    {
+                        return error;
+                    }
+                    continue;
+                }
                 if (reader.TokenType != JsonTokenType.Number || !reader.TryGetDouble(out double p) || !double.IsFinite(p) || p < 0 || p > 1)
                 {
                     return "p must be a finite number between 0 and 1";
@@ -238,7 +247,7 @@ internal sealed class EventParser
         {
             record.Kind = RecordKind.Event;
         }
-        else if (!double.IsNaN(record.Probability))
+        else if (!double.IsNaN(record.Probability) || record.HasClassProbabilities)
         {
             record.Kind = RecordKind.Probability;
         }
@@ -275,6 +284,55 @@ internal sealed class EventParser
             default:
                 return "label must be 0, 1, true or false";
         }
+    }
+
+    /// <summary>Largest distance of a p object's sum from 1 that is accepted (rounding in the producer's output).</summary>
+    public const double ClassSumTolerance = 1e-6;
+
+    // Monitor mode with classes: p is an object naming every class once, each a probability,
+    // summing to 1 within ClassSumTolerance.
+    private string? ReadClassProbabilities(ref Utf8JsonReader reader, ParsedRecord record)
+    {
+        var classes = _classes!;
+        if (reader.TokenType != JsonTokenType.StartObject)
+        {
+            return $"p must be an object over the classes of Model:Classes ({string.Join(", ", classes)}), each a probability";
+        }
+        var p = record.SetClassProbabilities(classes.Count);
+        p.Fill(double.NaN);
+        while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
+        {
+            string name = reader.GetString()!;
+            reader.Read();
+            if (!_classLookup.TryGetValue(name.AsSpan(), out int k))
+            {
+                string shown = name.Length > 40 ? string.Concat(name.AsSpan(0, 40), "…") : name;
+                return $"p names '{shown}', which is not a class in Model:Classes ({string.Join(", ", classes)})";
+            }
+            if (!double.IsNaN(p[k]))
+            {
+                return $"p names class '{name}' twice";
+            }
+            if (reader.TokenType != JsonTokenType.Number || !reader.TryGetDouble(out double v) || !double.IsFinite(v) || v < 0 || v > 1)
+            {
+                return $"p of class '{name}' must be a finite number between 0 and 1";
+            }
+            p[k] = v;
+        }
+        double sum = 0;
+        for (int k = 0; k < p.Length; k++)
+        {
+            if (double.IsNaN(p[k]))
+            {
+                return $"p has no probability for class '{classes[k]}'";
+            }
+            sum += p[k];
+        }
+        if (Math.Abs(sum - 1) > ClassSumTolerance)
+        {
+            return $"p sums to {sum.ToString("R", System.Globalization.CultureInfo.InvariantCulture)} over the classes, not 1 (within {ClassSumTolerance:0e0})";
+        }
+        return null;
     }
 
     // A class is named by its text: "late", or a number as written (3 and "3" both name "3").

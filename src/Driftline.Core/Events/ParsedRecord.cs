@@ -29,6 +29,25 @@ internal sealed class ParsedRecord
     /// <summary>An external model's probability (monitor mode), or NaN when absent.</summary>
     public double Probability { get; set; } = double.NaN;
 
+    private double[] _classProbabilities = [];
+
+    /// <summary>Multiclass monitor mode: an external model's class probabilities, in the order of the classes; empty when absent.</summary>
+    public ReadOnlySpan<double> ClassProbabilities => HasClassProbabilities ? _classProbabilities : [];
+
+    /// <summary>True when the record carries a <c>p</c> object over the classes.</summary>
+    public bool HasClassProbabilities { get; private set; }
+
+    /// <summary>The buffer for <paramref name="classes"/> class probabilities (reused), marked present.</summary>
+    public Span<double> SetClassProbabilities(int classes)
+    {
+        if (_classProbabilities.Length != classes)
+        {
+            _classProbabilities = new double[classes];
+        }
+        HasClassProbabilities = true;
+        return _classProbabilities;
+    }
+
     /// <summary>Number of features in <see cref="Features"/>.</summary>
     public int FeatureCount { get; private set; }
 
@@ -54,6 +73,7 @@ internal sealed class ParsedRecord
         TimeTicks = NoTime;
         Label = -1;
         Probability = double.NaN;
+        HasClassProbabilities = false;
         FeatureCount = 0;
     }
 
@@ -78,6 +98,10 @@ internal sealed class ParsedRecord
         target.TimeTicks = TimeTicks;
         target.Label = Label;
         target.Probability = Probability;
+        if (HasClassProbabilities)
+        {
+            _classProbabilities.CopyTo(target.SetClassProbabilities(_classProbabilities.Length));
+        }
         foreach (ref readonly var f in Features)
         {
             target.AddFeature(f);

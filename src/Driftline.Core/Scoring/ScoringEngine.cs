@@ -75,6 +75,7 @@ internal sealed class ScoringEngine
                 .. classes.Select(c => new GradingChannel(options, perClass, c))];
             ClassNames = classes;
             TopLabel = new CalibrationTotals(bins);
+            TopLabelWindow = new CalibrationWindow(options.Monitor.Window, bins);
         }
         else
         {
@@ -109,6 +110,62 @@ internal sealed class ScoringEngine
     /// ECE is the top-label (confidence) ECE; null for a binary model.
     /// </summary>
     public CalibrationTotals? TopLabel { get; private set; }
+
+    /// <summary>Multiclass: the top label over the reported rolling window; null for a binary model.</summary>
+    public CalibrationWindow? TopLabelWindow { get; private set; }
+
+    /// <summary>
+    /// The model's measures over the reported window (<paramref name="total"/> false) or the
+    /// whole run. Binary: the window's or total's own. Multiclass: log-loss on the true class
+    /// (−ln p_y), the Brier score summed over classes, Σ_k (p_k − [y = k])² (Brier 1950, range
+    /// 0–2), and from the top label the ECE (top-label or confidence ECE, Guo et al. 2017), mean
+    /// p (mean confidence), mean y (accuracy) and their difference (over-confidence).
+    /// </summary>
+    public CalibrationSnapshot Measures(bool total) => Combine(total, prior: false);
+
+    /// <summary>The class prior's measures, as <see cref="Measures"/> gives the model's.</summary>
+    public CalibrationSnapshot PriorMeasures(bool total) => Combine(total, prior: true);
+
+    /// <summary>Multiclass: each class against the rest over the window or the whole run; empty for binary.</summary>
+    public IReadOnlyList<ClassMeasures> ClassMeasuresOf(bool total)
+    {
+        var classes = new List<ClassMeasures>(_channels.Length - 1);
+        for (int c = 1; c < _channels.Length; c++)
+        {
+            var channel = _channels[c];
+            var model = total ? channel.Totals.Current : channel.Window.Current;
+            var prior = total ? channel.PriorTotals.Current : channel.PriorWindow.Current;
+            classes.Add(new ClassMeasures(channel.ClassName!, model.MeanP, model.MeanY, model.Ece, prior.MeanP));
+        }
+        return classes;
+    }
+
+    /// <summary>
+    /// Multiclass: the class-wise ECE, the mean over classes of each class's ECE one against the
+    /// rest (Kull et al. 2019, "Beyond temperature scaling: obtaining well-calibrated multiclass
+    /// probabilities with Dirichlet calibration"); NaN for binary or before any label.
+    /// </summary>
+    public double ClassWiseEce(bool total) => ClassNames is null ? double.NaN : ClassMeasuresOf(total).Average(c => c.Ece);
+
+    private CalibrationSnapshot Combine(bool total, bool prior)
+    {
+        var whole = _channels[0];
+        var own = total ? (prior ? whole.PriorTotals.Current : whole.Totals.Current) : (prior ? whole.PriorWindow.Current : whole.Window.Current);
+        if (ClassNames is null || own.Count == 0)
+        {
+            return own;
+        }
+        double brier = 0;
+        for (int c = 1; c < _channels.Length; c++)
+        {
+            var channel = _channels[c];
+            brier += (total ? (prior ? channel.PriorTotals.Current : channel.Totals.Current) : (prior ? channel.PriorWindow.Current : channel.Window.Current)).Brier;
+        }
+        // The prior's top label is not tracked (it is the most frequent class so far); its
+        // calibration figures are left out rather than guessed.
+        var top = prior ? CalibrationSnapshot.Empty : total ? TopLabel!.Current : TopLabelWindow!.Current;
+        return new CalibrationSnapshot(own.Count, own.LogLoss, brier, top.Ece, top.MeanP, top.MeanY, top.CalibrationInTheLarge);
+    }
 
     /// <summary>The grading channels: the whole model first, then (multiclass) each class against the rest.</summary>
     public IReadOnlyList<GradingChannel> Channels => _channels;
@@ -280,9 +337,7 @@ internal sealed class ScoringEngine
         var model = _models[index];
         if (_outputs != 1)
         {
-            Counters.Rejected++;
-            RejectReason = "p must be an object over the classes of Model:Classes, e.g. {\"" + ClassNames![0] + "\":0.7,...}";
-            return StepOutcome.Rejected;
+            return RecordClassProbabilities(record, index, model);
         }
         double priorP = model.Prior.Predict();
         double p = record.Probability;
@@ -297,6 +352,31 @@ internal sealed class ScoringEngine
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.SetProbabilities(new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP));
+        pending.Segment = record.Segment;
+        pending.SetFeatures([], []);
+        return StepOutcome.ProbabilityRecorded;
+    }
+
+    private StepOutcome RecordClassProbabilities(ParsedRecord record, int index, KeyedModel model)
+    {
+        var p = record.ClassProbabilities;
+        if (p.Length != _outputs)
+        {
+            Counters.Rejected++;
+            RejectReason = $"p must be an object over the {_outputs} classes of Model:Classes ({string.Join(", ", ClassNames!)})";
+            return StepOutcome.Rejected;
+        }
+        model.Prior.Predict(_priorP);
+        Counters.Probabilities++;
+        if (record.HasLabel)
+        {
+            Counters.InlineLabels++;
+            Grade(model, p, _priorP, record.Label, record.Id, record.TimeTicks, record.Segment);
+            return StepOutcome.ProbabilityRecorded;
+        }
+        var pending = Pending.Add(record.Id, record.TimeTicks);
+        pending.Model = index;
+        pending.SetProbabilities(p, _priorP);
         pending.Segment = record.Segment;
         pending.SetFeatures([], []);
         return StepOutcome.ProbabilityRecorded;
@@ -326,7 +406,9 @@ internal sealed class ScoringEngine
                     top = k;
                 }
             }
-            TopLabel!.Add(GradedTerms.Of(p[top], top == y ? 1 : 0, _edges));
+            var topTerms = GradedTerms.Of(p[top], top == y ? 1 : 0, _edges);
+            TopLabel!.Add(topTerms);
+            TopLabelWindow!.Add(topTerms);
             GradeChannel(_channels[0], p[y], priorP[y], 1, id, timeTicks, explain: false);
             for (int k = 0; k < p.Length; k++)
             {
@@ -390,7 +472,8 @@ internal sealed class ScoringEngine
 
     /// <summary>The measures now, as reported every <c>Monitor:MetricsEvery</c> labels.</summary>
     public MetricsRow CurrentMetrics(long timeTicks) => new(Counters.Events, Counters.Labels, timeTicks,
-        Window.Current, PriorWindow.Current, Totals.Current, PriorTotals.Current, Counters.LateLabels, Pending.Expired);
+        Measures(false), PriorMeasures(false), Measures(true), PriorMeasures(true), Counters.LateLabels, Pending.Expired,
+        ClassNames is null ? null : ClassMeasuresOf(false), ClassWiseEce(false));
 
     /// <summary>The engine's whole state, for a checkpoint or a saved model.</summary>
     public EngineSnapshot Snapshot() => new()
@@ -432,6 +515,7 @@ internal sealed class ScoringEngine
         Rules = ExportChannel(_channels[0]).Rules,
         Classes = ClassNames is null ? null : _channels.Skip(1).Select(ExportChannel).ToList(),
         TopLabel = TopLabel?.ToState(),
+        TopLabelWindow = TopLabelWindow?.ToArray(),
         Counters = Counters.Copy(),
         ClockTicks = _clockTicks,
     };
@@ -524,6 +608,10 @@ internal sealed class ScoringEngine
         if (snapshot.TopLabel is not null && TopLabel is not null)
         {
             TopLabel = CalibrationTotals.Restore(snapshot.TopLabel);
+        }
+        if (snapshot.TopLabelWindow is not null && TopLabelWindow is not null)
+        {
+            TopLabelWindow = CalibrationWindow.Restore(_options.Monitor.Window, _options.Monitor.Bins, snapshot.TopLabelWindow);
         }
         if (_segments is not null && snapshot.Segments is { } segments)
         {

@@ -65,6 +65,10 @@ internal sealed class EngineSnapshot
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public CalibrationTotalsState? TopLabel { get; set; }
 
+    /// <summary>Multiclass: the top-label rolling window; null for binary.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public GradedPrediction[]? TopLabelWindow { get; set; }
+
     /// <summary>
     /// The per-segment windows of <c>Monitor:SegmentBy</c>, in the order the segments first
     /// appeared; null when segments are not tracked (or in an older snapshot: they start empty).

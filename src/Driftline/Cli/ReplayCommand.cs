@@ -105,6 +105,12 @@ internal sealed class ReplayCommand(CommandContext context)
                     [new("Model:HashBits", $"the warm-start model has HashBits {m.HashBits} and Learner {m.Learner}, the configuration {options.Model.HashBits} and {options.Model.Learner}",
                         "Use the configuration the model was fitted with")]);
             }
+            foreach (var (name, options) in configs.Where(c => ClassesOf(c.Options) != ClassesOf(start.Options)))
+            {
+                return ConfigErrors.Report(context.Error, name,
+                    [new("Model:Classes", $"the warm-start model has classes {ClassesOf(start.Options)}, the configuration {ClassesOf(options)}",
+                        "Use the classes, in the same order, the model was trained with")]);
+            }
         }
         bool compare = configs.Count > 1;
         var folders = configs.Select(c => compare ? Path.Combine(outDir, c.Name) : outDir).ToArray();
@@ -128,7 +134,7 @@ internal sealed class ReplayCommand(CommandContext context)
             }
             foreach (var folder in folders)
             {
-                outputs.Add(new ReplayOutputs(folder, context.CreateOutput));
+                outputs.Add(new ReplayOutputs(folder, context.CreateOutput, configs[0].Options.Model.Classes));
             }
         }
         catch (OutputException ex)
@@ -315,13 +321,19 @@ internal sealed class ReplayCommand(CommandContext context)
     {
         var engine = lane.Engine;
         var c = engine.Counters;
-        var total = engine.Totals.Current;
-        var prior = engine.PriorTotals.Current;
+        var total = engine.Measures(total: true);
+        var prior = engine.PriorMeasures(total: true);
         string what = MonitorOnly ? $"{c.Probabilities:N0} probabilities" : $"{c.Events:N0} events scored";
         o.WriteLine($"{(MonitorOnly ? "Monitored" : "Replayed")} {pipeline.Lines:N0} lines in {elapsed.TotalSeconds:0.00} s: {what}, {c.Labels:N0} labels ({c.LateLabels:N0} late), {engine.Pending.Expired:N0} expired, {lane.DeadLetters:N0} dead letters.");
         if (total.IsReady)
         {
-            o.WriteLine($"Log-loss {total.LogLoss:0.0000} against {prior.LogLoss:0.0000} for the class prior; Brier {total.Brier:0.0000}; ECE {total.Ece:0.0000}.");
+            o.WriteLine(engine.ClassNames is null
+                ? $"Log-loss {total.LogLoss:0.0000} against {prior.LogLoss:0.0000} for the class prior; Brier {total.Brier:0.0000}; ECE {total.Ece:0.0000}."
+                : $"Log-loss {total.LogLoss:0.0000} against {prior.LogLoss:0.0000} for the class prior; Brier (summed over classes) {total.Brier:0.0000}; top-label ECE {total.Ece:0.0000}; class-wise ECE {engine.ClassWiseEce(total: true):0.0000}; accuracy {total.MeanY:0.0000}.");
+            foreach (var k in engine.ClassMeasuresOf(total: true))
+            {
+                o.WriteLine($"  class '{k.Name}': predicted {k.MeanP:0.0000}, observed {k.ObservedRate:0.0000}, ECE {k.Ece:0.0000}.");
+            }
         }
         foreach (var alert in outputs.AlertsWritten)
         {

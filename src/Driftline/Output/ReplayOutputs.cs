@@ -32,12 +32,26 @@ internal sealed class ReplayOutputs : IDisposable
     private readonly Utf8JsonWriter _json;
 
     /// <summary>
+    /// The header of <c>metrics.csv</c> for a model over <paramref name="classes"/> (null for
+    /// binary): a multiclass model's file adds the class-wise ECE and, per class, the mean
+    /// predicted probability and the observed rate over the window.
+    /// </summary>
+    public static string HeaderFor(IReadOnlyList<string>? classes) => classes is null
+        ? MetricsHeader
+        : MetricsHeader + ",classwise_ece" + string.Concat(classes.Select(c => $",mean_p:{CsvName(c)},observed:{CsvName(c)}"));
+
+    // A class name as a CSV header cell: quoted when it holds a comma, quote or line break (RFC 4180).
+    private static string CsvName(string name) =>
+        name.AsSpan().IndexOfAny(",\"\r\n") < 0 ? name : "\"" + name.Replace("\"", "\"\"", StringComparison.Ordinal) + "\"";
+
+    /// <summary>
     /// Creates the output files anew in <paramref name="directory"/> (an existing file or link
     /// of the same name is replaced, never followed), each opened with <paramref name="create"/>
-    /// (default <see cref="OutputFile.CreateNew"/>).
+    /// (default <see cref="OutputFile.CreateNew"/>); <paramref name="classes"/> names a multiclass
+    /// model's classes for the header of <c>metrics.csv</c>.
     /// </summary>
     /// <exception cref="OutputException">A file cannot be created.</exception>
-    public ReplayOutputs(string directory, Func<string, Stream>? create = null)
+    public ReplayOutputs(string directory, Func<string, Stream>? create = null, IReadOnlyList<string>? classes = null)
     {
         _directory = directory;
         var opened = new List<Stream>();
@@ -55,7 +69,7 @@ internal sealed class ReplayOutputs : IDisposable
             throw;
         }
         _json = new Utf8JsonWriter(_buffer, new JsonWriterOptions { SkipValidation = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
-        Guard("metrics.csv", () => _metrics.WriteLine(MetricsHeader));
+        Guard("metrics.csv", () => _metrics.WriteLine(HeaderFor(classes)));
 
         Stream Open(string name)
         {
@@ -147,7 +161,8 @@ internal sealed class ReplayOutputs : IDisposable
             F(r.Window.LogLoss), F(r.PriorWindow.LogLoss), F(skill), F(r.Window.Brier), F(r.Window.Ece),
             F(r.Window.CalibrationInTheLarge), F(r.Window.MeanP), F(r.Window.MeanY),
             F(r.Total.LogLoss), F(r.PriorTotal.LogLoss), F(r.Total.Brier), F(r.Total.Ece),
-            r.LateLabels.ToString(c), r.ExpiredLabels.ToString(c));
+            r.LateLabels.ToString(c), r.ExpiredLabels.ToString(c))
+            + (r.Classes is { } classes ? "," + F(r.ClassWiseEce) + string.Concat(classes.Select(k => "," + F(k.MeanP) + "," + F(k.ObservedRate))) : "");
     }
 
     private static string F(double v) => double.IsFinite(v) ? v.ToString("0.######", CultureInfo.InvariantCulture) : "";

@@ -23,8 +23,8 @@ internal static class SummaryWriter
     {
         using var w = new Utf8JsonWriter(file, new JsonWriterOptions { Indented = true });
         var c = engine.Counters;
-        var total = engine.Totals.Current;
-        var prior = engine.PriorTotals.Current;
+        var total = engine.Measures(total: true);
+        var prior = engine.PriorMeasures(total: true);
         w.WriteStartObject();
         w.WriteNumber("events", c.Events);
         w.WriteNumber("probabilities", c.Probabilities);
@@ -44,6 +44,26 @@ internal static class SummaryWriter
         Number(w, "prior_brier", prior.Brier);
         Number(w, "ece", total.Ece);
         Number(w, "calibration_in_the_large", total.CalibrationInTheLarge);
+        if (engine.ClassNames is not null)
+        {
+            // Multiclass: brier is summed over classes, ece is the top-label ECE, and
+            // calibration_in_the_large is mean confidence minus accuracy (README, "More than two classes").
+            Number(w, "accuracy", total.MeanY);
+            Number(w, "top_label_ece", total.Ece);
+            Number(w, "classwise_ece", engine.ClassWiseEce(total: true));
+            w.WriteStartArray("classes");
+            foreach (var k in engine.ClassMeasuresOf(total: true))
+            {
+                w.WriteStartObject();
+                w.WriteString("class", k.Name);
+                Number(w, "mean_p", k.MeanP);
+                Number(w, "observed_rate", k.ObservedRate);
+                Number(w, "ece", k.Ece);
+                Number(w, "prior_mean_p", k.PriorMeanP);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+        }
         w.WriteNumber("alerts_raised", c.AlertsRaised);
         w.WriteNumber("incidents", c.Incidents);
         w.WriteNumber("alerts_cleared", c.AlertsCleared);

@@ -91,11 +91,13 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
             waiting.After = Capture(engine);
         }
         _awaitingAfter.Clear();
-        var bins = new ReliabilityBin[engine.Totals.Bins];
-        engine.Totals.CopyBins(bins);
+        // A multiclass model's reliability diagram is its top label's (confidence against accuracy).
+        var reliability = engine.TopLabel ?? engine.Totals;
+        var bins = new ReliabilityBin[reliability.Bins];
+        reliability.CopyBins(bins);
         data.WholeRun = bins;
-        data.Total = engine.Totals.Current;
-        data.PriorTotal = engine.PriorTotals.Current;
+        data.Total = engine.Measures(total: true);
+        data.PriorTotal = engine.PriorMeasures(total: true);
         data.Counters = engine.Counters.Copy();
         data.ExpiredLabels = engine.Pending.Expired;
         data.WaitingLabels = engine.Pending.Waiting;
@@ -118,8 +120,8 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
             return;
         }
         _lastLabels = labels;
-        var window = engine.Window.Current;
-        var prior = engine.PriorWindow.Current;
+        var window = engine.Measures(total: false);
+        var prior = engine.PriorMeasures(total: false);
         var points = data.Points;
         var values = new double[_rules.Length];
         for (int r = 0; r < values.Length; r++)
@@ -162,7 +164,7 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
 
     private static BinsCapture Capture(ScoringEngine engine)
     {
-        var window = engine.Window;
+        var window = engine.TopLabelWindow ?? engine.Window;
         var bins = new ReliabilityBin[window.Bins];
         window.CopyBins(bins);
         return new BinsCapture(engine.Counters.Labels, window.Count, bins);
