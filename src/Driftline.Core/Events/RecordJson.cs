@@ -189,10 +189,12 @@ internal static class RecordJson
         string relation = value == threshold ? "at" : a.Value > a.Threshold ? "above" : "below";
         if (a.Class is not null)
         {
+            // One class against the rest: the class leads the words, e.g. "class 'late' under-predicted".
             measure = $"for class '{a.Class}' against the rest, {measure}";
-            if (a.Raised && a.Explanation is { } c && double.IsFinite(c.MeanP) && double.IsFinite(c.ObservedRate))
+            if (a.Explanation is { } c && double.IsFinite(c.MeanP) && double.IsFinite(c.ObservedRate))
             {
-                why = $" Class '{a.Class}' {(c.MeanP < c.ObservedRate ? "under" : "over")}-predicted: predicted {c.MeanP:0.00}, observed {c.ObservedRate:0.00}." + why;
+                why = $" Class '{a.Class}' {(c.MeanP < c.ObservedRate ? "under" : "over")}-predicted: predicted {c.MeanP:0.000} on average, observed {c.ObservedRate:0.000}."
+                    + (c.WorstBins.Count > 0 ? $" Furthest off: {c.Bins()}." : "");
             }
         }
         return a.Raised
