@@ -330,7 +330,7 @@ internal sealed class EventParser
         }
         if (Math.Abs(sum - 1) > ClassSumTolerance)
         {
-            return $"p sums to {sum.ToString("R", System.Globalization.CultureInfo.InvariantCulture)} over the classes, not 1 (within {ClassSumTolerance:0e0})";
+            return $"p sums to {sum.ToString("0.#########", System.Globalization.CultureInfo.InvariantCulture)} over the classes, not 1 (within {ClassSumTolerance:0e0})";
         }
         return null;
     }

@@ -59,6 +59,10 @@ internal sealed class CheckCommand(CommandContext context)
     {
         var m = options.Model;
         o.WriteLine($"Model: {(m.Learner == LearnerKind.Ftrl ? "FTRL-Proximal" : "AdaGrad")} logistic regression, 2^{m.HashBits} = {1 << m.HashBits:N0} hashed weights per key (at most {m.MaxModels} keys).");
+        if (m.Classes is { } classes)
+        {
+            o.WriteLine($"  multiclass (softmax) over {classes.Count} classes, fitted jointly: {string.Join(", ", classes.Select(c => $"'{c}'"))}; calibration rules run per class against the rest.");
+        }
         o.WriteLine($"  learning rate {m.LearningRate}, rate smoothing {m.RateSmoothing}, L1 {m.L1}, L2 {m.L2}.");
         o.WriteLine(m.HalfLifeLabels > 0
             ? $"  forgetting: evidence counts half after {m.HalfLifeLabels:N0} labels."
