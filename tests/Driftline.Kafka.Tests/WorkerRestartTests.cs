@@ -48,4 +48,40 @@ public sealed class WorkerRestartTests
         Assert.Equal(events, ids.Count);
         Assert.Equal(events, ids.Distinct().Count());
     }
+
+    [Fact]
+    public void Run_MulticlassStoppedMidStreamAndRestarted_ModelsEqualAnUninterruptedRun()
+    {
+        // The same restart with Model:Classes: the softmax weights, the per-class windows and
+        // rules and the pending class probabilities all come back from the checkpoint.
+        using var cluster = new MockCluster();
+        var core = new Driftline.Core.Options.DriftlineOptions { Model = new Driftline.Core.Options.ModelOptions { Classes = ["on-time", "late", "failed"] } };
+        var stream = new StreamHalves(4_000, keys: 4, seed: 9, core);
+        int events = stream.Events;
+        Topics.ProduceStream(cluster.Bootstrap, "mc-events", "mc-labels", stream.First);
+
+        using var resumedDir = new TempDir();
+        var resumed = WorkerHost.OptionsFor(cluster.Bootstrap, "mc", resumedDir.Path, group: "resumed");
+        resumed.PredictionsTopic = "mc-predictions-resumed";
+        using (var first = new WorkerHost(resumed, core))
+        {
+            first.WaitFor(s => s.Predictions >= stream.FirstEvents && s.LabelsJoined >= stream.FirstJoined, TimeSpan.FromSeconds(60));
+            first.Stop();
+        }
+        Topics.ProduceStream(cluster.Bootstrap, "mc-events", "mc-labels", stream.Second);
+        using (var second = new WorkerHost(resumed, core))
+        {
+            second.WaitFor(s => s.Partitions > 0 && CheckpointFiles.Done(resumedDir.Path, resumed.EventsTopic, events, second.Worker.Stats), TimeSpan.FromSeconds(60));
+            second.Stop();
+        }
+
+        using var straightDir = new TempDir();
+        var expected = stream.Uninterrupted(cluster, "mc", straightDir.Path);
+        var actual = CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic);
+        CheckpointFiles.AssertSame(expected, actual);
+        Assert.Equal(events, actual.Sum(c => c.Snapshot.Counters.Labels));
+        Assert.All(actual, c => Assert.Equal(3, c.Snapshot.Classes!.Count));
+        var prediction = Topics.ReadAll(cluster.Bootstrap, resumed.PredictionsTopic, v => v.Count >= 1, TimeSpan.FromSeconds(30))[0];
+        Assert.Contains("\"p\":{\"on-time\":", prediction, StringComparison.Ordinal);
+    }
 }

@@ -42,6 +42,12 @@ internal sealed class FitCommand(CommandContext context)
         {
             return ConfigErrors.Report(context.Error, configPath, errors);
         }
+        if (options.Model.IsMulticlass)
+        {
+            // The batch fit is binary so far; a multiclass model learns online (replay, run).
+            return ConfigErrors.Report(context.Error, configPath,
+                [new("Model:Classes", "a multiclass model is not fitted in batch yet", "Give fit a configuration without Classes, or warm-start from the model.json a replay writes")]);
+        }
         if (!(ridge >= 0) || !double.IsFinite(ridge))
         {
             context.Error.WriteLine("driftline: --ridge must be 0 or a positive number");

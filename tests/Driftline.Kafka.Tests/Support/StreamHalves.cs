@@ -1,3 +1,5 @@
+using Driftline.Core.Options;
+
 namespace Driftline.Kafka.Tests.Support;
 
 /// <summary>
@@ -6,15 +8,29 @@ namespace Driftline.Kafka.Tests.Support;
 /// </summary>
 internal sealed class StreamHalves
 {
-    public StreamHalves(int events, int keys, int seed)
+    public StreamHalves(int events, int keys, int seed, DriftlineOptions? core = null)
     {
+        Core = core;
         All = TestStream.Generate(events, keys, seed).OrderBy(r => r.TimestampMs).ToList();
+        if (core?.Model.Classes is { } classes)
+        {
+            // Three outcomes from the binary stream: 1 names the second class; 0 the first or,
+            // for every third id, the third.
+            All = All.Select(r => r with
+            {
+                Value = System.Text.RegularExpressions.Regex.Replace(r.Value, "\"label\":([01])", m =>
+                    $"\"label\":\"{classes[m.Groups[1].Value == "1" ? 1 : int.Parse(r.Id.AsSpan(2), System.Globalization.CultureInfo.InvariantCulture) % 3 == 0 ? 2 : 0]}\""),
+            }).ToList();
+        }
         long cut = All[All.Count / 2].TimestampMs;
         First = All.Where(r => r.TimestampMs < cut).ToList();
         Second = All.Where(r => r.TimestampMs >= cut).ToList();
     }
 
     public List<TestRecord> All { get; }
+
+    /// <summary>The engine configuration the workers run with (null: the defaults).</summary>
+    public DriftlineOptions? Core { get; }
 
     public List<TestRecord> First { get; }
 
@@ -35,7 +51,7 @@ internal sealed class StreamHalves
     {
         var options = WorkerHost.OptionsFor(cluster.Bootstrap, prefix, directory, group: "straight");
         options.PredictionsTopic = prefix + "-predictions-straight";
-        using (var host = new WorkerHost(options))
+        using (var host = new WorkerHost(options, Core))
         {
             host.WaitFor(s => s.Predictions >= Events && s.LabelsJoined >= Events, TimeSpan.FromSeconds(60));
             host.Stop();
