@@ -11,6 +11,7 @@ return args.FirstOrDefault() switch
     "engine" => StageSplit.EngineOnly(args[1]),
     "bare" => PrintCount(BareLoop.Run(args[1])),
     "hash-sweep" => HashSweep.Run(args.Skip(1).ToArray()),
+    "classes" => ClassesBenchmark.Run(args.Skip(1).ToArray()),
     _ => Usage(),
 };
 
@@ -29,6 +30,6 @@ static int PrintCount(long events)
 
 static int Usage()
 {
-    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS]");
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K]");
     return 2;
 }

@@ -77,7 +77,7 @@ internal static class ReplayBenchmark
         return pe.PEHeaders.CorHeader?.ManagedNativeHeaderDirectory.Size > 0;
     }
 
-    private static (double? Seconds, string Output) TimeProcess(string exe, string[] arguments)
+    internal static (double? Seconds, string Output) TimeProcess(string exe, string[] arguments)
     {
         var clock = Stopwatch.StartNew();
         using var process = Process.Start(new ProcessStartInfo(exe, arguments) { RedirectStandardOutput = true })!;
@@ -91,13 +91,13 @@ internal static class ReplayBenchmark
         return (clock.Elapsed.TotalSeconds, output);
     }
 
-    private static double Median(List<double> values)
+    internal static double Median(List<double> values)
     {
         var sorted = values.Order().ToArray();
         return sorted.Length % 2 == 1 ? sorted[sorted.Length / 2] : (sorted[sorted.Length / 2 - 1] + sorted[sorted.Length / 2]) / 2;
     }
 
-    private static int Option(string[] args, string name, int fallback)
+    internal static int Option(string[] args, string name, int fallback)
     {
         int i = Array.IndexOf(args, name);
         return i >= 0 && i + 1 < args.Length ? int.Parse(args[i + 1], CultureInfo.InvariantCulture) : fallback;

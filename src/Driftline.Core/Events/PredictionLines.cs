@@ -39,8 +39,7 @@ internal static class PredictionLines
         ArgumentNullException.ThrowIfNull(json);
         foreach (ref readonly var p in predictions)
         {
-            // Multiclass lines (p an object over the classes) go through the writer too.
-            if (p.Classes is not null || p.Id.AsSpan().ContainsAnyExcept(Plain) || p.Key.AsSpan().ContainsAnyExcept(Plain))
+            if (p.Id.AsSpan().ContainsAnyExcept(Plain) || p.Key.AsSpan().ContainsAnyExcept(Plain) || !PlainNames(p.ClassNames))
             {
                 json.Reset(buffer);
                 RecordJson.WritePrediction(json, p);
@@ -48,15 +47,38 @@ internal static class PredictionLines
                 buffer.Write("\n"u8);
                 continue;
             }
-            var span = buffer.GetSpan(MaxFixedBytes + p.Id.Length + p.Key.Length);
+            var span = buffer.GetSpan(MaxFixedBytes + p.Id.Length + p.Key.Length + ClassBytes(p.ClassNames));
             int n = Put(span, 0, "{\"id\":\""u8);
             n += Encoding.ASCII.GetBytes(p.Id, span[n..]);
             n = Put(span, n, "\",\"key\":\""u8);
             n += Encoding.ASCII.GetBytes(p.Key, span[n..]);
             n = Put(span, n, "\",\"p\":"u8);
-            // Shortest round-trip form, as the JSON writer formats a double.
-            bool fits = p.P.TryFormat(span[n..], out int written, default, CultureInfo.InvariantCulture);
-            n += written;
+            bool fits = true;
+            int written;
+            if (p.Classes is { } classes && p.ClassNames is { } names)
+            {
+                // Multiclass: an object over the classes in the configured order.
+                span[n++] = (byte)'{';
+                for (int k = 0; k < classes.Length; k++)
+                {
+                    if (k > 0)
+                    {
+                        span[n++] = (byte)',';
+                    }
+                    span[n++] = (byte)'"';
+                    n += Encoding.ASCII.GetBytes(names[k], span[n..]);
+                    n = Put(span, n, "\":"u8);
+                    fits &= classes[k].TryFormat(span[n..], out written, default, CultureInfo.InvariantCulture);
+                    n += written;
+                }
+                span[n++] = (byte)'}';
+            }
+            else
+            {
+                // Shortest round-trip form, as the JSON writer formats a double.
+                fits &= p.P.TryFormat(span[n..], out written, default, CultureInfo.InvariantCulture);
+                n += written;
+            }
             n = Put(span, n, ",\"model_version\":"u8);
             fits &= p.ModelVersion.TryFormat(span[n..], out written, default, CultureInfo.InvariantCulture);
             n += written;
@@ -70,6 +92,37 @@ internal static class PredictionLines
             n = Put(span, n, "}\n"u8);
             buffer.Advance(n);
         }
+    }
+
+    private static bool PlainNames(IReadOnlyList<string>? names)
+    {
+        if (names is null)
+        {
+            return true;
+        }
+        foreach (var name in names)
+        {
+            if (name.AsSpan().ContainsAnyExcept(Plain))
+            {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    // Per class: its name, quotes, colon, comma and a double (at most 24 characters).
+    private static int ClassBytes(IReadOnlyList<string>? names)
+    {
+        if (names is null)
+        {
+            return 0;
+        }
+        int bytes = 2;
+        foreach (var name in names)
+        {
+            bytes += name.Length + 28;
+        }
+        return bytes;
     }
 
     private static int Put(Span<byte> span, int at, ReadOnlySpan<byte> text)

@@ -20,12 +20,11 @@ internal sealed class GradingChannel
         ArgumentNullException.ThrowIfNull(options);
         ArgumentNullException.ThrowIfNull(rules);
         ClassName = className;
-        // Window sizes come from every configured rule so each channel has the same windows (and
-        // a binary model exactly the windows it always had).
-        var all = options.EffectiveAlerts;
-        var sizes = all.Where(r => r.WindowTime is null).Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
+        // The windows its own rules read and the reported one (a binary model's one channel runs
+        // every rule, so it has exactly the windows it always had).
+        var sizes = rules.Where(r => r.WindowTime is null).Select(r => r.Window).Append(options.Monitor.Window).Distinct().Order().ToArray();
         // A time window holds the last T of event time, at most the rule's Window labels.
-        var spans = all.Where(r => r.WindowTime is not null).Select(r => (Span: r.WindowTime!.Value, Max: r.Window)).Distinct().ToArray();
+        var spans = rules.Where(r => r.WindowTime is not null).Select(r => (Span: r.WindowTime!.Value, Max: r.Window)).Distinct().ToArray();
         int bins = options.Monitor.Bins;
         TimeWindows = spans.Select(t => (t.Span, new TimeWindow(t.Span, t.Max, bins), new TimeWindow(t.Span, t.Max, bins))).ToArray();
         RuleTimeWindow = rules.Select(r => r.WindowTime is null ? -1 : Array.IndexOf(spans, (r.WindowTime.Value, r.Window))).ToArray();
