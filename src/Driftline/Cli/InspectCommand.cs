@@ -50,21 +50,23 @@ internal sealed class InspectCommand(CommandContext context)
         var keys = new TextTable("key", ">version", ">events scored", ">labels seen", ">positive rate", ">weights set");
         foreach (var m in snapshot.Models)
         {
-            double rate = m.PriorCount > 0 ? (double)m.PriorPositives / m.PriorCount : double.NaN;
+            // A multiclass model has no positive class; its class shares are in the summary.
+            double rate = m.PriorCount > 0 && m.PriorClassCounts is null ? (double)m.PriorPositives / m.PriorCount : double.NaN;
             keys.Add(m.Key, m.Learner.Updates.ToString("N0", C), m.Scored.ToString("N0", C), m.PriorCount.ToString("N0", C),
                 double.IsNaN(rate) ? "–" : rate.ToString("0.0000", C), m.Learner.Slots.Length.ToString("N0", C));
         }
         keys.Write(o);
 
         var names = SlotNames.Build(snapshot.FeatureNames, options.Model);
-        foreach (var m in snapshot.Models)
+        foreach (var (m, output) in snapshot.Models.SelectMany(m => Enumerable.Range(0, options.Model.IsMulticlass ? options.Model.ClassCount : 1).Select(k => (m, k))))
         {
             o.WriteLine();
-            o.WriteLine($"Weights that matter most for key '{m.Key}' (numbers are per standard deviation when scaled online):");
+            string which = options.Model.Classes is { } classes ? $"key '{m.Key}', class '{classes[output]}'" : $"key '{m.Key}'";
+            o.WriteLine($"Weights that matter most for {which} (numbers are per standard deviation when scaled online):");
             var learner = OnlineLearner.Create(options.Model);
             learner.Import(m.Learner);
             var ranked = m.Learner.Slots
-                .Select(slot => (Slot: slot, Weight: learner.Weight(slot)))
+                .Select(slot => (Slot: slot, Weight: learner.Weight(slot, output)))
                 .Where(w => w.Weight != 0 && double.IsFinite(w.Weight))
                 .OrderByDescending(w => Math.Abs(w.Weight)).ThenBy(w => w.Slot)
                 .Take(top)
