@@ -32,8 +32,11 @@ internal sealed class ReportData
     /// <summary>Every alert transition, in order, with the windows around it.</summary>
     public List<AlertCapture> Alerts { get; } = [];
 
-    /// <summary>Reliability bins over the whole run.</summary>
+    /// <summary>Reliability bins over the whole run (a multiclass model's: its top label's).</summary>
     public ReliabilityBin[] WholeRun { get; set; } = [];
+
+    /// <summary>Multiclass: each class's reliability bins over the whole run, one against the rest; empty for binary.</summary>
+    public List<(string Class, ReliabilityBin[] Bins)> ClassBins { get; } = [];
 
     /// <summary>The model over the whole run.</summary>
     public CalibrationSnapshot Total { get; set; } = CalibrationSnapshot.Empty;

@@ -96,6 +96,13 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         var bins = new ReliabilityBin[reliability.Bins];
         reliability.CopyBins(bins);
         data.WholeRun = bins;
+        data.ClassBins.Clear();
+        foreach (var channel in engine.Channels.Where(c => c.ClassName is not null))
+        {
+            var classBins = new ReliabilityBin[channel.Totals.Bins];
+            channel.Totals.CopyBins(classBins);
+            data.ClassBins.Add((channel.ClassName!, classBins));
+        }
         data.Total = engine.Measures(total: true);
         data.PriorTotal = engine.PriorMeasures(total: true);
         data.Counters = engine.Counters.Copy();

@@ -84,7 +84,17 @@ internal static class ReportWriter
                 $"AUC (the chance that a positive is scored above a negative) and Brier score (mean squared error of the probability) over the last {window:N0} labels. AUC is about ranking only: it can stay high while calibration breaks, which is why the rules above watch calibration too."));
         page.Heading(2, "Reliability over the whole run", "reliability")
             .Raw(HtmlPage.Figure(ReportCharts.Reliability("Whole run", [("model", run.WholeRun)], 520),
-                "Each point is one probability bin: mean predicted probability across, observed rate of positives up, with its 95% Wilson interval and the number of labels in it. Points on the dashed diagonal are calibrated; an interval that misses the diagonal is a bin the model gets wrong beyond chance."));
+                "Each point is one probability bin: mean predicted probability across, observed rate of positives up, with its 95% Wilson interval and the number of labels in it. Points on the dashed diagonal are calibrated; an interval that misses the diagonal is a bin the model gets wrong beyond chance."
+                + (run.ClassBins.Count > 0 ? " For this multiclass model it is the top label's: the most probable class's probability against how often that class was right." : "")));
+        if (run.ClassBins.Count > 0)
+        {
+            page.Heading(2, "Reliability per class", "classes");
+            foreach (var (name, bins) in run.ClassBins)
+            {
+                page.Raw(HtmlPage.Figure(ReportCharts.Reliability($"Class '{name}'", [(name, bins)], 360),
+                    $"Class '{name}' against the rest over the whole run: the predicted probability of '{name}' across, how often the outcome was '{name}' up, with 95% Wilson intervals and counts."));
+            }
+        }
 
         page.Heading(2, "Alerts", "alerts");
         if (run.Alerts.Count == 0)

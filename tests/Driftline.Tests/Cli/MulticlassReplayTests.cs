@@ -45,6 +45,11 @@ public sealed class MulticlassReplayTests
         Assert.InRange(late.GetProperty("labels").GetInt64(), 10_500, 13_000);
         Assert.Contains("Class 'late' under-predicted", late.GetProperty("message").GetString(), StringComparison.Ordinal);
 
+        // The report draws one reliability diagram per class.
+        string report = File.ReadAllText(dir.File("out/report.html"));
+        Assert.Contains("Reliability per class", report, StringComparison.Ordinal);
+        Assert.All(Classes, c => Assert.Contains($"Class &#39;{c}&#39; against the rest", report, StringComparison.Ordinal));
+
         // The saved model warm-starts a second run with the same classes.
         var again = await CliRun.RunAsync("replay", demo, "--out", dir.File("again"), "--config", config, "--warm-start", dir.File("out/model.json"));
         Assert.True(again.ExitCode == 0, again.Error);
