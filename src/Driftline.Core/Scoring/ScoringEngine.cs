@@ -496,8 +496,8 @@ internal sealed class ScoringEngine
             TimeTicks = e.TimeTicks,
             // A graded entry is kept only to recognise a duplicate label: its probabilities and
             // features are spent, so the snapshot keeps just the id, its place and the flag.
-            P = e.Labelled ? 0 : e.P,
-            PriorP = e.Labelled ? 0 : e.PriorP,
+            P = e.Labelled || _outputs != 1 ? 0 : e.P,
+            PriorP = e.Labelled || _outputs != 1 ? 0 : e.PriorP,
             ClassP = e.Labelled || _outputs == 1 ? null : e.ClassP.ToArray(),
             ClassPriorP = e.Labelled || _outputs == 1 ? null : e.ClassPriorP.ToArray(),
             Labelled = e.Labelled,

@@ -68,6 +68,11 @@ internal static class SnapshotValidator
             {
                 throw Damage(at, $"counts are impossible (prior_count {model.PriorCount}, prior_positives {model.PriorPositives}, scored {model.Scored})");
             }
+            if (options.Model.IsMulticlass != model.PriorClassCounts is not null
+                || (model.PriorClassCounts is { } counts && (counts.Length != options.Model.ClassCount || counts.Any(c => c < 0) || counts.Sum() != model.PriorCount)))
+            {
+                throw Damage(at + ".prior_class_counts", $"does not hold one count per class of Model:Classes summing to prior_count {model.PriorCount}");
+            }
         }
         CheckRest(snapshot, models.Count, 1 << options.Model.HashBits);
     }
@@ -83,10 +88,14 @@ internal static class SnapshotValidator
             throw Damage(at, "slots, first, second or third is null");
         }
         int n = state.Slots.Length;
-        int third = options.Learner == Options.LearnerKind.Ftrl ? n : 0;
-        if (state.First.Length != n || state.Second.Length != n || state.Third.Length != third)
+        // A softmax model keeps one value per class for every slot.
+        int outputs = options.IsMulticlass ? options.ClassCount : 1;
+        int entries = n * outputs;
+        int third = options.Learner == Options.LearnerKind.Ftrl ? entries : 0;
+        if (state.First.Length != entries || state.Second.Length != entries || state.Third.Length != third)
         {
-            throw Damage(at, $"has {n} slots but {state.First.Length}, {state.Second.Length} and {state.Third.Length} values in first, second and third (expected {n}, {n} and {third} for {options.Learner})");
+            string per = outputs == 1 ? "" : $" ({outputs} classes per slot)";
+            throw Damage(at, $"has {n} slots but {state.First.Length}, {state.Second.Length} and {state.Third.Length} values in first, second and third (expected {entries}, {entries} and {third} for {options.Learner}{per})");
         }
         int size = 1 << options.HashBits;
         var seen = new HashSet<int>();
@@ -101,13 +110,13 @@ internal static class SnapshotValidator
                 throw Damage(at + ".slots", $"slot {slot} is listed twice");
             }
         }
-        for (int i = 0; i < n; i++)
+        for (int i = 0; i < entries; i++)
         {
             Finite(at + ".first", state.First[i], i);
             Finite(at + ".second", state.Second[i], i);
             if (state.Second[i] < 0 || (third > 0 && (!double.IsFinite(state.Third[i]) || state.Third[i] < 0)))
             {
-                throw Damage(at, $"slot {state.Slots[i]} has a negative or non-finite accumulated gradient");
+                throw Damage(at, $"slot {state.Slots[i / outputs]} has a negative or non-finite accumulated gradient");
             }
         }
         if (!double.IsFinite(state.Inflation) || state.Inflation < 1 || state.Inflation > MaxInflation)
@@ -122,7 +131,7 @@ internal static class SnapshotValidator
         learner.Import(state);
         foreach (int slot in state.Slots)
         {
-            double w = learner.Weight(slot);
+            double w = Enumerable.Range(0, outputs).Select(k => learner.Weight(slot, k)).MaxBy(v => double.IsFinite(v) ? Math.Abs(v) : double.PositiveInfinity);
             if (!double.IsFinite(w) || Math.Abs(w) > MaxWeight)
             {
                 throw Damage(at, $"the weight of slot {slot} is {w.ToString("R", C)}, beyond ±{MaxWeight.ToString("0e0", C)}: the file is damaged");
@@ -168,6 +177,10 @@ internal static class SnapshotValidator
             {
                 throw Damage(at, "has a probability outside 0–1");
             }
+            if ((p.ClassP is null) != (p.ClassPriorP is null) || (p.ClassP is not null && (p.ClassP.Length != p.ClassPriorP!.Length || p.ClassP.Concat(p.ClassPriorP).Any(v => !Probability(v)))))
+            {
+                throw Damage(at, "class_p and class_prior_p differ in length or hold a probability outside 0–1");
+            }
             if ((p.Slots is null) != (p.Values is null) || (p.Slots is not null && p.Slots.Length != p.Values!.Length))
             {
                 throw Damage(at, "slots and values differ in length");
@@ -202,6 +215,10 @@ internal static class SnapshotValidator
             {
                 throw Damage($"rules[{i}]", "is null or has no name");
             }
+        }
+        if (s.Classes is { } classes && classes.Any(c => c?.Windows is null || c.TimeWindows is null || c.Rules is null || c.Class is null))
+        {
+            throw Damage("classes", "holds a class channel that is null, unnamed or missing its windows or rules");
         }
         if (s.Segments is { } segments && segments.Any(g => g?.Name is null || g.Contents is null))
         {
