@@ -176,4 +176,25 @@ public sealed class MulticlassEngineTests
         }
         Assert.Equal("""{"id":"o-1","key":"default","p":{"on-time":0.71,"late":0.22,"failed":0.07},"model_version":3}""", Encoding.UTF8.GetString(buffer.ToArray()));
     }
+
+    [Fact]
+    public void Validate_DamagedMulticlassSnapshot_IsRefusedNamingThePlace()
+    {
+        var engine = new ScoringEngine(Options(), new RecordingSink());
+        EngineDriver.Feed(engine, [new SoftmaxStream(6).Next(0).Json, new SoftmaxStream(6).Next(1, withLabel: false).Json]);
+        SnapshotValidator.Check(engine.Snapshot());
+
+        var shortLearner = engine.Snapshot();
+        shortLearner.Models[0].Learner.First = shortLearner.Models[0].Learner.First[..^1];
+        var error = Assert.Throws<InvalidDataException>(() => SnapshotValidator.Check(shortLearner));
+        Assert.Contains("(4 classes per slot)", error.Message, StringComparison.Ordinal);
+
+        var badPrior = engine.Snapshot();
+        badPrior.Models[0].PriorClassCounts = [1, 0, 0];
+        Assert.StartsWith("models[0].prior_class_counts", Assert.Throws<InvalidDataException>(() => SnapshotValidator.Check(badPrior)).Message, StringComparison.Ordinal);
+
+        var badPending = engine.Snapshot();
+        badPending.Pending[0].ClassP = [0.5, 0.5, 1.5, 0];
+        Assert.StartsWith("pending[0] class_p", Assert.Throws<InvalidDataException>(() => SnapshotValidator.Check(badPending)).Message, StringComparison.Ordinal);
+    }
 }
