@@ -48,6 +48,7 @@ internal sealed class ScoringEngine
     private readonly int _outputs;
     private readonly double[] _p;
     private readonly double[] _priorP;
+    private readonly long[]? _confusion;
     private long _clockTicks = ParsedRecord.NoTime;
     private readonly long _maxSkewTicks;
     private string? _lastKey;
@@ -76,6 +77,7 @@ internal sealed class ScoringEngine
             ClassNames = classes;
             TopLabel = new CalibrationTotals(bins);
             TopLabelWindow = new CalibrationWindow(options.Monitor.Window, bins);
+            _confusion = new long[classes.Count * classes.Count];
         }
         else
         {
@@ -110,6 +112,12 @@ internal sealed class ScoringEngine
     /// ECE is the top-label (confidence) ECE; null for a binary model.
     /// </summary>
     public CalibrationTotals? TopLabel { get; private set; }
+
+    /// <summary>
+    /// Multiclass: labels over the whole run by observed class (row) and the class given the
+    /// highest probability (column), K × K flattened row by row (a copy); null for a binary model.
+    /// </summary>
+    public long[]? Confusion => (long[]?)_confusion?.Clone();
 
     /// <summary>Multiclass: the top label over the reported rolling window; null for a binary model.</summary>
     public CalibrationWindow? TopLabelWindow { get; private set; }
@@ -406,6 +414,7 @@ internal sealed class ScoringEngine
                     top = k;
                 }
             }
+            _confusion![y * p.Length + top]++;
             var topTerms = GradedTerms.Of(p[top], top == y ? 1 : 0, _edges);
             TopLabel!.Add(topTerms);
             TopLabelWindow!.Add(topTerms);
@@ -516,6 +525,7 @@ internal sealed class ScoringEngine
         Classes = ClassNames is null ? null : _channels.Skip(1).Select(ExportChannel).ToList(),
         TopLabel = TopLabel?.ToState(),
         TopLabelWindow = TopLabelWindow?.ToArray(),
+        Confusion = _confusion?.ToArray(),
         Counters = Counters.Copy(),
         ClockTicks = _clockTicks,
     };
@@ -608,6 +618,10 @@ internal sealed class ScoringEngine
         if (snapshot.TopLabel is not null && TopLabel is not null)
         {
             TopLabel = CalibrationTotals.Restore(snapshot.TopLabel);
+        }
+        if (snapshot.Confusion is { } confusion && _confusion is not null && confusion.Length == _confusion.Length)
+        {
+            confusion.CopyTo(_confusion, 0);
         }
         if (snapshot.TopLabelWindow is not null && TopLabelWindow is not null)
         {

@@ -69,6 +69,10 @@ internal sealed class EngineSnapshot
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public GradedPrediction[]? TopLabelWindow { get; set; }
 
+    /// <summary>Multiclass: labels by observed and predicted top class, K × K row by row; null for binary.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public long[]? Confusion { get; set; }
+
     /// <summary>
     /// The per-segment windows of <c>Monitor:SegmentBy</c>, in the order the segments first
     /// appeared; null when segments are not tracked (or in an older snapshot: they start empty).

@@ -38,6 +38,9 @@ internal sealed class ReportData
     /// <summary>Multiclass: each class's reliability bins over the whole run, one against the rest; empty for binary.</summary>
     public List<(string Class, ReliabilityBin[] Bins)> ClassBins { get; } = [];
 
+    /// <summary>Multiclass: labels by observed class (rows) and predicted top class (columns), K × K flattened; null for binary.</summary>
+    public long[]? Confusion { get; set; }
+
     /// <summary>The model over the whole run.</summary>
     public CalibrationSnapshot Total { get; set; } = CalibrationSnapshot.Empty;
 

@@ -14,6 +14,8 @@ namespace Driftline.Report;
 /// <param name="Auc">AUC over the window; NaN while it holds one class only or when not recorded.</param>
 /// <param name="TimeTicks">Latest event time seen (UTC ticks), or <see cref="Core.Events.ParsedRecord.NoTime"/> when events carry none.</param>
 /// <param name="RuleValues">Each rule's value at this moment, in <see cref="ReportData.Rules"/> order (what it compared with its thresholds); null when not recorded.</param>
+/// <param name="ClassGaps">Multiclass: per class, mean p minus observed rate over the window; null for binary.</param>
 internal readonly record struct ReportPoint(long Labels, long Events, int WindowLabels, double LogLoss, double PriorLogLoss,
     double CalibrationInTheLarge, double Ece, long LateLabels, long ExpiredLabels,
-    double Brier = double.NaN, double Auc = double.NaN, long TimeTicks = Core.Events.ParsedRecord.NoTime, double[]? RuleValues = null);
+    double Brier = double.NaN, double Auc = double.NaN, long TimeTicks = Core.Events.ParsedRecord.NoTime, double[]? RuleValues = null,
+    double[]? ClassGaps = null);

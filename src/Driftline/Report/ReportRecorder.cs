@@ -96,6 +96,7 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         var bins = new ReliabilityBin[reliability.Bins];
         reliability.CopyBins(bins);
         data.WholeRun = bins;
+        data.Confusion = engine.Confusion;
         data.ClassBins.Clear();
         foreach (var channel in engine.Channels.Where(c => c.ClassName is not null))
         {
@@ -137,7 +138,8 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         }
         points.Add(new ReportPoint(labels, engine.Counters.Events, window.Count, window.LogLoss, prior.LogLoss,
             window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired,
-            window.Brier, engine.WindowAuc?.Value ?? double.NaN, engine.ClockTicks, values));
+            window.Brier, engine.WindowAuc?.Value ?? double.NaN, engine.ClockTicks, values,
+            engine.ClassNames is null ? null : engine.ClassMeasuresOf(total: false).Select(c => c.MeanP - c.ObservedRate).ToArray()));
         if (points.Count >= MaxPoints)
         {
             // Keep every other point, then sample half as often.

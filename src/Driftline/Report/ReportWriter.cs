@@ -88,6 +88,19 @@ internal static class ReportWriter
                 + (run.ClassBins.Count > 0 ? " For this multiclass model it is the top label's: the most probable class's probability against how often that class was right." : "")));
         if (run.ClassBins.Count > 0)
         {
+            var names = run.ClassBins.Select(c => c.Class).ToList();
+            page.Heading(2, "Calibration per class over time", "class-calibration")
+                .Raw(HtmlPage.Figure(ClassCharts.Calibration(run, names),
+                    $"For each class against the rest: mean predicted probability minus the observed rate of that class over the last {window:N0} labels. A class whose line leaves zero is the one the model now gets wrong; alerts about one class name it."));
+            if (run.Confusion is { } confusion)
+            {
+                int k = names.Count;
+                page.Heading(2, "Predicted against observed class", "confusion")
+                    .Paragraph("Labels over the whole run by observed class (rows) and the class the model gave the highest probability (columns).")
+                    .Table(["observed \\ predicted", .. names, "labels"], Enumerable.Range(0, k).Select(r =>
+                        (IReadOnlyList<string>)[names[r], .. Enumerable.Range(0, k).Select(c => confusion[r * k + c].ToString("N0", System.Globalization.CultureInfo.InvariantCulture)),
+                            Enumerable.Range(0, k).Sum(c => confusion[r * k + c]).ToString("N0", System.Globalization.CultureInfo.InvariantCulture)]));
+            }
             page.Heading(2, "Reliability per class", "classes");
             foreach (var (name, bins) in run.ClassBins)
             {

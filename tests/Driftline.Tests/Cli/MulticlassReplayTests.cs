@@ -48,6 +48,8 @@ public sealed class MulticlassReplayTests
         // The report draws one reliability diagram per class.
         string report = File.ReadAllText(dir.File("out/report.html"));
         Assert.Contains("Reliability per class", report, StringComparison.Ordinal);
+        Assert.Contains("Calibration per class over time", report, StringComparison.Ordinal);
+        Assert.Contains("Predicted against observed class", report, StringComparison.Ordinal);
         Assert.All(Classes, c => Assert.Contains($"Class &#39;{c}&#39; against the rest", report, StringComparison.Ordinal));
 
         // The saved model warm-starts a second run with the same classes.
