@@ -301,9 +301,14 @@ internal static class ReportWriter
         yield return ["log-loss, model", Num(r.Total.LogLoss)];
         yield return ["log-loss, class prior", Num(r.PriorTotal.LogLoss)];
         yield return ["skill over the prior", Pct(r.Skill)];
-        yield return ["Brier score", Num(r.Total.Brier)];
-        yield return ["expected calibration error", Num(r.Total.Ece)];
-        yield return ["calibration-in-the-large (mean p − rate)", Num(r.Total.CalibrationInTheLarge)];
+        bool classes = r.ClassBins.Count > 0;
+        yield return [classes ? "Brier score, summed over classes" : "Brier score", Num(r.Total.Brier)];
+        yield return [classes ? "expected calibration error of the top label" : "expected calibration error", Num(r.Total.Ece)];
+        yield return [classes ? "mean top-label probability − accuracy" : "calibration-in-the-large (mean p − rate)", Num(r.Total.CalibrationInTheLarge)];
+        if (classes)
+        {
+            yield return ["accuracy (top label right)", Num(r.Total.MeanY)];
+        }
         yield return ["alerts raised / cleared", $"#num {c.AlertsRaised:N0} / {c.AlertsCleared:N0}"];
         yield return ["incidents (stretches with any alert raised)", $"#num {c.Incidents:N0}"];
         yield return ["alerts open at the end", r.OpenAlerts.Count == 0 ? "none" : string.Join(", ", r.OpenAlerts)];
