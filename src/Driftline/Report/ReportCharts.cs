@@ -192,14 +192,14 @@ internal static class ReportCharts
     /// Marks each raise (solid: red for critical, amber for warning) and clear (green, dashed)
     /// with its rule's name, and shades the stretches while an alert was open.
     /// </summary>
-    internal static void AlertMarks(Plot plot, ReportData run, string? onlyRule = null)
+    internal static void AlertMarks(Plot plot, ReportData run, string? onlyRule = null, string? onlyClass = null)
     {
-        OpenSpans(plot, run, onlyRule);
+        OpenSpans(plot, run, onlyRule, onlyClass);
         var shown = new HashSet<string>(StringComparer.Ordinal);
         foreach (var capture in run.Alerts)
         {
             var a = capture.Alert;
-            if (onlyRule is not null && a.Rule != onlyRule)
+            if (onlyRule is not null && (a.Rule != onlyRule || a.Class != onlyClass))
             {
                 continue;
             }
@@ -221,7 +221,7 @@ internal static class ReportCharts
     }
 
     /// <summary>Shades, lightly, each stretch from a raise to its clear (or the run's end).</summary>
-    internal static void OpenSpans(Plot plot, ReportData run, string? onlyRule)
+    internal static void OpenSpans(Plot plot, ReportData run, string? onlyRule, string? onlyClass = null)
     {
         long end = run.Points.Count > 0 ? run.Points[^1].Labels : 0;
         var opened = new Dictionary<string, (long At, bool Critical)>(StringComparer.Ordinal);
@@ -229,7 +229,7 @@ internal static class ReportCharts
         foreach (var capture in run.Alerts)
         {
             var a = capture.Alert;
-            if (onlyRule is not null && a.Rule != onlyRule)
+            if (onlyRule is not null && (a.Rule != onlyRule || a.Class != onlyClass))
             {
                 continue;
             }

@@ -44,7 +44,8 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         _engine = engine;
         _rules = engine.Rules.ToArray();
         data.Rules.Clear();
-        data.Rules.AddRange(_rules.Select(ReportRule.Of));
+        // In the engine's order (channel by channel), each rule named with the class it watches.
+        data.Rules.AddRange(engine.Channels.SelectMany(c => c.Rules.Select(r => ReportRule.Of(r.Rule) is { } shown ? shown with { Class = c.ClassName } : null)));
         engine.TrackAuc(engine.Window.Capacity);
     }
 

@@ -11,8 +11,9 @@ namespace Driftline.Report;
 /// <param name="Clear">The value at which it clears.</param>
 /// <param name="IsEvidence">True for the sequential calibration test, whose value is its evidence (a log-likelihood ratio).</param>
 /// <param name="Description">What the value is, in words, for the chart's axis.</param>
+/// <param name="Class">Multiclass: the class the rule watches against the rest; null for the whole model.</param>
 internal sealed record ReportRule(string Name, AlertMetric Metric, AlertSeverity Severity, int Window, double Raise, double Clear,
-    bool IsEvidence, string Description)
+    bool IsEvidence, string Description, string? Class = null)
 {
     /// <summary>The report's view of <paramref name="rule"/>; null for the loss change detectors, whose value is only a signal.</summary>
     public static ReportRule? Of(AlertRule rule)
