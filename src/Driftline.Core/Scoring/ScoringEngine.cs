@@ -345,7 +345,7 @@ internal sealed class ScoringEngine
         var model = _models[index];
         if (_outputs != 1)
         {
-            return RecordClassProbabilities(record, index, model);
+            return RecordClassProbabilities(record, index, model, time);
         }
         double priorP = model.Prior.Predict();
         double p = record.Probability;
@@ -365,7 +365,7 @@ internal sealed class ScoringEngine
         return StepOutcome.ProbabilityRecorded;
     }
 
-    private StepOutcome RecordClassProbabilities(ParsedRecord record, int index, KeyedModel model)
+    private StepOutcome RecordClassProbabilities(ParsedRecord record, int index, KeyedModel model, long time)
     {
         var p = record.ClassProbabilities;
         if (p.Length != _outputs)
@@ -379,10 +379,11 @@ internal sealed class ScoringEngine
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, p, _priorP, record.Label, record.Id, record.TimeTicks, record.Segment);
+            Grade(model, p, _priorP, record.Label, record.Id, time, record.Segment);
+            InlineLabelled.Add(record.Id);
             return StepOutcome.ProbabilityRecorded;
         }
-        var pending = Pending.Add(record.Id, record.TimeTicks);
+        var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.SetProbabilities(p, _priorP);
         pending.Segment = record.Segment;
