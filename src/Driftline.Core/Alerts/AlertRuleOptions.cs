@@ -67,6 +67,11 @@ internal sealed class AlertRuleOptions
     /// <summary>True for measures decided by a sequential detector rather than by Raise/Clear thresholds.</summary>
     public bool IsDetector => Metric is AlertMetric.CalibrationDrift or AlertMetric.LossShift or AlertMetric.LossChange;
 
+    /// <summary>True for measures of calibration (the ones whose raise switches an OnAlert recalibration on).</summary>
+    [System.Text.Json.Serialization.JsonIgnore]
+    public bool WatchesCalibration => Metric is AlertMetric.CalibrationGap or AlertMetric.CalibrationInTheLarge or AlertMetric.CalibrationDrift
+        or AlertMetric.Ece or AlertMetric.CalibrationZ or AlertMetric.HosmerLemeshowP;
+
     /// <summary>
     /// True for measures of the whole model (its log-loss, alone or against the prior, and the
     /// change detectors on it): with <c>Model:Classes</c> they watch the true class's

@@ -23,7 +23,7 @@ internal static class PredictionLines
     // backslash and the ones the default encoder escapes for HTML (&lt; &gt; &amp; ' + `).
     // The line without its id and key: 62 bytes of names and punctuation, a double (at most 24
     // characters), a long (at most 20) and the time (at most 28), rounded up.
-    private const int MaxFixedBytes = 160;
+    private const int MaxFixedBytes = 200;
 
     private static readonly SearchValues<char> Plain = SearchValues.Create(
         " !#$%()*,-./0123456789:;=?@ABCDEFGHIJKLMNOPQRSTUVWXYZ[]^_abcdefghijklmnopqrstuvwxyz{|}~");
@@ -78,6 +78,12 @@ internal static class PredictionLines
                 // Shortest round-trip form, as the JSON writer formats a double.
                 fits &= p.P.TryFormat(span[n..], out written, default, CultureInfo.InvariantCulture);
                 n += written;
+                if (!double.IsNaN(p.Raw))
+                {
+                    n = Put(span, n, ",\"p_raw\":"u8);
+                    fits &= p.Raw.TryFormat(span[n..], out written, default, CultureInfo.InvariantCulture);
+                    n += written;
+                }
             }
             n = Put(span, n, ",\"model_version\":"u8);
             fits &= p.ModelVersion.TryFormat(span[n..], out written, default, CultureInfo.InvariantCulture);

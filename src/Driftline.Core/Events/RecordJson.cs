@@ -30,6 +30,11 @@ internal static class RecordJson
         else
         {
             w.WriteNumber("p"u8, p.P);
+            if (!double.IsNaN(p.Raw))
+            {
+                // Recalibration on: p is served, p_raw the model's own.
+                w.WriteNumber("p_raw"u8, p.Raw);
+            }
         }
         w.WriteNumber("model_version"u8, p.ModelVersion);
         if (p.TimeTicks != ParsedRecord.NoTime)

@@ -22,6 +22,9 @@ internal sealed class DriftlineOptions
     /// <summary>Rolling measures.</summary>
     public MonitorOptions Monitor { get; set; } = new();
 
+    /// <summary>The live correction of the served probabilities; off by default.</summary>
+    public Recalibration.RecalibrationOptions Recalibration { get; set; } = new();
+
     /// <summary>Alert rules; null means <see cref="AlertRuleOptions.Defaults"/>, an empty list means none.</summary>
     public List<AlertRuleOptions>? Alerts { get; set; }
 
@@ -45,6 +48,11 @@ internal sealed class DriftlineOptions
         errors.AddRange(Input.Validate());
         errors.AddRange(Monitor.Validate());
         errors.AddRange(Webhook.Validate());
+        errors.AddRange(Recalibration.Validate());
+        if (Recalibration.Enabled && Model.IsMulticlass)
+        {
+            errors.Add(new("Recalibration:Mode", "recalibration works on binary models only so far (the per-class vector scaling is not built)", "Leave Recalibration:Mode Off for a model with Model:Classes"));
+        }
         var rules = EffectiveAlerts;
         for (int i = 0; i < rules.Count; i++)
         {

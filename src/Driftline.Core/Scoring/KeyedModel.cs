@@ -29,6 +29,9 @@ internal sealed class KeyedModel
     /// <summary>The Laplace-corrected class prior kept beside the model.</summary>
     public PriorBaseline Prior { get; set; }
 
+    /// <summary>The live correction of this model's probabilities, when <c>Recalibration:Mode</c> is not Off; else null.</summary>
+    public Recalibration.LogOddsRecalibration? Recalibration { get; set; }
+
     /// <summary>Events scored by this model.</summary>
     public long Scored { get; set; }
 }

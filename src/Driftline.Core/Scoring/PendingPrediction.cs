@@ -50,6 +50,9 @@ internal sealed class PendingPrediction
     /// <summary>The class-prior baseline's probability at the same moment.</summary>
     public double PriorP { get; set; }
 
+    /// <summary>With recalibration on: the probability served for the event (binary); NaN otherwise.</summary>
+    public double Served { get; set; } = double.NaN;
+
     /// <summary>Multiclass: the class probabilities emitted (empty for binary).</summary>
     public ReadOnlySpan<double> ClassP => _classP;
 

@@ -5,6 +5,7 @@ using Driftline.Core.Events;
 using Driftline.Core.Features;
 using Driftline.Core.Metrics;
 using Driftline.Core.Options;
+using Driftline.Core.Recalibration;
 using Driftline.Core.Snapshots;
 
 namespace Driftline.Core.Scoring;
@@ -87,7 +88,18 @@ internal sealed class ScoringEngine
         _p = new double[_outputs];
         _priorP = new double[_outputs];
         _segments = options.Monitor.SegmentBy is null ? null : new SegmentTracker(options.Monitor.Window, options.Monitor.MaxSegments);
+        if (options.Recalibration.Enabled)
+        {
+            ServedTotals = new CalibrationTotals(bins);
+            ServedWindow = new CalibrationWindow(options.Monitor.Window, bins);
+        }
     }
+
+    /// <summary>With recalibration on: whole-run measures of the served probabilities (the raw ones are <see cref="Totals"/>); else null.</summary>
+    public CalibrationTotals? ServedTotals { get; private set; }
+
+    /// <summary>With recalibration on: the served probabilities over the report window; else null.</summary>
+    public CalibrationWindow? ServedWindow { get; private set; }
 
     /// <summary>Whole-run counts.</summary>
     public ScoringCounters Counters { get; private set; } = new();
@@ -273,14 +285,18 @@ internal sealed class ScoringEngine
         model.Prior.Predict(priorP);
         model.Scored++;
         Counters.Events++;
-        _sink.OnPrediction(_outputs == 1
-            ? new Prediction(record.Id, model.Key, p[0], model.Learner.Updates, record.TimeTicks)
-            : new Prediction(record.Id, model.Key, double.NaN, model.Learner.Updates, record.TimeTicks, (double[])p.Clone(), ClassNames));
+        // Progressive: the served probability uses only labels graded before this event.
+        double served = model.Recalibration?.Apply(p[0]) ?? double.NaN;
+        _sink.OnPrediction(_outputs != 1
+            ? new Prediction(record.Id, model.Key, double.NaN, model.Learner.Updates, record.TimeTicks, (double[])p.Clone(), ClassNames)
+            : model.Recalibration is null
+                ? new Prediction(record.Id, model.Key, p[0], model.Learner.Updates, record.TimeTicks)
+                : new Prediction(record.Id, model.Key, served, model.Learner.Updates, record.TimeTicks, Raw: p[0]));
 
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, p, priorP, record.Label, record.Id, time, record.Segment);
+            Grade(model, p, priorP, record.Label, record.Id, time, record.Segment, served);
             model.Learner.Update(_x, record.Label, p);
             InlineLabelled.Add(record.Id);
             return StepOutcome.ScoredAndLearned;
@@ -288,6 +304,7 @@ internal sealed class ScoringEngine
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.SetProbabilities(p, priorP);
+        pending.Served = served;
         pending.Segment = record.Segment;
         pending.SetFeatures(_x.Slots, _x.Values);
         return StepOutcome.Scored;
@@ -317,7 +334,7 @@ internal sealed class ScoringEngine
         {
             double p = pending.P;
             double priorP = pending.PriorP;
-            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, pending.Segment);
+            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, pending.Segment, pending.Served);
         }
         else
         {
@@ -350,16 +367,25 @@ internal sealed class ScoringEngine
         double priorP = model.Prior.Predict();
         double p = record.Probability;
         Counters.Probabilities++;
+        // With recalibration on, monitor serves the corrected stream of a model it does not own:
+        // each record's p is the raw one, and its served p goes out as a prediction.
+        double served = double.NaN;
+        if (model.Recalibration is { } recalibration)
+        {
+            served = recalibration.Apply(p);
+            _sink.OnPrediction(new Prediction(record.Id, model.Key, served, recalibration.Labels, record.TimeTicks, Raw: p));
+        }
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, record.Segment);
+            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, record.Segment, served);
             InlineLabelled.Add(record.Id);
             return StepOutcome.ProbabilityRecorded;
         }
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.SetProbabilities(new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP));
+        pending.Served = served;
         pending.Segment = record.Segment;
         pending.SetFeatures([], []);
         return StepOutcome.ProbabilityRecorded;
@@ -395,7 +421,7 @@ internal sealed class ScoringEngine
     // pair itself. Multiclass: (p_y, 1) for the whole model, whose log-loss is then −ln p_y,
     // and (p_k, [y = k]) for each class k against the rest.
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    private void Grade(KeyedModel model, ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, int y, string id, long timeTicks, string? segment)
+    private void Grade(KeyedModel model, ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, int y, string id, long timeTicks, string? segment, double served = double.NaN)
     {
         model.Prior.Add(y);
         Counters.Labels++;
@@ -404,6 +430,10 @@ internal sealed class ScoringEngine
             _segments?.Add(segment, p[0], y);
             WindowAuc?.Add(p[0], y);
             GradeChannel(_channels[0], p[0], priorP[0], y, id, timeTicks, explain: true);
+            if (model.Recalibration is { } recalibration)
+            {
+                Recalibrate(recalibration, p[0], served, y);
+            }
         }
         else
         {
@@ -467,6 +497,29 @@ internal sealed class ScoringEngine
         }
     }
 
+    // The windows and rules above watch the raw model, which is still broken and must say so;
+    // the served stream is measured beside it. Then the correction learns from the label, after
+    // the label's own served probability was made (progressive).
+    private void Recalibrate(LogOddsRecalibration recalibration, double raw, double served, int y)
+    {
+        if (double.IsFinite(served))
+        {
+            var terms = GradedTerms.Of(served, y, _edges);
+            ServedTotals!.Add(terms);
+            ServedWindow!.Add(terms);
+        }
+        recalibration.Learn(raw, y);
+        if (_options.Recalibration.Mode == RecalibrationMode.OnAlert)
+        {
+            bool raised = false;
+            foreach (var (rule, _) in _channels[0].Rules)
+            {
+                raised |= rule.Raised && rule.Options.WatchesCalibration;
+            }
+            recalibration.ObserveRules(raised);
+        }
+    }
+
     // Only at a raise (rare), so a scan of the rules is fine.
     private bool AnyRaisedBesides(AlertRule rule)
     {
@@ -498,6 +551,7 @@ internal sealed class ScoringEngine
             PriorPositives = m.Prior.Positives,
             PriorClassCounts = ClassNames is null ? null : m.Prior.ClassCounts.ToArray(),
             Scored = m.Scored,
+            Recalibration = m.Recalibration?.Export(),
         }).ToList(),
         Pending = Pending.Entries().Select(e => new PendingSnapshot
         {
@@ -510,6 +564,7 @@ internal sealed class ScoringEngine
             PriorP = e.Labelled || _outputs != 1 ? 0 : e.PriorP,
             ClassP = e.Labelled || _outputs == 1 ? null : e.ClassP.ToArray(),
             ClassPriorP = e.Labelled || _outputs == 1 ? null : e.ClassPriorP.ToArray(),
+            Served = e.Labelled || !double.IsFinite(e.Served) ? null : e.Served,
             Labelled = e.Labelled,
             Slots = e.Labelled ? null : e.Slots.ToArray(),
             Values = e.Labelled ? null : e.Values.ToArray(),
@@ -529,6 +584,8 @@ internal sealed class ScoringEngine
         Confusion = _confusion?.ToArray(),
         Counters = Counters.Copy(),
         ClockTicks = _clockTicks,
+        ServedTotals = ServedTotals?.ToState(),
+        ServedWindow = ServedWindow?.ToArray(),
     };
 
     /// <summary>
@@ -570,6 +627,10 @@ internal sealed class ScoringEngine
                 throw new InvalidDataException($"the saved model's class prior counts {model.Prior.Classes} classes but this configuration has {_options.Model.ClassCount}");
             }
             model.Scored = m.Scored;
+            if (model.Recalibration is not null && m.Recalibration is { } state)
+            {
+                model.Recalibration.Import(state);
+            }
         }
     }
 
@@ -588,6 +649,7 @@ internal sealed class ScoringEngine
             {
                 slot.P = e.P;
                 slot.PriorP = e.PriorP;
+                slot.Served = e.Served ?? double.NaN;
             }
             slot.SetFeatures(e.Slots ?? [], e.Values ?? []);
             slot.Segment = e.Segment;
@@ -634,6 +696,14 @@ internal sealed class ScoringEngine
         }
         Counters = snapshot.Counters.Copy();
         _clockTicks = snapshot.ClockTicks;
+        if (ServedTotals is not null && snapshot.ServedTotals is { } servedTotals)
+        {
+            ServedTotals = CalibrationTotals.Restore(servedTotals);
+        }
+        if (ServedWindow is not null && snapshot.ServedWindow is { } servedWindow)
+        {
+            ServedWindow = CalibrationWindow.Restore(_options.Monitor.Window, _options.Monitor.Bins, servedWindow);
+        }
     }
 
     private static ChannelSnapshot ExportChannel(GradingChannel channel) => new()
@@ -752,7 +822,10 @@ internal sealed class ScoringEngine
             return -1;
         }
         index = _models.Count;
-        _models.Add(new KeyedModel(key, _options.Model));
+        _models.Add(new KeyedModel(key, _options.Model)
+        {
+            Recalibration = _options.Recalibration.Enabled ? new LogOddsRecalibration(_options.Recalibration) : null,
+        });
         _modelIndex.Add(key, index);
         return index;
     }

@@ -83,6 +83,12 @@ internal sealed class EngineSnapshot
     /// <summary>Whole-run counts.</summary>
     public ScoringCounters Counters { get; set; } = new();
 
+    /// <summary>With recalibration on: the served probabilities' whole-run totals; null otherwise.</summary>
+    public CalibrationTotalsState? ServedTotals { get; set; }
+
+    /// <summary>With recalibration on: the served probabilities' report window, oldest first; null otherwise.</summary>
+    public GradedPrediction[]? ServedWindow { get; set; }
+
     /// <summary>Latest event time seen (UTC ticks), or no time.</summary>
     public long ClockTicks { get; set; }
 
@@ -123,6 +129,9 @@ internal sealed class ModelSnapshot
 
     /// <summary>Events scored.</summary>
     public long Scored { get; set; }
+
+    /// <summary>The live recalibration's fit, when <c>Recalibration:Mode</c> is not Off; else null.</summary>
+    public Recalibration.RecalibrationState? Recalibration { get; set; }
 }
 
 /// <summary>A prediction waiting for its label.</summary>
@@ -144,6 +153,9 @@ internal sealed class PendingSnapshot
     /// <summary>Baseline probability at the same moment (left out, as 0, once graded).</summary>
     [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingDefault)]
     public double PriorP { get; set; }
+
+    /// <summary>With recalibration on: the probability served (binary); null otherwise.</summary>
+    public double? Served { get; set; }
 
     /// <summary>Multiclass: the class probabilities emitted (null for binary or once labelled).</summary>
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]

@@ -68,6 +68,18 @@ internal static class SnapshotValidator
             {
                 throw Damage(at, $"counts are impossible (prior_count {model.PriorCount}, prior_positives {model.PriorPositives}, scored {model.Scored})");
             }
+            if (model.Recalibration is { } recalibration)
+            {
+                // The same checks the layer makes when it imports the state, named by place here.
+                try
+                {
+                    new Recalibration.LogOddsRecalibration(options.Recalibration).Import(recalibration);
+                }
+                catch (ArgumentException)
+                {
+                    throw Damage(at + ".recalibration", $"is impossible: it needs a finite intercept within ±20, a slope within {options.Recalibration.MinSlope}–{options.Recalibration.MaxSlope} and three finite curvature terms");
+                }
+            }
             if (options.Model.IsMulticlass != model.PriorClassCounts is not null
                 || (model.PriorClassCounts is { } counts && (counts.Length != options.Model.ClassCount || counts.Any(c => c < 0) || counts.Sum() != model.PriorCount)))
             {
@@ -173,7 +185,7 @@ internal static class SnapshotValidator
             {
                 throw Damage(at, $"has no id or names model {p.Model}, and the file holds {models}");
             }
-            if (!Probability(p.P) || !Probability(p.PriorP))
+            if (!Probability(p.P) || !Probability(p.PriorP) || (p.Served is { } served && !Probability(served)))
             {
                 throw Damage(at, "has a probability outside 0–1");
             }

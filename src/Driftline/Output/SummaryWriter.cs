@@ -64,6 +64,31 @@ internal static class SummaryWriter
             }
             w.WriteEndArray();
         }
+        if (engine.ServedTotals is { } servedTotals)
+        {
+            // Recalibration on: the figures above are the raw model's (what the alerts watch);
+            // these are of the probabilities served, with each model's fitted correction.
+            var served = servedTotals.Current;
+            w.WriteStartObject("served");
+            Number(w, "log_loss", served.LogLoss);
+            Number(w, "brier", served.Brier);
+            Number(w, "ece", served.Ece);
+            Number(w, "calibration_in_the_large", served.CalibrationInTheLarge);
+            w.WriteStartArray("recalibration");
+            foreach (var m in engine.Models.Where(m => m.Recalibration is not null))
+            {
+                var r = m.Recalibration!;
+                w.WriteStartObject();
+                w.WriteString("key", m.Key);
+                Number(w, "intercept", r.Intercept);
+                Number(w, "slope", r.Slope);
+                w.WriteNumber("labels", r.Labels);
+                w.WriteBoolean("serving", r.Serving);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
+            w.WriteEndObject();
+        }
         w.WriteNumber("alerts_raised", c.AlertsRaised);
         w.WriteNumber("incidents", c.Incidents);
         w.WriteNumber("alerts_cleared", c.AlertsCleared);

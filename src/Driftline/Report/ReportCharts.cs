@@ -70,6 +70,12 @@ internal static class ReportCharts
             var line = Line(plot, runs[r].Points, p => p.CalibrationInTheLarge, Palette[r % Palette.Length]);
             line.LegendText = runs.Count == 1 ? "model" : runs[r].Name;
         }
+        if (runs.Count == 1 && runs[0].ServedTotal is not null)
+        {
+            // Recalibration on: the stream actually served, beside the model's own.
+            var served = Line(plot, runs[0].Points, p => p.ServedGap, Palette[2]);
+            served.LegendText = "served (recalibrated)";
+        }
         if (alertMarks && runs.Count == 1)
         {
             AlertMarks(plot, runs[0]);

@@ -47,6 +47,12 @@ internal sealed class ReportData
     /// <summary>The class-prior baseline over the whole run.</summary>
     public CalibrationSnapshot PriorTotal { get; set; } = CalibrationSnapshot.Empty;
 
+    /// <summary>With recalibration on: the served probabilities over the whole run; null otherwise.</summary>
+    public CalibrationSnapshot? ServedTotal { get; set; }
+
+    /// <summary>With recalibration on: each model's fitted correction at the end (key, a, b).</summary>
+    public List<(string Key, double Intercept, double Slope)> Recalibrations { get; } = [];
+
     /// <summary>Whole-run counts.</summary>
     public ScoringCounters Counters { get; set; } = new();
 

@@ -15,7 +15,9 @@ namespace Driftline.Report;
 /// <param name="TimeTicks">Latest event time seen (UTC ticks), or <see cref="Core.Events.ParsedRecord.NoTime"/> when events carry none.</param>
 /// <param name="RuleValues">Each rule's value at this moment, in <see cref="ReportData.Rules"/> order (what it compared with its thresholds); null when not recorded.</param>
 /// <param name="ClassGaps">Multiclass: per class, mean p minus observed rate over the window; null for binary.</param>
+/// <param name="ServedGap">With recalibration on: the served probabilities' mean p minus observed rate over the window; NaN otherwise.</param>
+/// <param name="ServedLogLoss">With recalibration on: the served probabilities' log-loss over the window; NaN otherwise.</param>
 internal readonly record struct ReportPoint(long Labels, long Events, int WindowLabels, double LogLoss, double PriorLogLoss,
     double CalibrationInTheLarge, double Ece, long LateLabels, long ExpiredLabels,
     double Brier = double.NaN, double Auc = double.NaN, long TimeTicks = Core.Events.ParsedRecord.NoTime, double[]? RuleValues = null,
-    double[]? ClassGaps = null);
+    double[]? ClassGaps = null, double ServedGap = double.NaN, double ServedLogLoss = double.NaN);

@@ -107,6 +107,9 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         }
         data.Total = engine.Measures(total: true);
         data.PriorTotal = engine.PriorMeasures(total: true);
+        data.ServedTotal = engine.ServedTotals?.Current;
+        data.Recalibrations.Clear();
+        data.Recalibrations.AddRange(engine.Models.Where(m => m.Recalibration is not null).Select(m => (m.Key, m.Recalibration!.Intercept, m.Recalibration.Slope)));
         data.Counters = engine.Counters.Copy();
         data.ExpiredLabels = engine.Pending.Expired;
         data.WaitingLabels = engine.Pending.Waiting;
@@ -140,7 +143,8 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         points.Add(new ReportPoint(labels, engine.Counters.Events, window.Count, window.LogLoss, prior.LogLoss,
             window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired,
             window.Brier, engine.WindowAuc?.Value ?? double.NaN, engine.ClockTicks, values,
-            engine.ClassNames is null ? null : engine.ClassMeasuresOf(total: false).Select(c => c.MeanP - c.ObservedRate).ToArray()));
+            engine.ClassNames is null ? null : engine.ClassMeasuresOf(total: false).Select(c => c.MeanP - c.ObservedRate).ToArray(),
+            engine.ServedWindow?.Current.CalibrationInTheLarge ?? double.NaN, engine.ServedWindow?.Current.LogLoss ?? double.NaN));
         if (points.Count >= MaxPoints)
         {
             // Keep every other point, then sample half as often.

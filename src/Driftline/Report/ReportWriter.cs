@@ -309,6 +309,16 @@ internal static class ReportWriter
         {
             yield return ["accuracy (top label right)", Num(r.Total.MeanY)];
         }
+        if (r.ServedTotal is { } served)
+        {
+            yield return ["log-loss, served (recalibrated)", Num(served.LogLoss)];
+            yield return ["expected calibration error, served", Num(served.Ece)];
+            yield return ["calibration-in-the-large, served", Num(served.CalibrationInTheLarge)];
+            foreach (var (key, a, b) in r.Recalibrations.Take(10))
+            {
+                yield return [$"recalibration of '{key}' (p' = σ(a + b·logit p))", $"#num a = {a.ToString("0.000", C)}, b = {b.ToString("0.000", C)}"];
+            }
+        }
         yield return ["alerts raised / cleared", $"#num {c.AlertsRaised:N0} / {c.AlertsCleared:N0}"];
         yield return ["incidents (stretches with any alert raised)", $"#num {c.Incidents:N0}"];
         yield return ["alerts open at the end", r.OpenAlerts.Count == 0 ? "none" : string.Join(", ", r.OpenAlerts)];
