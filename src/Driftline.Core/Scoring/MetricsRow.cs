@@ -14,7 +14,8 @@ namespace Driftline.Core.Scoring;
 /// <param name="ExpiredLabels">Predictions dropped unlabelled so far.</param>
 /// <param name="Classes">Multiclass: each class against the rest over the window; null for binary.</param>
 /// <param name="ClassWiseEce">Multiclass: the class-wise ECE over the window; NaN for binary.</param>
+/// <param name="Served">With recalibration on: the served probabilities over the window; null otherwise.</param>
 /// <remarks>For a multiclass model the snapshots hold the measures of <see cref="ScoringEngine.Measures"/>.</remarks>
 internal readonly record struct MetricsRow(long Events, long Labels, long TimeTicks, CalibrationSnapshot Window,
     CalibrationSnapshot PriorWindow, CalibrationSnapshot Total, CalibrationSnapshot PriorTotal, long LateLabels, long ExpiredLabels,
-    IReadOnlyList<ClassMeasures>? Classes = null, double ClassWiseEce = double.NaN);
+    IReadOnlyList<ClassMeasures>? Classes = null, double ClassWiseEce = double.NaN, CalibrationSnapshot? Served = null);

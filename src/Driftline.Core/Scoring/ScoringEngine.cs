@@ -536,7 +536,7 @@ internal sealed class ScoringEngine
     /// <summary>The measures now, as reported every <c>Monitor:MetricsEvery</c> labels.</summary>
     public MetricsRow CurrentMetrics(long timeTicks) => new(Counters.Events, Counters.Labels, timeTicks,
         Measures(false), PriorMeasures(false), Measures(true), PriorMeasures(true), Counters.LateLabels, Pending.Expired,
-        ClassNames is null ? null : ClassMeasuresOf(false), ClassWiseEce(false));
+        ClassNames is null ? null : ClassMeasuresOf(false), ClassWiseEce(false), ServedWindow?.Current);
 
     /// <summary>The engine's whole state, for a checkpoint or a saved model.</summary>
     public EngineSnapshot Snapshot() => new()

@@ -134,7 +134,8 @@ internal sealed class ReplayCommand(CommandContext context)
             }
             foreach (var folder in folders)
             {
-                outputs.Add(new ReplayOutputs(folder, context.CreateOutput, configs[0].Options.Model.Classes));
+                outputs.Add(new ReplayOutputs(folder, context.CreateOutput, configs[0].Options.Model.Classes,
+                    served: configs[Math.Min(outputs.Count, configs.Count - 1)].Options.Recalibration.Enabled));
             }
         }
         catch (OutputException ex)

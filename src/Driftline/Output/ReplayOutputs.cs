@@ -36,9 +36,10 @@ internal sealed class ReplayOutputs : IDisposable
     /// binary): a multiclass model's file adds the class-wise ECE and, per class, the mean
     /// predicted probability and the observed rate over the window.
     /// </summary>
-    public static string HeaderFor(IReadOnlyList<string>? classes) => classes is null
+    public static string HeaderFor(IReadOnlyList<string>? classes, bool served = false) => (classes is null
         ? MetricsHeader
-        : MetricsHeader + ",classwise_ece" + string.Concat(classes.Select(c => $",mean_p:{CsvName(c)},observed:{CsvName(c)}"));
+        : MetricsHeader + ",classwise_ece" + string.Concat(classes.Select(c => $",mean_p:{CsvName(c)},observed:{CsvName(c)}")))
+        + (served ? ",served_log_loss,served_brier,served_ece,served_calibration_in_the_large" : "");
 
     // A class name as a CSV header cell: quoted when it holds a comma, quote or line break (RFC 4180).
     private static string CsvName(string name) =>
@@ -51,7 +52,7 @@ internal sealed class ReplayOutputs : IDisposable
     /// model's classes for the header of <c>metrics.csv</c>.
     /// </summary>
     /// <exception cref="OutputException">A file cannot be created.</exception>
-    public ReplayOutputs(string directory, Func<string, Stream>? create = null, IReadOnlyList<string>? classes = null)
+    public ReplayOutputs(string directory, Func<string, Stream>? create = null, IReadOnlyList<string>? classes = null, bool served = false)
     {
         _directory = directory;
         var opened = new List<Stream>();
@@ -69,7 +70,7 @@ internal sealed class ReplayOutputs : IDisposable
             throw;
         }
         _json = new Utf8JsonWriter(_buffer, new JsonWriterOptions { SkipValidation = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
-        Guard("metrics.csv", () => _metrics.WriteLine(HeaderFor(classes)));
+        Guard("metrics.csv", () => _metrics.WriteLine(HeaderFor(classes, served)));
 
         Stream Open(string name)
         {
@@ -162,7 +163,8 @@ internal sealed class ReplayOutputs : IDisposable
             F(r.Window.CalibrationInTheLarge), F(r.Window.MeanP), F(r.Window.MeanY),
             F(r.Total.LogLoss), F(r.PriorTotal.LogLoss), F(r.Total.Brier), F(r.Total.Ece),
             r.LateLabels.ToString(c), r.ExpiredLabels.ToString(c))
-            + (r.Classes is { } classes ? "," + F(r.ClassWiseEce) + string.Concat(classes.Select(k => "," + F(k.MeanP) + "," + F(k.ObservedRate))) : "");
+            + (r.Classes is { } classes ? "," + F(r.ClassWiseEce) + string.Concat(classes.Select(k => "," + F(k.MeanP) + "," + F(k.ObservedRate))) : "")
+            + (r.Served is { } s ? "," + F(s.LogLoss) + "," + F(s.Brier) + "," + F(s.Ece) + "," + F(s.CalibrationInTheLarge) : "");
     }
 
     private static string F(double v) => double.IsFinite(v) ? v.ToString("0.######", CultureInfo.InvariantCulture) : "";

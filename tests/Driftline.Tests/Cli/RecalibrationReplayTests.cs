@@ -23,6 +23,9 @@ public sealed class RecalibrationReplayTests(DemoReplay demo) : IClassFixture<De
         var served = summary.RootElement.GetProperty("served");
         Assert.True(served.GetProperty("log_loss").GetDouble() > 0);
         Assert.Equal(1, served.GetProperty("recalibration").GetArrayLength());
+        var metrics = File.ReadAllLines(Path.Combine(folder.File("out"), "metrics.csv"));
+        Assert.EndsWith(",served_log_loss,served_brier,served_ece,served_calibration_in_the_large", metrics[0], StringComparison.Ordinal);
+        Assert.Equal(metrics[0].Split(',').Length, metrics[^1].Split(',').Length);
         Assert.Contains("served (recalibrated)", File.ReadAllText(Path.Combine(folder.File("out"), "report.html")), StringComparison.Ordinal);
     }
 
