@@ -46,4 +46,11 @@ internal enum AlertMetric
 
     /// <summary>Rolling AUC over the window: ranking quality, not calibration; use Direction Below.</summary>
     Auc,
+
+    /// <summary>
+    /// Not a rule's measure: the evidence of a challenger configuration over the champion (the
+    /// log of the betting wealth of <see cref="Challengers.PairedLossTest"/>), on the
+    /// <c>challenger-better</c> line written when it reaches ln(1/Challengers:ErrorRate).
+    /// </summary>
+    ChallengerEvidence,
 }

@@ -118,6 +118,10 @@ internal sealed class AlertRuleOptions
         {
             yield return new($"{section}:ClearHoldLabels", $"{ClearHoldLabels} is outside 0–10,000,000", "Leave it out (the window's length), or use 0 to clear at once");
         }
+        if (Metric == AlertMetric.ChallengerEvidence)
+        {
+            yield return new($"{section}:Metric", "ChallengerEvidence is written by the challenger test, not watched by a rule", "Give a challenger configuration with --challenger instead");
+        }
         if (CooldownLabels < 0)
         {
             yield return new($"{section}:CooldownLabels", $"{CooldownLabels} is negative", "Use 0 for no cool-down, or a number of labels");

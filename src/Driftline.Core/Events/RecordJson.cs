@@ -153,6 +153,7 @@ internal static class RecordJson
         AlertMetric.LossChange => "loss_change",
         AlertMetric.HosmerLemeshowP => "hosmer_lemeshow_p",
         AlertMetric.Auc => "auc",
+        AlertMetric.ChallengerEvidence => "challenger_evidence",
         _ => metric.ToString(),
     };
 
@@ -173,6 +174,7 @@ internal static class RecordJson
             AlertMetric.LossChange => "the ADWIN test on the log-loss",
             AlertMetric.HosmerLemeshowP => "the Hosmer–Lemeshow p-value",
             AlertMetric.Auc => "the AUC",
+            AlertMetric.ChallengerEvidence => "the evidence that the challenger's log-loss is lower than the champion's (log of the betting wealth)",
             _ => MetricName(a.Metric),
         };
         string relative = a.RelativeTo switch
@@ -181,7 +183,7 @@ internal static class RecordJson
             AlertBaseline.Reference => " relative to its reference period",
             _ => "",
         };
-        string over = a.Metric is AlertMetric.CalibrationDrift or AlertMetric.LossShift or AlertMetric.LossChange
+        string over = a.Metric is AlertMetric.CalibrationDrift or AlertMetric.LossShift or AlertMetric.LossChange or AlertMetric.ChallengerEvidence
             ? "since the last reset"
             : $"over the last {a.Window:N0} labels";
         string brk = a.Break is null ? "" : $" Best explanation: {a.Break}.";

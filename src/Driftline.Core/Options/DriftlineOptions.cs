@@ -22,6 +22,9 @@ internal sealed class DriftlineOptions
     /// <summary>Rolling measures.</summary>
     public MonitorOptions Monitor { get; set; } = new();
 
+    /// <summary>How challenger configurations are judged against this one (when it is the champion).</summary>
+    public Challengers.ChallengerOptions Challengers { get; set; } = new();
+
     /// <summary>The live correction of the served probabilities; off by default.</summary>
     public Recalibration.RecalibrationOptions Recalibration { get; set; } = new();
 
@@ -49,6 +52,7 @@ internal sealed class DriftlineOptions
         errors.AddRange(Monitor.Validate());
         errors.AddRange(Webhook.Validate());
         errors.AddRange(Recalibration.Validate());
+        errors.AddRange(Challengers.Validate());
         if (Recalibration.Enabled && Model.IsMulticlass)
         {
             errors.Add(new("Recalibration:Mode", "recalibration works on binary models only so far (the per-class vector scaling is not built)", "Leave Recalibration:Mode Off for a model with Model:Classes"));

@@ -223,6 +223,15 @@ internal sealed class ScoringEngine
     /// <summary>Starts <see cref="WindowAuc"/> over the last <paramref name="labels"/> labels.</summary>
     public void TrackAuc(int labels) => WindowAuc ??= new RollingAuc(labels);
 
+    /// <summary>
+    /// Called for every graded label with its whole-model log-loss (the raw model's), in grading
+    /// order: what a challenger is judged on. Null (the default) costs one check a label.
+    /// </summary>
+    public Action<GradedLabel>? LabelGraded { get; set; }
+
+    /// <summary>Hands <paramref name="alert"/> to this engine's sink, as if a rule had raised it (a challenger's decision, made outside the rules).</summary>
+    public void Emit(AlertTransition alert) => _sink.OnAlert(alert);
+
     /// <summary>Processes one parsed record.</summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public StepOutcome Process(ParsedRecord record)
@@ -425,6 +434,7 @@ internal sealed class ScoringEngine
     {
         model.Prior.Add(y);
         Counters.Labels++;
+        LabelGraded?.Invoke(new GradedLabel(id, timeTicks, PredictionScores.LogLoss(_outputs == 1 ? p[0] : p[y], _outputs == 1 ? y : 1)));
         if (_outputs == 1)
         {
             _segments?.Add(segment, p[0], y);

@@ -2,6 +2,7 @@ using System.CommandLine;
 using System.Diagnostics;
 using System.Globalization;
 using Driftline.Configuration;
+using Driftline.Core.Challengers;
 using Driftline.Core.Events;
 using Driftline.Core.Features;
 using Driftline.Core.Options;
@@ -43,11 +44,25 @@ internal sealed class ReplayCommand(CommandContext context)
             Description = "JSON configuration file (defaults apply to anything it leaves out); repeat it to compare configurations in one pass",
             Arity = ArgumentArity.ZeroOrMore,
         };
+        var challenger = new Option<string[]>("--challenger")
+        {
+            Description = "A configuration scored in the shadow and judged against the champion (the first --config, or the defaults) by a sequential test on their per-label log-loss; repeat for several",
+            Arity = ArgumentArity.ZeroOrMore,
+            HelpName = "FILE",
+        };
         var warm = new Option<string?>("--warm-start") { Description = "Model file (from fit or an earlier replay) whose weights every configuration starts from" };
-        var command = new Command("replay", "Replay a recorded file through the scoring pipeline") { file, output, config, warm };
-        command.SetAction((result, token) => RunAsync(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config) ?? [], token, result.GetValue(warm)));
+        var command = new Command("replay", "Replay a recorded file through the scoring pipeline") { file, output, config, challenger, warm };
+        command.SetAction((result, token) => RunAsync(result.GetValue(file)!, result.GetValue(output)!, Champion(result.GetValue(config), result.GetValue(challenger)), token, result.GetValue(warm)));
         return command;
     }
+
+    // Challengers run as further configurations after the champion's: the defaults when no
+    // --config names one.
+    private static string[] Champion(string[]? configs, string[]? challengers) =>
+        challengers is not { Length: > 0 } ? configs ?? [] : [.. configs is { Length: > 0 } ? configs : [DefaultsName], .. challengers];
+
+    /// <summary>Stands for the defaults in a list of configuration paths (a champion with no file).</summary>
+    public const string DefaultsName = "(defaults)";
 
     /// <summary>Runs a replay with one configuration (or the defaults when null); returns the exit code.</summary>
     public Task<int> RunAsync(string file, string outDir, string? configPath, CancellationToken cancellation) =>
@@ -57,7 +72,7 @@ internal sealed class ReplayCommand(CommandContext context)
     public async Task<int> RunAsync(string file, string outDir, IReadOnlyList<string> configPaths, CancellationToken cancellation, string? warmStart)
     {
         var configs = new List<(string Name, DriftlineOptions Options)>();
-        foreach (var path in configPaths.Count == 0 ? [null] : configPaths.Cast<string?>())
+        foreach (var path in configPaths.Count == 0 ? [null] : configPaths.Select(p => p == DefaultsName ? null : p))
         {
             var options = ConfigLoader.Load(path, context.Environment, out var errors);
             if (options is null)
@@ -159,6 +174,15 @@ internal sealed class ReplayCommand(CommandContext context)
                 lanes[i].Engine.LoadModels(start);
             }
             recorders[i].Attach(lanes[i].Engine);
+        }
+        // Every configuration after the first is judged against it on the same labels; a
+        // decision is a challenger-better line in the champion's alerts.
+        for (int i = 1; i < lanes.Count; i++)
+        {
+            var judge = new ChallengerJudge(configs[i].Name, configs[0].Options.Challengers, lanes[0].Engine.Emit);
+            lanes[0].Engine.LabelGraded += judge.Champion;
+            lanes[i].Engine.LabelGraded = judge.Challenger;
+            recorders[i].Data.Challenger = judge;
         }
         var names = new FeatureNames();
         var progress = new ReplayProgress(context.Error, context.ErrorIsTerminal, input.CanSeek ? input.Length : null);
@@ -297,7 +321,7 @@ internal sealed class ReplayCommand(CommandContext context)
         }
         for (int i = 0; i < lanes.Count; i++)
         {
-            SummaryWriter.Write(Path.Combine(folders[i], SummaryFile), lanes[i].Engine, lanes[i].DeadLetters, elapsed, webhooks[i], context.CreateOutput);
+            SummaryWriter.Write(Path.Combine(folders[i], SummaryFile), lanes[i].Engine, lanes[i].DeadLetters, elapsed, webhooks[i], context.CreateOutput, recorders[i].Data.Challenger);
         }
     }
 

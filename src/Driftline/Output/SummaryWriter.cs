@@ -16,10 +16,11 @@ internal static class SummaryWriter
     /// written whole through a temporary name, opened with <paramref name="create"/>.
     /// </summary>
     /// <exception cref="OutputException">The file cannot be written.</exception>
-    public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook = null, Func<string, Stream>? create = null) =>
-        OutputFile.Write(path, file => Write(file, engine, deadLetters, elapsed, webhook), create);
+    public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook = null, Func<string, Stream>? create = null,
+        Core.Challengers.ChallengerJudge? challenger = null) =>
+        OutputFile.Write(path, file => Write(file, engine, deadLetters, elapsed, webhook, challenger), create);
 
-    private static void Write(Stream file, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook)
+    private static void Write(Stream file, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook, Core.Challengers.ChallengerJudge? challenger)
     {
         using var w = new Utf8JsonWriter(file, new JsonWriterOptions { Indented = true });
         var c = engine.Counters;
@@ -85,6 +86,23 @@ internal static class SummaryWriter
                 w.WriteNumber("labels", r.Labels);
                 w.WriteBoolean("serving", r.Serving);
                 w.WriteEndObject();
+            }
+            w.WriteEndArray();
+            w.WriteEndObject();
+        }
+        if (challenger is not null)
+        {
+            // This configuration ran as a challenger: its paired test against the champion.
+            w.WriteStartObject("against_champion");
+            w.WriteNumber("paired_labels", challenger.Paired);
+            Number(w, "champion_log_loss", challenger.ChampionLogLoss);
+            Number(w, "log_loss", challenger.ChallengerLogLoss);
+            Number(w, "evidence", challenger.Evidence);
+            Number(w, "threshold", challenger.Threshold);
+            w.WriteStartArray("declared_better_at");
+            foreach (long at in challenger.DecidedAt)
+            {
+                w.WriteNumberValue(at);
             }
             w.WriteEndArray();
             w.WriteEndObject();

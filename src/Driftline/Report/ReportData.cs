@@ -53,6 +53,9 @@ internal sealed class ReportData
     /// <summary>With recalibration on: each model's fitted correction at the end (key, a, b).</summary>
     public List<(string Key, double Intercept, double Slope)> Recalibrations { get; } = [];
 
+    /// <summary>For a configuration after the first: its test against the champion; null otherwise.</summary>
+    public Core.Challengers.ChallengerJudge? Challenger { get; set; }
+
     /// <summary>Whole-run counts.</summary>
     public ScoringCounters Counters { get; set; } = new();
 

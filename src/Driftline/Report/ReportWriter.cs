@@ -160,6 +160,19 @@ internal static class ReportWriter
                 ]))
             .Paragraph("Skill is 1 − model log-loss / prior log-loss over the whole run: the share of the baseline's loss the model removes. Each configuration's own report, with its alert windows, is in its folder: follow its name below.");
 
+        if (runs.Skip(1).Any(r => r.Challenger is not null))
+        {
+            page.Heading(2, "Challengers against the champion", "challengers")
+                .Paragraph($"Each configuration after the first is judged against '{runs[0].Name}' by a sequential test on the paired per-label log-loss differences (testing by betting, Waudby-Smith & Ramdas 2024): a challenger is declared better when its evidence reaches ln(1/α), with α = {runs[0].Options.Challengers.ErrorRate.ToString("0.###", C)} the chance of declaring a challenger that is not better, however long the run. After a decision the test starts afresh.")
+                .Table(["challenger", "paired labels", "champion log-loss", "its log-loss", "evidence now", "threshold", "declared better at paired label"],
+                    runs.Skip(1).Where(r => r.Challenger is not null).Select(r => (IReadOnlyList<string>)
+                    [
+                        r.Name, $"#num {r.Challenger!.Paired:N0}", Num(r.Challenger.ChampionLogLoss), Num(r.Challenger.ChallengerLogLoss),
+                        Num(r.Challenger.Evidence), Num(r.Challenger.Threshold),
+                        r.Challenger.DecidedAt.Count == 0 ? "never" : string.Join(", ", r.Challenger.DecidedAt.Take(10).Select(d => d.ToString("N0", C))),
+                    ]));
+        }
+
         // The key doubles as the way into each configuration's own report (relative links work offline).
         page.Raw("<p class=\"key\">" + string.Join(" ", runs.Select((r, i) =>
             $"<a href=\"{Uri.EscapeDataString(r.Name)}/{FileName}\"><span class=\"swatch\" style=\"background:{ReportCharts.ColourHex(i)}\"></span>{HtmlPage.Encode(r.Name)}</a>")) + "</p>");
