@@ -13,22 +13,28 @@ internal sealed class WorkerGroup : IDisposable
     private readonly string _bootstrap;
 
     public WorkerGroup(MockCluster cluster, string prefix, int partitions, IReadOnlyDictionary<string, string>? client = null, int checkpointEveryLabels = 5_000, int initialRebalanceDelayMs = 200)
+        : this(cluster.Bootstrap, cluster.CreateTopic, prefix, partitions, client, checkpointEveryLabels)
     {
-        _bootstrap = cluster.Bootstrap;
-        Prefix = prefix;
-        Partitions = partitions;
-        Checkpoints = Path.Combine(_dir.Path, "checkpoints");
-        ConfigPath = Path.Combine(_dir.Path, "driftline.json");
         // A broker waits 3 s for more members at a group's first join; the tests start members one by one.
         if (initialRebalanceDelayMs >= 0)
         {
             cluster.InitialRebalanceDelay(initialRebalanceDelayMs);
         }
-        cluster.CreateTopic(EventsTopic, partitions);
-        cluster.CreateTopic(LabelsTopic, partitions);
+    }
+
+    /// <summary>A group on any cluster at <paramref name="bootstrap"/> (a real broker too), its topics made by <paramref name="createTopic"/>.</summary>
+    public WorkerGroup(string bootstrap, Action<string, int> createTopic, string prefix, int partitions, IReadOnlyDictionary<string, string>? client = null, int checkpointEveryLabels = 5_000)
+    {
+        _bootstrap = bootstrap;
+        Prefix = prefix;
+        Partitions = partitions;
+        Checkpoints = Path.Combine(_dir.Path, "checkpoints");
+        ConfigPath = Path.Combine(_dir.Path, "driftline.json");
+        createTopic(EventsTopic, partitions);
+        createTopic(LabelsTopic, partitions);
         // Outputs exist beforehand too, as in production, so readers subscribed early see them at once.
-        cluster.CreateTopic(PredictionsTopic, 4);
-        cluster.CreateTopic(DeadLetterTopic, 4);
+        createTopic(PredictionsTopic, 4);
+        createTopic(DeadLetterTopic, 4);
         var settings = new Dictionary<string, string>
         {
             // The mock answers an idle fetch only at fetch.wait.max.ms; keep it well under the label hold.
