@@ -60,6 +60,7 @@ internal static class LogisticNewtonFit
     /// tolerance·(1 + |b|). Default 1e−10; must be in (0, 1).
     /// </param>
     /// <param name="maxIterations">Limit on Newton steps, at least 1. Default 100.</param>
+    /// <param name="featureNames">One name per feature, used in <see cref="LogisticFitResult.Problem"/>; default null says "feature j".</param>
     /// <returns>
     /// The fit. A data set with one label only, separated labels (ridge 0), collinear
     /// features (ridge 0) or an iteration limit give <see cref="LogisticFitResult.Converged"/>
@@ -74,7 +75,8 @@ internal static class LogisticNewtonFit
         IReadOnlyList<double>? weights = null,
         IReadOnlyList<double>? start = null,
         double tolerance = DefaultTolerance,
-        int maxIterations = DefaultMaxIterations)
+        int maxIterations = DefaultMaxIterations,
+        IReadOnlyList<string>? featureNames = null)
     {
         ArgumentNullException.ThrowIfNull(features);
         if (features.RowCount == 0)
@@ -89,7 +91,7 @@ internal static class LogisticNewtonFit
             design[i] = LogisticFitInput.DesignRow(rows[i], i, nameof(features));
         }
 
-        return FitDesign(design, labels, ridge, weights, start, tolerance, maxIterations);
+        return FitDesign(design, labels, ridge, weights, start, tolerance, maxIterations, featureNames);
     }
 
     /// <summary>
@@ -102,6 +104,7 @@ internal static class LogisticNewtonFit
     /// <param name="start">Starting intercept and coefficients, default null (the intercept-only fit).</param>
     /// <param name="tolerance">Convergence tolerance, default 1e−10.</param>
     /// <param name="maxIterations">Limit on Newton steps, default 100.</param>
+    /// <param name="featureNames">One name per feature for messages, default null.</param>
     /// <returns>The fit; see the matrix overload for how failures are reported.</returns>
     /// <exception cref="ArgumentException">No rows, a null or ragged row, or any input the matrix overload rejects.</exception>
     /// <exception cref="ArgumentOutOfRangeException">Ridge, tolerance or iteration limit out of range.</exception>
@@ -112,7 +115,8 @@ internal static class LogisticNewtonFit
         IReadOnlyList<double>? weights = null,
         IReadOnlyList<double>? start = null,
         double tolerance = DefaultTolerance,
-        int maxIterations = DefaultMaxIterations)
+        int maxIterations = DefaultMaxIterations,
+        IReadOnlyList<string>? featureNames = null)
     {
         ArgumentNullException.ThrowIfNull(rows);
         if (rows.Count == 0)
@@ -134,7 +138,7 @@ internal static class LogisticNewtonFit
             design[i] = LogisticFitInput.DesignRow(row, i, nameof(rows));
         }
 
-        return FitDesign(design, labels, ridge, weights, start, tolerance, maxIterations);
+        return FitDesign(design, labels, ridge, weights, start, tolerance, maxIterations, featureNames);
     }
 
     private static LogisticFitResult FitDesign(
@@ -144,8 +148,14 @@ internal static class LogisticNewtonFit
         IReadOnlyList<double>? weights,
         IReadOnlyList<double>? start,
         double tolerance,
-        int maxIterations)
+        int maxIterations,
+        IReadOnlyList<string>? featureNames)
     {
+        if (featureNames is not null && featureNames.Count != x[0].Length - 1)
+        {
+            throw new ArgumentException($"There are {featureNames.Count} feature names for {x[0].Length - 1} features; give one name per feature.", nameof(featureNames));
+        }
+
         double[] y = LogisticFitInput.Labels(labels, x.Length);
         double[] v = LogisticFitInput.Weights(weights, x.Length);
         double[]? startingPoint = LogisticFitInput.Start(start, x[0].Length);
@@ -198,7 +208,7 @@ internal static class LogisticNewtonFit
             Cholesky<double>? factor = HessianFactor.TryFactor(hessian, out int singularColumn);
             if (factor is null)
             {
-                failure = SingularMessage(likelihood, ridge, eta, iterations, singularColumn);
+                failure = SingularMessage(likelihood, ridge, eta, iterations, singularColumn, featureNames);
                 break;
             }
 
@@ -320,7 +330,8 @@ internal static class LogisticNewtonFit
         return largest;
     }
 
-    private static string SingularMessage(LogisticLikelihood likelihood, double ridge, double[] eta, int iterations, int singularColumn)
+    private static string SingularMessage(
+        LogisticLikelihood likelihood, double ridge, double[] eta, int iterations, int singularColumn, IReadOnlyList<string>? names)
     {
         // With every margin 0 each row has the same IRLS weight, so a singular matrix there is
         // the design's own fault (collinear columns). Otherwise the weights have collapsed
@@ -329,7 +340,7 @@ internal static class LogisticNewtonFit
             Vector<double>.Build.Dense(likelihood.Width), new double[likelihood.RowCount], ridge);
         if (HessianFactor.TryFactor(uniform, out int collinearColumn) is null)
         {
-            return CollinearMessage(collinearColumn);
+            return CollinearMessage(collinearColumn, names);
         }
 
         if (ridge == 0 && likelihood.HasCertainRows(eta))
@@ -337,20 +348,33 @@ internal static class LogisticNewtonFit
             return PartlySeparatedMessage;
         }
 
-        return $"the Hessian became singular after {iterations} Newton steps (at {ColumnName(singularColumn)}); " +
+        return $"the Hessian became singular after {iterations} Newton steps (at {ColumnName(singularColumn, names)}); " +
             "standardize the features or add ridge (L2)";
     }
 
-    private static string CollinearMessage(int column)
+    private static string CollinearMessage(int column, IReadOnlyList<string>? names)
     {
         int feature = column - 1;
-        string what = feature <= 0
-            ? "feature 0 is constant (it duplicates the intercept)"
-            : $"feature {feature} is constant or a linear combination of features 0–{feature - 1} and the intercept " +
-              "(for example a duplicate, or a one-hot group that sums to 1)";
+        string what;
+        if (names is null)
+        {
+            what = feature <= 0
+                ? "feature 0 is constant (it duplicates the intercept)"
+                : $"feature {feature} is constant or a linear combination of features 0–{feature - 1} and the intercept " +
+                  "(for example a duplicate, or a one-hot group that sums to 1)";
+        }
+        else
+        {
+            what = feature <= 0
+                ? $"'{names[Math.Max(feature, 0)]}' is constant (it duplicates the intercept)"
+                : $"'{names[feature]}' is constant or a linear combination of the intercept and the features listed before it " +
+                  "(for example a duplicate, or a one-hot group that sums to 1)";
+        }
+
         return $"the features are collinear: {what}, so the Hessian is singular and the coefficients are not identified; " +
             "drop that feature or add ridge (L2)";
     }
 
-    private static string ColumnName(int column) => column <= 0 ? "the intercept" : $"feature {column - 1}";
+    private static string ColumnName(int column, IReadOnlyList<string>? names) =>
+        column <= 0 ? "the intercept" : names is null ? $"feature {column - 1}" : $"'{names[column - 1]}'";
 }

@@ -25,6 +25,13 @@ internal static class ExitCode
     public const int Kafka = 5;
 
     /// <summary>
+    /// <c>fit</c> read its input but the data cannot identify the model: features still
+    /// collinear after the reference levels are left out, separated labels, one label only,
+    /// too many features for a dense fit, or no convergence; one line names the cause and the fix.
+    /// </summary>
+    public const int FitFailed = 6;
+
+    /// <summary>
     /// A replay or monitor stopped by SIGINT (Ctrl-C) before the end of its input: 128 + 2, as
     /// shells report a process ended by that signal (common practice).
     /// </summary>

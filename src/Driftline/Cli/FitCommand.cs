@@ -1,4 +1,5 @@
 using System.CommandLine;
+using System.Globalization;
 using Driftline.Configuration;
 using Driftline.Core.Events;
 using Driftline.Core.Features;
@@ -64,7 +65,10 @@ internal sealed class FitCommand(CommandContext context)
             return ExitCode.Input;
         }
 
-        var parser = new EventParser { MaxTextBytes = options.Input.MaxTextBytes };
+        // The parser records the text behind every hash it makes, so the columns, the messages
+        // and the saved model all name features (interactions included) rather than slots.
+        var recorded = new FeatureNames();
+        var parser = new EventParser { MaxTextBytes = options.Input.MaxTextBytes, Names = recorded };
         var record = new ParsedRecord();
         var featurizer = new Featurizer(options.Model);
         var x = new SparseVector();
@@ -93,7 +97,6 @@ internal sealed class FitCommand(CommandContext context)
         int mask = (1 << options.Model.HashBits) - 1;
         int biasSlot = FeatureHash.Slot(FeatureHash.Bias, mask);
         var columns = new Dictionary<int, int>();
-        var names = new Dictionary<int, (string Name, double Sign)>();
         var rows = new List<(int[] Columns, double[] Values)>();
         var labels = new List<double>();
         foreach (var line in lines)
@@ -108,7 +111,6 @@ internal sealed class FitCommand(CommandContext context)
                 continue;
             }
             featurizer.Featurize(record, x);
-            bool fresh = false;
             var cols = new List<int>();
             var vals = new List<double>();
             for (int i = 0; i < x.Count; i++)
@@ -121,14 +123,9 @@ internal sealed class FitCommand(CommandContext context)
                 {
                     c = columns.Count;
                     columns.Add(x.Slots[i], c);
-                    fresh = true;
                 }
                 cols.Add(c);
                 vals.Add(x.Values[i]);
-            }
-            if (fresh)
-            {
-                FeatureNameScan.Scan(line, mask, names);
             }
             rows.Add(([.. cols], [.. vals]));
             labels.Add(label);
@@ -141,23 +138,34 @@ internal sealed class FitCommand(CommandContext context)
         if (columns.Count > MaxColumns)
         {
             context.Error.WriteLine($"driftline: {columns.Count:N0} distinct features is more than a batch fit takes ({MaxColumns:N0}); fit on fewer features or let the online model learn them");
-            return ExitCode.Input;
+            return ExitCode.FitFailed;
         }
 
-        var design = rows.Select(r =>
+        var recordedNames = recorded.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
+        var slotNames = SlotNames.Build(recordedNames, options.Model);
+        var allSlots = columns.OrderBy(kv => kv.Value).Select(kv => kv.Key).ToArray();
+        var full = rows.Select(r =>
         {
-            var dense = new double[columns.Count];
+            var dense = new double[allSlots.Length];
             for (int i = 0; i < r.Columns.Length; i++)
             {
                 dense[r.Columns[i]] += r.Values[i];
             }
             return dense;
         }).ToList();
-        var fit = LogisticNewtonFit.Fit(design, labels, ridge);
-        var slotOf = columns.OrderBy(kv => kv.Value).Select(kv => kv.Key).ToArray();
-        var columnNames = slotOf.Select(s => names.TryGetValue(s, out var n) ? n.Name : $"slot {s}").ToArray();
+
+        // One-hot categoricals sum to the intercept's column: leave one level of each out.
+        var groups = allSlots.Select(s => slotNames.TryName(s, out string n, out _) ? SlotNames.CategoricalOf(n) : null).ToArray();
+        var dropped = ReferenceLevels.Choose(full, groups).ToHashSet();
+        var keep = Enumerable.Range(0, allSlots.Length).Where(c => !dropped.Contains(c)).ToArray();
+        var slotOf = keep.Select(c => allSlots[c]).ToArray();
+        var design = dropped.Count == 0 ? full : full.Select(r => keep.Select(c => r[c]).ToArray()).ToList();
+        var references = dropped.Order().Select(c => slotNames.Describe(allSlots[c], 1, out _)).ToArray();
+
+        var columnNames = slotOf.Select(s => slotNames.Describe(s, 1, out _)).ToArray();
         // Report coefficients in the features' own direction: hashed columns carry a sign.
-        var signs = slotOf.Select(s => names.TryGetValue(s, out var n) ? n.Sign : 1.0).ToArray();
+        var signs = slotOf.Select(s => slotNames.TryName(s, out _, out double sign) ? sign : 1.0).ToArray();
+        var fit = LogisticNewtonFit.Fit(design, labels, ridge, featureNames: columnNames);
         var natural = fit with
         {
             Coefficients = fit.Coefficients.Select((c, i) => c * signs[i]).ToArray(),
@@ -165,16 +173,16 @@ internal sealed class FitCommand(CommandContext context)
         };
         if (!fit.Converged)
         {
-            context.Out.WriteLine(new FitReport(natural, columnNames).Format());
+            // One line and no table: the estimates of a failed fit are not a result.
             context.Error.WriteLine($"driftline: the fit did not converge: {fit.Problem}");
-            return ExitCode.Input;
+            return ExitCode.FitFailed;
         }
 
         // The model is on disk before any table is shown: a table above an error line would
         // read as a result that was never saved.
         try
         {
-            WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot, context.CreateOutput);
+            WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot, recordedNames, context.CreateOutput);
         }
         catch (OutputException ex)
         {
@@ -182,12 +190,15 @@ internal sealed class FitCommand(CommandContext context)
             return ExitCode.Input;
         }
         context.Out.WriteLine(new FitReport(natural, columnNames).Format());
-        context.Out.WriteLine($"Fitted {rows.Count:N0} labelled events ({rejected:N0} lines rejected) on {columns.Count:N0} features; model written to {outPath}.");
+        context.Out.WriteLine(references.Length == 0
+            ? "Collinearity: no categorical is one-hot in every row, so every level is fitted."
+            : $"Collinearity: one reference level per categorical is left out (treatment coding; its effect is in the intercept, the other levels are contrasts with it): {string.Join(", ", references)}.");
+        context.Out.WriteLine($"Fitted {rows.Count:N0} labelled events ({rejected:N0} lines rejected) on {slotOf.Length:N0} features; model written to {outPath}.");
         return ExitCode.Ok;
     }
 
     private static void WriteModel(string path, DriftlineOptions options, Featurizer featurizer, LogisticFitResult fit,
-        int[] slotOf, List<double[]> design, List<double> labels, int biasSlot, Func<string, Stream> create)
+        int[] slotOf, List<double[]> design, List<double> labels, int biasSlot, Dictionary<string, string> featureNames, Func<string, Stream> create)
     {
         var weights = new Dictionary<int, double> { [biasSlot] = fit.Intercept };
         var squares = new Dictionary<int, double> { [biasSlot] = 0 };
@@ -224,6 +235,7 @@ internal sealed class FitCommand(CommandContext context)
                     PriorPositives = (long)labels.Sum(),
                 },
             ],
+            FeatureNames = featureNames,
         };
         string? folder = Path.GetDirectoryName(Path.GetFullPath(path));
         if (folder is not null)

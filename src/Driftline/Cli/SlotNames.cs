@@ -89,6 +89,33 @@ internal sealed class SlotNames
         return text.ToString();
     }
 
+    /// <summary>
+    /// The one name behind <paramref name="slot"/> and its hash sign; false when the slot has
+    /// no recorded name or is shared by several.
+    /// </summary>
+    public bool TryName(int slot, out string name, out double sign)
+    {
+        if (_bySlot.TryGetValue(slot, out var names) && names.Count == 1)
+        {
+            (name, sign) = names[0];
+            return true;
+        }
+        name = "";
+        sign = 1;
+        return false;
+    }
+
+    /// <summary>
+    /// The categorical a plain <c>name=value</c> feature belongs to (<c>name</c>); null for a
+    /// number, a boolean or an interaction.
+    /// </summary>
+    public static string? CategoricalOf(string featureName)
+    {
+        ArgumentNullException.ThrowIfNull(featureName);
+        int eq = featureName.IndexOf('=', StringComparison.Ordinal);
+        return eq <= 0 || featureName.Contains(" × ", StringComparison.Ordinal) ? null : featureName[..eq];
+    }
+
     private void Add(int slot, string name, double sign)
     {
         if (!_bySlot.TryGetValue(slot, out var list))

@@ -64,14 +64,51 @@ public sealed class FitCommandTests
     }
 
     [Fact]
-    public async Task Fit_OneHotGroupWithoutRidge_ExplainsTheCollinearity()
+    public async Task Fit_OneHotGroupWithDefaults_LeavesOutTheMostFrequentLevelAndSaysSo()
     {
         using var dir = new TempFolder();
-        var lines = Enumerable.Range(0, 200).Select(i => $"{{\"id\":\"{i}\",\"features\":{{\"zone\":\"{(i % 2 == 0 ? "a" : "b")}\",\"x\":{i % 7}}},\"label\":{(i % 3 == 0 ? 1 : 0)}}}");
+        // zone b in 100 rows, a in 67, c in 33: b is the most frequent and becomes the reference.
+        var lines = Enumerable.Range(0, 200).Select(i => $"{{\"id\":\"{i}\",\"features\":{{\"zone\":\"{(i % 2 == 0 ? "b" : i % 3 == 0 ? "c" : "a")}\",\"x\":{i % 7}}},\"label\":{(i % 5 < 2 ? 1 : 0)}}}");
         File.WriteAllLines(dir.File("in.jsonl"), lines);
         var run = await CliRun.RunAsync("fit", dir.File("in.jsonl"), "--out", dir.File("m.json"));
-        Assert.Equal(4, run.ExitCode);
-        Assert.Contains("collinear", run.Error, StringComparison.Ordinal);
+        Assert.True(run.ExitCode == 0, run.Error);
+        Assert.Contains("one reference level per categorical is left out", run.Out, StringComparison.Ordinal);
+        Assert.Contains(": zone=b.", run.Out, StringComparison.Ordinal);
+        Assert.DoesNotContain("\nzone=b ", run.Out, StringComparison.Ordinal);
+        Assert.Contains("\nzone=a ", run.Out, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task Fit_DemoStreamWithDefaults_FitsAndNamesTheReferenceLevels()
+    {
+        // issue 14 item 8: the demo's own 20,000 lines failed with "feature 39 is constant or a
+        // linear combination" because its one-hot categoricals sum to the intercept.
+        using var dir = new TempFolder();
+        Assert.Equal(0, (await CliRun.RunAsync("demo", "--out", dir.File("demo.jsonl"), "--orders", "20000")).ExitCode);
+        var run = await CliRun.RunAsync("fit", dir.File("demo.jsonl"), "--out", dir.File("m.json"));
+        Assert.True(run.ExitCode == 0, run.Error);
+        var reference = run.Out.Split('\n').Single(l => l.StartsWith("Collinearity:", StringComparison.Ordinal));
+        foreach (var categorical in new[] { "zone=", "courier=", "hour=" })
+        {
+            Assert.Contains(categorical, reference, StringComparison.Ordinal);
+        }
+        Assert.DoesNotContain("tags=", reference, StringComparison.Ordinal);
+        Assert.Contains("converged                    yes", run.Out, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task Fit_DuplicatedNumericFeature_OneLineNamingItAndExitSix()
+    {
+        using var dir = new TempFolder();
+        var lines = Enumerable.Range(0, 200).Select(i => $"{{\"id\":\"{i}\",\"features\":{{\"distance_km\":{i % 7},\"distance_m\":{(i % 7) * 1000},\"items\":{i % 3}}},\"label\":{(i % 5 < 2 ? 1 : 0)}}}");
+        File.WriteAllLines(dir.File("in.jsonl"), lines);
+        var run = await CliRun.RunAsync("fit", dir.File("in.jsonl"), "--out", dir.File("m.json"));
+        Assert.Equal(6, run.ExitCode);
+        Assert.Single(run.Error.Split('\n', StringSplitOptions.RemoveEmptyEntries));
+        Assert.Contains("'distance_m' is constant or a linear combination", run.Error, StringComparison.Ordinal);
+        Assert.DoesNotContain("feature 1", run.Error, StringComparison.Ordinal);
+        Assert.Equal("", run.Out);
+        Assert.False(File.Exists(dir.File("m.json")));
         Assert.Equal(0, (await CliRun.RunAsync("fit", dir.File("in.jsonl"), "--out", dir.File("m.json"), "--ridge", "1")).ExitCode);
     }
 }
