@@ -98,6 +98,10 @@ internal sealed class EngineSnapshot
     /// </summary>
     public Dictionary<string, string>? FeatureNames { get; set; }
 
+    /// <summary>How <c>fit</c> made this model; null for a model that learned online (and in older files).</summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public BatchFitSnapshot? BatchFit { get; set; }
+
     /// <summary>Value of <see cref="Format"/>.</summary>
     public const string FormatName = "driftline-state";
 

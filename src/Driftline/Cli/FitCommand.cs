@@ -182,7 +182,17 @@ internal sealed class FitCommand(CommandContext context)
         // read as a result that was never saved.
         try
         {
-            WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot, recordedNames, context.CreateOutput);
+            var made = new BatchFitSnapshot
+            {
+                Method = "maximum likelihood, Newton/IRLS",
+                Rows = rows.Count,
+                Ridge = ridge,
+                Iterations = fit.Iterations,
+                LogLikelihood = fit.LogLikelihood,
+                NullLogLikelihood = fit.NullLogLikelihood,
+                ReferenceLevels = [.. references],
+            };
+            WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot, recordedNames, made, context.CreateOutput);
         }
         catch (OutputException ex)
         {
@@ -198,7 +208,7 @@ internal sealed class FitCommand(CommandContext context)
     }
 
     private static void WriteModel(string path, DriftlineOptions options, Featurizer featurizer, LogisticFitResult fit,
-        int[] slotOf, List<double[]> design, List<double> labels, int biasSlot, Dictionary<string, string> featureNames, Func<string, Stream> create)
+        int[] slotOf, List<double[]> design, List<double> labels, int biasSlot, Dictionary<string, string> featureNames, BatchFitSnapshot made, Func<string, Stream> create)
     {
         var weights = new Dictionary<int, double> { [biasSlot] = fit.Intercept };
         var squares = new Dictionary<int, double> { [biasSlot] = 0 };
@@ -236,6 +246,7 @@ internal sealed class FitCommand(CommandContext context)
                 },
             ],
             FeatureNames = featureNames,
+            BatchFit = made,
         };
         string? folder = Path.GetDirectoryName(Path.GetFullPath(path));
         if (folder is not null)

@@ -1,5 +1,6 @@
 using System.CommandLine;
 using System.Globalization;
+using Driftline.Core.Features;
 using Driftline.Core.Learning;
 using Driftline.Core.Options;
 using Driftline.Core.Snapshots;
@@ -43,8 +44,15 @@ internal sealed class InspectCommand(CommandContext context)
         var options = snapshot.Options;
         var c = snapshot.Counters;
         o.WriteLine($"Model {path}");
-        o.WriteLine($"  {snapshot.Models.Count:N0} key(s); {c.Events:N0} events scored, {c.Labels:N0} labels graded ({c.InlineLabels:N0} with their event, {c.LateLabels:N0} late), {snapshot.ExpiredLabels:N0} expired, {snapshot.Pending.Count(p => !p.Labelled):N0} still waiting.");
-        o.WriteLine($"  alerts raised {c.AlertsRaised:N0}, cleared {c.AlertsCleared:N0}; open now: {Open(snapshot)}.");
+        if (snapshot.BatchFit is { } fit)
+        {
+            DescribeFit(fit, o);
+        }
+        else
+        {
+            o.WriteLine($"  {snapshot.Models.Count:N0} key(s); {c.Events:N0} events scored, {c.Labels:N0} labels graded ({c.InlineLabels:N0} with their event, {c.LateLabels:N0} late), {snapshot.ExpiredLabels:N0} expired, {snapshot.Pending.Count(p => !p.Labelled):N0} still waiting.");
+            o.WriteLine($"  alerts raised {c.AlertsRaised:N0}, cleared {c.AlertsCleared:N0}; open now: {Open(snapshot)}.");
+        }
         o.WriteLine();
 
         var keys = new TextTable("key", ">version", ">events scored", ">labels seen", ">positive rate", ">weights set");
@@ -58,14 +66,18 @@ internal sealed class InspectCommand(CommandContext context)
         keys.Write(o);
 
         var names = SlotNames.Build(snapshot.FeatureNames, options.Model);
+        int biasSlot = FeatureHash.Slot(FeatureHash.Bias, (1 << options.Model.HashBits) - 1);
         foreach (var (m, output) in snapshot.Models.SelectMany(m => Enumerable.Range(0, options.Model.IsMulticlass ? options.Model.ClassCount : 1).Select(k => (m, k))))
         {
             o.WriteLine();
             string which = options.Model.Classes is { } classes ? $"key '{m.Key}', class '{classes[output]}'" : $"key '{m.Key}'";
-            o.WriteLine($"Weights that matter most for {which} (numbers are per standard deviation when scaled online):");
             var learner = OnlineLearner.Create(options.Model);
             learner.Import(m.Learner);
+            // The intercept is a baseline log-odds (or class margin), not a feature's weight: shown apart.
+            o.WriteLine($"{char.ToUpperInvariant(which[0])}{which[1..]}: intercept {Signed(learner.Weight(biasSlot, output))} (the margin when every feature is at its reference or average).");
+            o.WriteLine($"Weights that matter most for {which} (numbers are per standard deviation when scaled online):");
             var ranked = m.Learner.Slots
+                .Where(slot => slot != biasSlot)
                 .Select(slot => (Slot: slot, Weight: learner.Weight(slot, output)))
                 .Where(w => w.Weight != 0 && double.IsFinite(w.Weight))
                 .OrderByDescending(w => Math.Abs(w.Weight)).ThenBy(w => w.Slot)
@@ -90,6 +102,12 @@ internal sealed class InspectCommand(CommandContext context)
         }
 
         o.WriteLine();
+        if (snapshot.BatchFit is not null)
+        {
+            // A batch fit has no learning rate or forgetting: only the features mean anything here.
+            DescribeFeatures(options.Model, o);
+            return ExitCode.Ok;
+        }
         o.WriteLine("Settings it was trained with:");
         var settings = new StringWriter(C);
         CheckCommand.Describe(options, settings);
@@ -98,6 +116,31 @@ internal sealed class InspectCommand(CommandContext context)
             o.WriteLine("  " + line.TrimEnd('\r'));
         }
         return ExitCode.Ok;
+    }
+
+    private static void DescribeFit(BatchFitSnapshot fit, TextWriter o)
+    {
+        double r2 = fit.NullLogLikelihood < 0 ? 1 - (fit.LogLikelihood / fit.NullLogLikelihood) : double.NaN;
+        o.WriteLine($"  fitted in one batch by {fit.Method} on {fit.Rows.ToString("N0", C)} labelled events ({fit.Iterations.ToString(C)} Newton steps); it has scored nothing yet.");
+        o.WriteLine($"  log-likelihood {fit.LogLikelihood.ToString("0.0000", C)}, null {fit.NullLogLikelihood.ToString("0.0000", C)}, pseudo R-squared (McFadden) {r2.ToString("0.0000", C)}; "
+            + (fit.Ridge > 0 ? $"ridge (L2) {fit.Ridge.ToString("G6", C)}." : "no penalty (plain maximum likelihood)."));
+        o.WriteLine(fit.ReferenceLevels.Count == 0
+            ? "  every categorical level has its own weight."
+            : $"  reference levels (left out; their effect is in the intercept): {string.Join(", ", fit.ReferenceLevels)}.");
+    }
+
+    private static void DescribeFeatures(ModelOptions m, TextWriter o)
+    {
+        o.WriteLine("Features it was fitted with (a replay or worker warm-started from it learns with its own configuration's learner settings):");
+        o.WriteLine($"  2^{m.HashBits} = {1 << m.HashBits:N0} hashed weights per key.");
+        o.WriteLine(m.Scaling == ScalingMode.Online
+            ? $"  numbers standardised by their mean and standard deviation over the fitted file, clipped at ±{m.StandardisedLimit} sd."
+            : "  numbers used as given.");
+        foreach (var (name, scale) in m.FixedScales)
+        {
+            o.WriteLine($"  {name} divided by {scale}.");
+        }
+        o.WriteLine(m.Interactions.Count == 0 ? "  no interactions." : $"  interactions: {string.Join(", ", m.Interactions)}.");
     }
 
     private static string Open(EngineSnapshot s)

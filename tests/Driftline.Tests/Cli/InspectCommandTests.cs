@@ -13,7 +13,8 @@ public sealed class InspectCommandTests(DemoReplay replay) : IClassFixture<DemoR
         Assert.True(code == 0, stderr);
         Assert.Contains("version", stdout, StringComparison.Ordinal);
         Assert.Contains("events scored", stdout, StringComparison.Ordinal);
-        Assert.Contains("(bias)", stdout, StringComparison.Ordinal);
+        Assert.Contains("intercept ", stdout, StringComparison.Ordinal);
+        Assert.DoesNotContain("(bias)", stdout, StringComparison.Ordinal);
         // Names survive hashing: the demo's categorical features show as name=value.
         Assert.Matches(@"(zone|courier|hour)=\S+\s+[+-]\d\.\d{4}", stdout);
         Assert.DoesNotContain("unnamed slot", stdout, StringComparison.Ordinal);
