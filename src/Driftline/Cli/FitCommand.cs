@@ -23,6 +23,9 @@ internal sealed class FitCommand(CommandContext context)
     /// <summary>Most distinct features a batch fit takes (the Hessian is dense).</summary>
     public const int MaxColumns = 2_000;
 
+    /// <summary>The folds' seed when <c>--seed</c> is not given: fixed, so reruns agree.</summary>
+    public const int DefaultSeed = 20261202;
+
     /// <summary>The command-line definition.</summary>
     public Command Build()
     {
@@ -30,14 +33,19 @@ internal sealed class FitCommand(CommandContext context)
         var output = new Option<string>("--out") { Description = "Model file to write", Required = true };
         var config = new Option<string?>("--config") { Description = "Configuration whose Model section sets hashing, scaling and interactions" };
         var ridge = new Option<double>("--ridge") { Description = "L2 penalty on the coefficients (not the intercept); 0 is plain maximum likelihood", DefaultValueFactory = _ => 0 };
-        var command = new Command("fit", "Fit a batch logistic model on a labelled file, to warm-start the online model") { file, output, config, ridge };
-        command.SetAction(result => Run(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), result.GetValue(ridge)));
+        var folds = new Option<int>("--folds") { Description = "Cross-validate with this many stratified folds (0: no cross-validation)", DefaultValueFactory = _ => 0 };
+        var repeats = new Option<int>("--repeats") { Description = "Repetitions of the cross-validation, each with new folds", DefaultValueFactory = _ => 1 };
+        var seed = new Option<int>("--seed") { Description = "Seed of the folds' shuffle; the same seed gives the same folds", DefaultValueFactory = _ => DefaultSeed };
+        var command = new Command("fit", "Fit a batch logistic model on a labelled file, to warm-start the online model") { file, output, config, ridge, folds, repeats, seed };
+        command.SetAction(result => Run(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), result.GetValue(ridge),
+            new CrossValidationRequest(result.GetValue(folds), result.GetValue(repeats), result.GetValue(seed), result.GetResult(repeats) is { Implicit: false })));
         return command;
     }
 
     /// <summary>Runs the fit; returns the exit code.</summary>
-    public int Run(string file, string outPath, string? configPath, double ridge)
+    public int Run(string file, string outPath, string? configPath, double ridge, CrossValidationRequest? crossValidation = null)
     {
+        var cv = crossValidation ?? new CrossValidationRequest(0, 1, DefaultSeed, false);
         var options = ConfigLoader.Load(configPath, context.Environment, out var errors);
         if (options is null)
         {
@@ -52,6 +60,16 @@ internal sealed class FitCommand(CommandContext context)
         if (!(ridge >= 0) || !double.IsFinite(ridge))
         {
             context.Error.WriteLine("driftline: --ridge must be 0 or a positive number");
+            return ExitCode.Usage;
+        }
+        if (cv.Folds != 0 && cv.Folds < 2)
+        {
+            context.Error.WriteLine("driftline: --folds must be 2 or more (or 0 for no cross-validation)");
+            return ExitCode.Usage;
+        }
+        if (cv.Repeats < 1 || (cv.RepeatsGiven && cv.Folds == 0))
+        {
+            context.Error.WriteLine(cv.Repeats < 1 ? "driftline: --repeats must be 1 or more" : "driftline: --repeats needs --folds K (2 or more)");
             return ExitCode.Usage;
         }
         if (Directory.Exists(outPath))
@@ -178,6 +196,25 @@ internal sealed class FitCommand(CommandContext context)
             return ExitCode.FitFailed;
         }
 
+        CrossValidationResult? validated = null;
+        if (cv.Folds > 0)
+        {
+            var y = labels.Select(l => (int)l).ToArray();
+            int rarer = Math.Min(y.Count(l => l == 1), y.Count(l => l == 0));
+            if (cv.Folds > rarer)
+            {
+                context.Error.WriteLine($"driftline: --folds {cv.Folds} is more than the {rarer:N0} events of the rarer label, so some folds would hold none; use at most {rarer:N0} folds");
+                return ExitCode.FitFailed;
+            }
+            var assignments = CrossValidation.Assignments(y, cv.Folds, cv.Repeats, cv.Seed);
+            validated = CrossValidation.Run(y, assignments, cv.Seed, LogisticFoldFit.Step(design, y, ridge, columnNames), out string? problem);
+            if (validated is null)
+            {
+                context.Error.WriteLine($"driftline: cross-validation failed at {problem}");
+                return ExitCode.FitFailed;
+            }
+        }
+
         // The model is on disk before any table is shown: a table above an error line would
         // read as a result that was never saved.
         try
@@ -203,6 +240,10 @@ internal sealed class FitCommand(CommandContext context)
         context.Out.WriteLine(references.Length == 0
             ? "Collinearity: no categorical is one-hot in every row, so every level is fitted."
             : $"Collinearity: one reference level per categorical is left out (treatment coding; its effect is in the intercept, the other levels are contrasts with it): {string.Join(", ", references)}.");
+        if (validated is not null)
+        {
+            context.Out.WriteLine(CrossValidationReport.Format(validated));
+        }
         context.Out.WriteLine($"Fitted {rows.Count:N0} labelled events ({rejected:N0} lines rejected) on {slotOf.Length:N0} features; model written to {outPath}.");
         return ExitCode.Ok;
     }
