@@ -5,5 +5,5 @@ namespace Driftline.Core.Fitting;
 /// <param name="Fold">The fold within it, from 0.</param>
 /// <param name="Count">Held-out rows.</param>
 /// <param name="Model">The model fitted on the other folds, scored on this one.</param>
-/// <param name="Prior">The class prior of the other folds, (n_1 + 1) / (N + 2), scored on this one.</param>
+/// <param name="Prior">The class prior of the other folds, (n_k + 1) / (N + K), scored on this one.</param>
 internal sealed record CrossValidationFold(int Repeat, int Fold, int Count, HeldOutScores Model, HeldOutScores Prior);

@@ -91,4 +91,45 @@ public sealed class CrossValidationReferenceTests
         Assert.Equal(expected.GetProperty("sd").GetDouble(), actual.Sd, tolerance);
         Assert.Equal(expected.GetProperty("sd_of_repeat_means").GetDouble(), actual.SdOfRepeatMeans, tolerance);
     }
+
+    [Fact]
+    public void Run_SklearnFoldsMulticlass_EveryFoldMatchesScikitLearnsMultinomialLogit()
+    {
+        // The multinomial logit of mnlogit_anes96.json, cross-validated on scikit-learn's folds
+        // (cross_validation.json "multiclass"): log-loss by sklearn log_loss, Brier summed over
+        // the classes, top-label ECE, accuracy of the most probable class.
+        JsonElement reference = Reference.GetProperty("multiclass");
+        ReferenceTable table = ReferenceData.ReadCsv("anes96.csv");
+        double[][] x = table.Rows.Select(r => new[]
+        {
+            Math.Log(r[table.IndexOf("popul")] + 0.1), r[table.IndexOf("selfLR")], r[table.IndexOf("age")],
+            r[table.IndexOf("educ")], r[table.IndexOf("income")],
+        }).ToArray();
+        int[] y = table.Column("PID").Select(v => (int)v).ToArray();
+        int[][] assignments = reference.GetProperty("assignment").EnumerateArray()
+            .Select(r => r.EnumerateArray().Select(f => f.GetInt32()).ToArray()).ToArray();
+        string[] names = ["logpopul", "selfLR", "age", "educ", "income"];
+
+        CrossValidationResult? result = CrossValidation.Run(y, assignments, reference.GetProperty("seed").GetInt32(),
+            MultinomialFoldFit.Step(x, y, 7, 0, names), out string? problem, classCount: 7);
+
+        Assert.True(result is not null, problem);
+        JsonElement[] expected = reference.GetProperty("per_fold").EnumerateArray().ToArray();
+        Assert.Equal(expected.Length, result.PerFold.Count);
+        for (int k = 0; k < expected.Length; k++)
+        {
+            CrossValidationFold fold = result.PerFold[k];
+            JsonElement e = expected[k];
+            Assert.Equal(e.GetProperty("n").GetInt32(), fold.Count);
+            Assert.Equal(e.GetProperty("log_loss").GetDouble(), fold.Model.LogLoss, 1e-6);
+            Assert.Equal(e.GetProperty("brier").GetDouble(), fold.Model.Brier, 1e-6);
+            Assert.Equal(e.GetProperty("ece").GetDouble(), fold.Model.Ece, 1e-6);
+            Assert.Equal(e.GetProperty("accuracy").GetDouble(), fold.Model.Accuracy, 1e-12);
+            JsonElement prior = e.GetProperty("prior");
+            Assert.Equal(prior.GetProperty("log_loss").GetDouble(), fold.Prior.LogLoss, 1e-12);
+            Assert.Equal(prior.GetProperty("brier").GetDouble(), fold.Prior.Brier, 1e-12);
+            Assert.Equal(prior.GetProperty("ece").GetDouble(), fold.Prior.Ece, 1e-12);
+            Assert.Equal(prior.GetProperty("accuracy").GetDouble(), fold.Prior.Accuracy, 1e-12);
+        }
+    }
 }
