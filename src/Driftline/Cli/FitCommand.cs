@@ -36,14 +36,16 @@ internal sealed class FitCommand(CommandContext context)
         var folds = new Option<int>("--folds") { Description = "Cross-validate with this many stratified folds (0: no cross-validation)", DefaultValueFactory = _ => 0 };
         var repeats = new Option<int>("--repeats") { Description = "Repetitions of the cross-validation, each with new folds", DefaultValueFactory = _ => 1 };
         var seed = new Option<int>("--seed") { Description = "Seed of the folds' shuffle; the same seed gives the same folds", DefaultValueFactory = _ => DefaultSeed };
-        var command = new Command("fit", "Fit a batch logistic model on a labelled file, to warm-start the online model") { file, output, config, ridge, folds, repeats, seed };
+        var summary = new Option<string?>("--summary") { Description = "Also write the fit's figures (and the cross-validation's) as JSON to this file" };
+        var command = new Command("fit", "Fit a batch logistic model on a labelled file, to warm-start the online model") { file, output, config, ridge, folds, repeats, seed, summary };
         command.SetAction(result => Run(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), result.GetValue(ridge),
-            new CrossValidationRequest(result.GetValue(folds), result.GetValue(repeats), result.GetValue(seed), result.GetResult(repeats) is { Implicit: false })));
+            new CrossValidationRequest(result.GetValue(folds), result.GetValue(repeats), result.GetValue(seed), result.GetResult(repeats) is { Implicit: false }),
+            result.GetValue(summary)));
         return command;
     }
 
     /// <summary>Runs the fit; returns the exit code.</summary>
-    public int Run(string file, string outPath, string? configPath, double ridge, CrossValidationRequest? crossValidation = null)
+    public int Run(string file, string outPath, string? configPath, double ridge, CrossValidationRequest? crossValidation = null, string? summaryPath = null)
     {
         var cv = crossValidation ?? new CrossValidationRequest(0, 1, DefaultSeed, false);
         var options = ConfigLoader.Load(configPath, context.Environment, out var errors);
@@ -71,6 +73,11 @@ internal sealed class FitCommand(CommandContext context)
         {
             context.Error.WriteLine(cv.Repeats < 1 ? "driftline: --repeats must be 1 or more" : "driftline: --repeats needs --folds K (2 or more)");
             return ExitCode.Usage;
+        }
+        if (summaryPath is not null && Directory.Exists(summaryPath))
+        {
+            context.Error.WriteLine(new OutputException(summaryPath, "it is a folder; --summary names the JSON file to write, such as fit-summary.json").Line);
+            return ExitCode.Input;
         }
         if (Directory.Exists(outPath))
         {
@@ -230,6 +237,13 @@ internal sealed class FitCommand(CommandContext context)
                 ReferenceLevels = [.. references],
             };
             WriteModel(outPath, options, featurizer, fit, slotOf, design, labels, biasSlot, recordedNames, made, context.CreateOutput);
+            if (summaryPath is not null)
+            {
+                var terms = new List<(string, double, double)> { ("intercept", natural.Intercept, natural.InterceptStandardError) };
+                terms.AddRange(columnNames.Select((n, j) => (n, natural.Coefficients[j], natural.StandardErrors[j])));
+                var figures = new FitSummary(fit.LogLikelihood, fit.NullLogLikelihood, rows.Count, ridge, [("1", terms)], references, validated);
+                WriteSummary(summaryPath, figures, context.CreateOutput);
+            }
         }
         catch (OutputException ex)
         {
@@ -295,6 +309,16 @@ internal sealed class FitCommand(CommandContext context)
             OutputFolder.Create(folder);
         }
         OutputFile.Write(path, file => SnapshotCodec.Write(snapshot, file), create);
+    }
+
+    private static void WriteSummary(string path, FitSummary summary, Func<string, Stream> create)
+    {
+        string? folder = Path.GetDirectoryName(Path.GetFullPath(path));
+        if (folder is not null)
+        {
+            OutputFolder.Create(folder);
+        }
+        OutputFile.Write(path, summary.Write, create);
     }
 
     // The file's lines, each null where it is over Input:MaxLineBytes (skipped, not held).

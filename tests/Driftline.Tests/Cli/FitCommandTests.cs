@@ -111,4 +111,24 @@ public sealed class FitCommandTests
         Assert.False(File.Exists(dir.File("m.json")));
         Assert.Equal(0, (await CliRun.RunAsync("fit", dir.File("in.jsonl"), "--out", dir.File("m.json"), "--ridge", "1")).ExitCode);
     }
+
+    [Fact]
+    public async Task Fit_Summary_WritesThePublishedFiguresAsJson()
+    {
+        using var dir = new TempFolder();
+        File.WriteAllText(dir.File("spector.jsonl"), SpectorJsonLines());
+        File.WriteAllText(dir.File("raw.json"), """{"Model":{"Scaling":"None"}}""");
+        var run = await CliRun.RunAsync("fit", dir.File("spector.jsonl"), "--out", dir.File("model.json"), "--config", dir.File("raw.json"), "--summary", dir.File("fit.json"));
+        Assert.True(run.ExitCode == 0, run.Error);
+
+        var summary = JsonDocument.Parse(File.ReadAllText(dir.File("fit.json"))).RootElement;
+        // Greene's published table and log-likelihood −12.8896 (Reference/README.md), 4 decimals.
+        Assert.Equal(-12.8896, summary.GetProperty("log_likelihood").GetDouble(), 4);
+        foreach (var (term, (estimate, stdError)) in Published)
+        {
+            Assert.Equal(estimate, summary.GetProperty("coefficients").GetProperty("1").GetProperty(term).GetDouble(), 4);
+            Assert.Equal(stdError, summary.GetProperty("standard_errors").GetProperty("1").GetProperty(term).GetDouble(), 4);
+        }
+        Assert.False(summary.TryGetProperty("cv", out _));
+    }
 }

@@ -50,6 +50,26 @@ public sealed class FitCrossValidationTests
     }
 
     [Fact]
+    public async Task Fit_FoldsWithSummary_CvObjectHoldsThePrintedFigures()
+    {
+        using var dir = new TempFolder();
+        var run = await Fit(dir, "--folds", "4", "--repeats", "2", "--summary", dir.File("fit.json"));
+        Assert.True(run.ExitCode == 0, run.Error);
+
+        var cv = System.Text.Json.JsonDocument.Parse(File.ReadAllText(dir.File("fit.json"))).RootElement.GetProperty("cv");
+        Assert.Equal(4, cv.GetProperty("folds").GetInt32());
+        Assert.Equal(2, cv.GetProperty("repeats").GetInt32());
+        Assert.Equal(20261202, cv.GetProperty("seed").GetInt32());
+        var printed = run.Out.Split('\n').Single(l => l.StartsWith("log-loss ", StringComparison.Ordinal)).Split(' ', StringSplitOptions.RemoveEmptyEntries);
+        Assert.Equal(Parse(printed[1]), cv.GetProperty("log_loss").GetProperty("mean").GetDouble(), 5e-5);
+        Assert.Equal(Parse(printed[5]), cv.GetProperty("prior_log_loss").GetProperty("mean").GetDouble(), 5e-5);
+        foreach (var name in new[] { "accuracy", "brier", "ece", "prior_accuracy" })
+        {
+            Assert.True(cv.GetProperty(name).GetProperty("sd_of_repeat_means").GetDouble() >= 0, name);
+        }
+    }
+
+    [Fact]
     public async Task Fit_SameSeedTwice_SameFigures_OtherSeedOtherFolds()
     {
         using var dir = new TempFolder();
