@@ -25,7 +25,7 @@ internal static class ExitCode
     public const int Kafka = 5;
 
     /// <summary>
-    /// <c>fit</c> read its input but the data cannot identify the model: features still
+    /// <c>fit</c> read its input but the data cannot identify the model: no labelled events, features still
     /// collinear after the reference levels are left out, separated labels, one label only,
     /// too many features for a dense fit, or no convergence; one line names the cause and the fix.
     /// </summary>

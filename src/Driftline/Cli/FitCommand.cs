@@ -157,8 +157,9 @@ internal sealed class FitCommand(CommandContext context)
         }
         if (rows.Count == 0)
         {
-            context.Error.WriteLine($"driftline: '{file}' has no labelled events to fit");
-            return ExitCode.Input;
+            // The file was read; it holds nothing a fit can use, which is the data's limit, not an unreadable input.
+            context.Error.WriteLine($"driftline: '{file}' has no labelled events to fit; give fit events with a label, or label-only records for their ids");
+            return ExitCode.FitFailed;
         }
         if (columns.Count > MaxColumns)
         {

@@ -131,4 +131,18 @@ public sealed class FitCommandTests
         }
         Assert.False(summary.TryGetProperty("cv", out _));
     }
+
+    [Fact]
+    public async Task Fit_NoLabelledEvents_OneLineAndExitSix()
+    {
+        using var dir = new TempFolder();
+        File.WriteAllLines(dir.File("in.jsonl"), Enumerable.Range(0, 20).Select(i => $"{{\"id\":\"{i}\",\"features\":{{\"x\":{i}}}}}"));
+
+        var run = await CliRun.RunAsync("fit", dir.File("in.jsonl"), "--out", dir.File("m.json"));
+
+        Assert.Equal(6, run.ExitCode);
+        Assert.Single(run.Error.Split('\n', StringSplitOptions.RemoveEmptyEntries));
+        Assert.Contains("has no labelled events to fit", run.Error, StringComparison.Ordinal);
+        Assert.False(File.Exists(dir.File("m.json")));
+    }
 }
