@@ -99,7 +99,8 @@ internal sealed class FitReport
     private static string[] TermRow(string name, double estimate, double standardError, double z) =>
         [name, Number(estimate), Number(standardError), Number(z), PValue(TwoSidedPValue(z))];
 
-    private static string Number(double value)
+    /// <summary>A number as the table shows it: 4 decimals, exponent form below 0.001 or from 1e9, "n/a" for NaN.</summary>
+    public static string Number(double value)
     {
         if (double.IsNaN(value))
         {
@@ -112,6 +113,7 @@ internal sealed class FitReport
             : value.ToString("F4", CultureInfo.InvariantCulture);
     }
 
-    private static string PValue(double p) =>
+    /// <summary>A p-value as the table shows it: 4 decimals, "&lt;0.0001" below that, "n/a" for NaN.</summary>
+    public static string PValue(double p) =>
         double.IsNaN(p) ? "n/a" : p < 1e-4 ? "<0.0001" : p.ToString("F4", CultureInfo.InvariantCulture);
 }

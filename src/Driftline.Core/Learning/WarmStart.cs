@@ -44,4 +44,45 @@ internal static class WarmStart
         }
         return state;
     }
+
+    /// <summary>
+    /// The learner state of a softmax model for <paramref name="weights"/> (slot → one weight per
+    /// class) with <paramref name="squaredGradients"/> (slot → per class Σ(p_k − [y = k])²x²),
+    /// each class's coordinate given confidence as <see cref="FromWeights"/> gives a binary one's.
+    /// </summary>
+    public static LearnerState FromClassWeights(ModelOptions options, IReadOnlyDictionary<int, double[]> weights,
+        IReadOnlyDictionary<int, double[]> squaredGradients, long rows)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        ArgumentNullException.ThrowIfNull(weights);
+        ArgumentNullException.ThrowIfNull(squaredGradients);
+        int k = options.ClassCount;
+        double keep = options.HalfLifeLabels > 0 && rows > 0 ? Math.Min(1, options.HalfLifeLabels / Math.Log(2) / rows) : 1;
+        var slots = weights.Keys.Order().ToArray();
+        var state = new LearnerState { Slots = slots, Updates = rows };
+        state.First = new double[slots.Length * k];
+        state.Second = new double[slots.Length * k];
+        state.Third = options.Learner == LearnerKind.Ftrl ? new double[slots.Length * k] : [];
+        for (int i = 0; i < slots.Length; i++)
+        {
+            double[] w = weights[slots[i]];
+            double[]? g2 = squaredGradients.GetValueOrDefault(slots[i]);
+            for (int c = 0; c < k; c++)
+            {
+                int at = (i * k) + c;
+                double n = (g2?[c] ?? 0) * keep;
+                state.Second[at] = n;
+                if (options.Learner == LearnerKind.AdaGrad)
+                {
+                    state.First[at] = w[c];
+                    continue;
+                }
+                double sigma = Math.Sqrt(n) / options.LearningRate;
+                state.Third[at] = sigma;
+                double denominator = options.RateSmoothing / options.LearningRate + sigma + options.L2;
+                state.First[at] = w[c] == 0 ? 0 : -w[c] * denominator - Math.Sign(w[c]) * options.L1;
+            }
+        }
+        return state;
+    }
 }

@@ -18,7 +18,7 @@ namespace Driftline.Cli;
 /// maximum-likelihood logistic fit (Newton/IRLS) on a labelled file, with the online model's
 /// own features, saved as a model that <c>replay --warm-start</c> continues from.
 /// </summary>
-internal sealed class FitCommand(CommandContext context)
+internal sealed partial class FitCommand(CommandContext context)
 {
     /// <summary>Most distinct features a batch fit takes (the Hessian is dense).</summary>
     public const int MaxColumns = 2_000;
@@ -52,12 +52,6 @@ internal sealed class FitCommand(CommandContext context)
         if (options is null)
         {
             return ConfigErrors.Report(context.Error, configPath, errors);
-        }
-        if (options.Model.IsMulticlass)
-        {
-            // The batch fit is binary so far; a multiclass model learns online (replay, run).
-            return ConfigErrors.Report(context.Error, configPath,
-                [new("Model:Classes", "a multiclass model is not fitted in batch yet", "Give fit a configuration without Classes, or warm-start from the model.json a replay writes")]);
         }
         if (!(ridge >= 0) || !double.IsFinite(ridge))
         {
@@ -93,7 +87,7 @@ internal sealed class FitCommand(CommandContext context)
         // The parser records the text behind every hash it makes, so the columns, the messages
         // and the saved model all name features (interactions included) rather than slots.
         var recorded = new FeatureNames();
-        var parser = new EventParser { MaxTextBytes = options.Input.MaxTextBytes, Names = recorded };
+        var parser = new EventParser { MaxTextBytes = options.Input.MaxTextBytes, Names = recorded, Classes = options.Model.Classes };
         var record = new ParsedRecord();
         var featurizer = new Featurizer(options.Model);
         var x = new SparseVector();
@@ -183,14 +177,30 @@ internal sealed class FitCommand(CommandContext context)
         // One-hot categoricals sum to the intercept's column: leave one level of each out.
         var groups = allSlots.Select(s => slotNames.TryName(s, out string n, out _) ? SlotNames.CategoricalOf(n) : null).ToArray();
         var dropped = ReferenceLevels.Choose(full, groups).ToHashSet();
+        var references = dropped.Order().Select(c => slotNames.Describe(allSlots[c], 1, out _)).ToArray();
+        // An interaction with a one-hot categorical sums over its levels to the other feature, so
+        // the cells of each reference level go too (treatment coding of interactions).
+        var referenceSet = references.ToHashSet(StringComparer.Ordinal);
+        for (int c = 0; c < allSlots.Length; c++)
+        {
+            if (slotNames.TryName(allSlots[c], out string n, out _) && n.Contains(" × ", StringComparison.Ordinal)
+                && n.Split(" × ").Any(referenceSet.Contains))
+            {
+                dropped.Add(c);
+            }
+        }
         var keep = Enumerable.Range(0, allSlots.Length).Where(c => !dropped.Contains(c)).ToArray();
         var slotOf = keep.Select(c => allSlots[c]).ToArray();
         var design = dropped.Count == 0 ? full : full.Select(r => keep.Select(c => r[c]).ToArray()).ToList();
-        var references = dropped.Order().Select(c => slotNames.Describe(allSlots[c], 1, out _)).ToArray();
 
         var columnNames = slotOf.Select(s => slotNames.Describe(s, 1, out _)).ToArray();
         // Report coefficients in the features' own direction: hashed columns carry a sign.
         var signs = slotOf.Select(s => slotNames.TryName(s, out _, out double sign) ? sign : 1.0).ToArray();
+        if (options.Model.IsMulticlass)
+        {
+            var fitted = new FittedDesign(design, labels, slotOf, columnNames, signs, references, biasSlot, recordedNames, rejected);
+            return FitClasses(options, featurizer, fitted, outPath, summaryPath, ridge, cv);
+        }
         var fit = LogisticNewtonFit.Fit(design, labels, ridge, featureNames: columnNames);
         var natural = fit with
         {
@@ -253,8 +263,8 @@ internal sealed class FitCommand(CommandContext context)
         }
         context.Out.WriteLine(new FitReport(natural, columnNames).Format());
         context.Out.WriteLine(references.Length == 0
-            ? "Collinearity: no categorical is one-hot in every row, so every level is fitted."
-            : $"Collinearity: one reference level per categorical is left out (treatment coding; its effect is in the intercept, the other levels are contrasts with it): {string.Join(", ", references)}.");
+            ? CollinearityNone
+            : CollinearityLine(references));
         if (validated is not null)
         {
             context.Out.WriteLine(CrossValidationReport.Format(validated));
@@ -311,6 +321,12 @@ internal sealed class FitCommand(CommandContext context)
         }
         OutputFile.Write(path, file => SnapshotCodec.Write(snapshot, file), create);
     }
+
+    private const string CollinearityNone = "Collinearity: no categorical is one-hot in every row, so every level is fitted.";
+
+    private static string CollinearityLine(IReadOnlyList<string> references) =>
+        "Collinearity: one reference level per categorical is left out (treatment coding; its effect is in the intercept, " +
+        $"the other levels are contrasts with it, and its interaction cells go too): {string.Join(", ", references)}.";
 
     private static void WriteSummary(string path, FitSummary summary, Func<string, Stream> create)
     {

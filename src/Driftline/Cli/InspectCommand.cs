@@ -85,7 +85,9 @@ internal sealed class InspectCommand(CommandContext context)
                 .ToList();
             if (ranked.Count == 0)
             {
-                o.WriteLine("  none: the model has not learned yet.");
+                o.WriteLine(snapshot.BatchFit is not null && output == 0 && options.Model.IsMulticlass
+                    ? "  none: the base class of the fit, whose weights are 0; the other classes' weights are log-odds against it."
+                    : "  none: the model has not learned yet.");
                 continue;
             }
             var table = new TextTable("feature", ">weight", ">slot");

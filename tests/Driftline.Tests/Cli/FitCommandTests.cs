@@ -97,6 +97,25 @@ public sealed class FitCommandTests
     }
 
     [Fact]
+    public async Task Fit_InteractionWithAOneHotCategorical_LeavesOutTheReferenceCellToo()
+    {
+        // Summed over zone's levels, zone=z × raining is raining itself: collinear unless the
+        // reference zone's cell goes with the reference zone.
+        using var dir = new TempFolder();
+        var lines = Enumerable.Range(0, 600).Select(i => $"{{\"id\":\"{i}\",\"features\":{{\"zone\":\"{(i % 3 == 0 ? "harbour" : i % 3 == 1 ? "market" : "old-town")}\",\"raining\":{(i % 4 < 2 ? "true" : "false")},\"x\":{i % 7}}},\"label\":{((i * 7) % 11 < 4 ? 1 : 0)}}}");
+        File.WriteAllLines(dir.File("in.jsonl"), lines);
+        File.WriteAllText(dir.File("c.json"), """{"Model":{"Interactions":["zone*raining"]}}""");
+
+        var run = await CliRun.RunAsync("fit", dir.File("in.jsonl"), "--out", dir.File("m.json"), "--config", dir.File("c.json"));
+
+        Assert.True(run.ExitCode == 0, run.Error);
+        string reference = run.Out.Split('\n').Single(l => l.StartsWith("Collinearity:", StringComparison.Ordinal)).Split(": ")[^1].TrimEnd('.');
+        Assert.StartsWith("zone=", reference, StringComparison.Ordinal);
+        Assert.DoesNotContain($"\n{reference} × raining ", run.Out, StringComparison.Ordinal);
+        Assert.Equal(2, run.Out.Split('\n').Count(l => l.Contains(" × raining ", StringComparison.Ordinal)));
+    }
+
+    [Fact]
     public async Task Fit_DuplicatedNumericFeature_OneLineNamingItAndExitSix()
     {
         using var dir = new TempFolder();
