@@ -33,10 +33,10 @@ internal sealed partial class FitCommand(CommandContext context)
         var output = new Option<string>("--out") { Description = "Model file to write", Required = true };
         var config = new Option<string?>("--config") { Description = "Configuration whose Model section sets hashing, scaling and interactions" };
         var ridge = new Option<double>("--ridge") { Description = "L2 penalty on the coefficients (not the intercept); 0 is plain maximum likelihood", DefaultValueFactory = _ => 0 };
-        var folds = new Option<int>("--folds") { Description = "Cross-validate with this many stratified folds (0: no cross-validation)", DefaultValueFactory = _ => 0 };
-        var repeats = new Option<int>("--repeats") { Description = "Repetitions of the cross-validation, each with new folds", DefaultValueFactory = _ => 1 };
+        var folds = new Option<int>("--folds") { HelpName = "K", Description = "Cross-validate with this many stratified folds (0: no cross-validation)", DefaultValueFactory = _ => 0 };
+        var repeats = new Option<int>("--repeats") { HelpName = "R", Description = "Repetitions of the cross-validation, each with new folds", DefaultValueFactory = _ => 1 };
         var seed = new Option<int>("--seed") { Description = "Seed of the folds' shuffle; the same seed gives the same folds", DefaultValueFactory = _ => DefaultSeed };
-        var summary = new Option<string?>("--summary") { Description = "Also write the fit's figures (and the cross-validation's) as JSON to this file" };
+        var summary = new Option<string?>("--summary") { HelpName = "FILE", Description = "Also write the fit's figures (and the cross-validation's) as JSON to this file" };
         var command = new Command("fit", "Fit a batch logistic model on a labelled file, to warm-start the online model") { file, output, config, ridge, folds, repeats, seed, summary };
         command.SetAction(result => Run(result.GetValue(file)!, result.GetValue(output)!, result.GetValue(config), result.GetValue(ridge),
             new CrossValidationRequest(result.GetValue(folds), result.GetValue(repeats), result.GetValue(seed), result.GetResult(repeats) is { Implicit: false }),
