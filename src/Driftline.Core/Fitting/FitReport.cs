@@ -52,13 +52,7 @@ internal sealed class FitReport
     /// NaN (no estimate, or a singular Hessian) prints as "n/a".</returns>
     public string Format()
     {
-        var rows = new List<string[]> { new[] { "term", "estimate", "std error", "z", "p-value" } };
-        rows.Add(TermRow(InterceptName, _result.Intercept, _result.InterceptStandardError, _result.InterceptZ));
-        for (int j = 0; j < _result.Coefficients.Count; j++)
-        {
-            rows.Add(TermRow(_names[j], _result.Coefficients[j], _result.StandardErrors[j], _result.ZValues[j]));
-        }
-
+        var rows = TermRows();
         int[] widths = Enumerable.Range(0, rows[0].Length).Select(c => rows.Max(r => r[c].Length)).ToArray();
         var text = new StringBuilder();
         foreach (string[] row in rows)
@@ -74,6 +68,31 @@ internal sealed class FitReport
         }
 
         text.Append('\n');
+        var summary = SummaryLines();
+        int labelWidth = summary.Max(s => s.Label.Length);
+        foreach ((string label, string value) in summary)
+        {
+            text.Append(label.PadRight(labelWidth)).Append("  ").Append(value).Append('\n');
+        }
+
+        return text.ToString();
+    }
+
+    /// <summary>The table's cells: a header row, then one row per term (intercept first), formatted as in <see cref="Format"/>.</summary>
+    public IReadOnlyList<string[]> TermRows()
+    {
+        var rows = new List<string[]> { new[] { "term", "estimate", "std error", "z", "p-value" } };
+        rows.Add(TermRow(InterceptName, _result.Intercept, _result.InterceptStandardError, _result.InterceptZ));
+        for (int j = 0; j < _result.Coefficients.Count; j++)
+        {
+            rows.Add(TermRow(_names[j], _result.Coefficients[j], _result.StandardErrors[j], _result.ZValues[j]));
+        }
+        return rows;
+    }
+
+    /// <summary>The lines under the table: log-likelihoods, pseudo-R², ridge when used, Newton steps, convergence.</summary>
+    public IReadOnlyList<(string Label, string Value)> SummaryLines()
+    {
         var summary = new List<(string Label, string Value)>
         {
             ("log-likelihood", Number(_result.LogLikelihood)),
@@ -87,13 +106,7 @@ internal sealed class FitReport
 
         summary.Add(("Newton steps", _result.Iterations.ToString(CultureInfo.InvariantCulture)));
         summary.Add(("converged", _result.Converged ? "yes" : "no: " + _result.Problem));
-        int labelWidth = summary.Max(s => s.Label.Length);
-        foreach ((string label, string value) in summary)
-        {
-            text.Append(label.PadRight(labelWidth)).Append("  ").Append(value).Append('\n');
-        }
-
-        return text.ToString();
+        return summary;
     }
 
     private static string[] TermRow(string name, double estimate, double standardError, double z) =>

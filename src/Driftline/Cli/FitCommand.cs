@@ -261,7 +261,7 @@ internal sealed partial class FitCommand(CommandContext context)
             context.Error.WriteLine(ex.Line);
             return ExitCode.Input;
         }
-        context.Out.WriteLine(new FitReport(natural, columnNames).Format());
+        WriteTable(context.Out, new FitReport(natural, columnNames));
         context.Out.WriteLine(references.Length == 0
             ? CollinearityNone
             : CollinearityLine(references));
@@ -361,5 +361,25 @@ internal sealed partial class FitCommand(CommandContext context)
                 return lines;
             }
         }
+    }
+
+    // The coefficient table through the shared text table (Spectre.Console), then its summary lines.
+    private static void WriteTable(TextWriter o, FitReport report)
+    {
+        var rows = report.TermRows();
+        var table = new TextTable([rows[0][0], .. rows[0].Skip(1).Select(h => ">" + h)]);
+        foreach (var row in rows.Skip(1))
+        {
+            table.Add(row);
+        }
+        table.Write(o);
+        o.WriteLine();
+        var summary = report.SummaryLines();
+        int width = summary.Max(s => s.Label.Length);
+        foreach (var (label, value) in summary)
+        {
+            o.WriteLine(label.PadRight(width) + "  " + value);
+        }
+        o.WriteLine();
     }
 }

@@ -1,12 +1,19 @@
+using Spectre.Console;
+using Spectre.Console.Rendering;
+
 namespace Driftline.Output;
 
 /// <summary>
-/// A plain text table for the terminal: columns padded to their widest cell and separated by
-/// two spaces, numbers right-aligned, no box drawing, so it reads in any terminal, pastes into
-/// an issue and stays easy to cut with <c>awk</c>.
+/// A plain text table for the terminal, rendered by Spectre.Console: columns sized to their
+/// widest cell, numbers right-aligned, a rule under the header and no side borders, without
+/// colour, so it reads in any terminal, pastes into an issue and stays easy to cut
+/// with <c>awk</c>.
 /// </summary>
 internal sealed class TextTable
 {
+    // Wide enough that no feature name wraps; a table is never wider than its cells need.
+    private const int Width = 240;
+
     private readonly string[] _header;
     private readonly bool[] _right;
     private readonly List<string[]> _rows = [];
@@ -38,15 +45,36 @@ internal sealed class TextTable
     public void Write(TextWriter output, string indent = "")
     {
         ArgumentNullException.ThrowIfNull(output);
-        var widths = _header.Select((h, i) => _rows.Select(r => r[i].Length).Append(h.Length).Max()).ToArray();
-        output.WriteLine(indent + Line(_header, widths));
-        output.WriteLine(indent + string.Join("  ", widths.Select(w => new string('-', w))));
+        var table = new Table().Border(TableBorder.Simple).HideRowSeparators();
+        table.ShowHeaders = true;
+        for (int i = 0; i < _header.Length; i++)
+        {
+            var column = new TableColumn(new Text(_header[i])) { Padding = new Padding(i == 0 ? 0 : 1, 0, 1, 0), NoWrap = true };
+            table.AddColumn(_right[i] ? column.RightAligned() : column.LeftAligned());
+        }
         foreach (var row in _rows)
         {
-            output.WriteLine(indent + Line(row, widths));
+            table.AddRow(row.Select(c => (IRenderable)new Text(c)).ToArray());
+        }
+        using var text = new StringWriter(System.Globalization.CultureInfo.InvariantCulture);
+        var console = AnsiConsole.Create(new AnsiConsoleSettings
+        {
+            Ansi = AnsiSupport.No,
+            ColorSystem = ColorSystemSupport.NoColors,
+            Interactive = InteractionSupport.No,
+            Out = new AnsiConsoleOutput(text),
+        });
+        console.Profile.Width = Width;
+        console.Write(table);
+        foreach (var line in text.ToString().Split('\n'))
+        {
+            string trimmed = line.TrimEnd('\r', ' ');
+            // Spectre's simple border frames the table with blank edge lines and a one-space
+            // left edge; the header rule is what is kept of it.
+            if (trimmed.Trim().Length > 0)
+            {
+                output.WriteLine(indent + (trimmed.StartsWith(' ') ? trimmed[1..] : trimmed));
+            }
         }
     }
-
-    private string Line(string[] cells, int[] widths) =>
-        string.Join("  ", cells.Select((c, i) => _right[i] ? c.PadLeft(widths[i]) : c.PadRight(widths[i]))).TrimEnd();
 }
