@@ -24,14 +24,8 @@ internal static class MultinomialFitReport
         var text = new StringBuilder();
         for (int k = 1; k < fit.ClassCount; k++)
         {
-            text.Append(CultureInfo.InvariantCulture, $"class '{classes[k]}' against '{classes[0]}' (the base class):\n");
-            var rows = new List<string[]> { new[] { "term", "estimate", "std error", "z", "p-value" } };
-            rows.Add(Row("intercept", fit.Intercepts[k], fit.InterceptStandardErrors[k]));
-            for (int j = 0; j < featureNames.Count; j++)
-            {
-                rows.Add(Row(featureNames[j], signs[j] * fit.Coefficients[k][j], fit.StandardErrors[k][j]));
-            }
-
+            text.Append(CultureInfo.InvariantCulture, $"{Heading(classes, k)}\n");
+            var rows = ClassRows(fit, featureNames, signs, k);
             int[] widths = Enumerable.Range(0, 5).Select(c => rows.Max(r => r[c].Length)).ToArray();
             foreach (string[] row in rows)
             {
@@ -47,7 +41,37 @@ internal static class MultinomialFitReport
             text.Append('\n');
         }
 
-        var summary = new List<(string, string)>
+        var summary = SummaryLines(fit);
+        int labelWidth = summary.Max(s => s.Label.Length);
+        foreach ((string label, string value) in summary)
+        {
+            text.Append(label.PadRight(labelWidth)).Append("  ").Append(value).Append('\n');
+        }
+
+        return text.ToString();
+    }
+
+    /// <summary>The line above class <paramref name="k"/>'s table.</summary>
+    public static string Heading(IReadOnlyList<string> classes, int k) => $"class '{classes[k]}' against '{classes[0]}' (the base class):";
+
+    /// <summary>Class <paramref name="k"/>'s table cells: a header row, then the intercept and one row per feature.</summary>
+    public static IReadOnlyList<string[]> ClassRows(MultinomialFitResult fit, IReadOnlyList<string> featureNames, IReadOnlyList<double> signs, int k)
+    {
+        ArgumentNullException.ThrowIfNull(fit);
+        var rows = new List<string[]> { new[] { "term", "estimate", "std error", "z", "p-value" } };
+        rows.Add(Row("intercept", fit.Intercepts[k], fit.InterceptStandardErrors[k]));
+        for (int j = 0; j < featureNames.Count; j++)
+        {
+            rows.Add(Row(featureNames[j], signs[j] * fit.Coefficients[k][j], fit.StandardErrors[k][j]));
+        }
+        return rows;
+    }
+
+    /// <summary>The lines under the tables: log-likelihoods, pseudo-R², ridge when used, Newton steps, convergence.</summary>
+    public static IReadOnlyList<(string Label, string Value)> SummaryLines(MultinomialFitResult fit)
+    {
+        ArgumentNullException.ThrowIfNull(fit);
+        var summary = new List<(string Label, string Value)>
         {
             ("log-likelihood", FitReport.Number(fit.LogLikelihood)),
             ("null log-likelihood", FitReport.Number(fit.NullLogLikelihood)),
@@ -60,13 +84,7 @@ internal static class MultinomialFitReport
 
         summary.Add(("Newton steps", fit.Iterations.ToString(CultureInfo.InvariantCulture)));
         summary.Add(("converged", fit.Converged ? "yes" : "no: " + fit.Problem));
-        int labelWidth = summary.Max(s => s.Item1.Length);
-        foreach ((string label, string value) in summary)
-        {
-            text.Append(label.PadRight(labelWidth)).Append("  ").Append(value).Append('\n');
-        }
-
-        return text.ToString();
+        return summary;
     }
 
     private static string[] Row(string name, double estimate, double standardError)

@@ -69,7 +69,25 @@ internal sealed partial class FitCommand
             return ExitCode.Input;
         }
 
-        context.Out.WriteLine(MultinomialFitReport.Format(fit, classes, d.Names, d.Signs));
+        for (int c = 1; c < fit.ClassCount; c++)
+        {
+            context.Out.WriteLine(MultinomialFitReport.Heading(classes, c));
+            var rows = MultinomialFitReport.ClassRows(fit, d.Names, d.Signs, c);
+            var table = new TextTable([rows[0][0], .. rows[0].Skip(1).Select(h => ">" + h)]);
+            foreach (var row in rows.Skip(1))
+            {
+                table.Add(row);
+            }
+            table.Write(context.Out, "  ");
+            context.Out.WriteLine();
+        }
+        var lines = MultinomialFitReport.SummaryLines(fit);
+        int width = lines.Max(l => l.Label.Length);
+        foreach (var (label, value) in lines)
+        {
+            context.Out.WriteLine(label.PadRight(width) + "  " + value);
+        }
+        context.Out.WriteLine();
         context.Out.WriteLine(d.References.Length == 0 ? CollinearityNone : CollinearityLine(d.References));
         if (validated is not null)
         {
