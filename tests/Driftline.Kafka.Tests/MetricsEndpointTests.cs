@@ -39,6 +39,13 @@ public sealed class MetricsEndpointTests
             Assert.Equal(HttpStatusCode.ServiceUnavailable, stopped.StatusCode);
         }
         worker.Stats.Running = true;
+        using (var connecting = await http.GetAsync(new Uri("/health", UriKind.Relative), token))
+        {
+            // The loop runs, but no broker has answered: not ready.
+            Assert.Equal(HttpStatusCode.ServiceUnavailable, connecting.StatusCode);
+        }
+        worker.Stats.BrokerReachable = true;
+        worker.Stats.GroupJoined = true;
         using var running = await http.GetAsync(new Uri("/health", UriKind.Relative), token);
         Assert.Equal(HttpStatusCode.OK, running.StatusCode);
         Assert.Contains("\"partitions\":3", await running.Content.ReadAsStringAsync(token), StringComparison.Ordinal);

@@ -30,8 +30,19 @@ internal static class ClientSettings
             config.Set(name, value);
         }
         OnlyTimestamps(config);
+        // The worker's broker contact (health, Worker:ExitAfterBrokerDown) comes from these statistics.
+        int statistics = int.TryParse(Get(options, "statistics.interval.ms"), System.Globalization.NumberStyles.None, System.Globalization.CultureInfo.InvariantCulture, out int given) && given > 0
+            ? Math.Min(given, Worker.BrokerContact.StatisticsIntervalMs)
+            : Worker.BrokerContact.StatisticsIntervalMs;
+        config.Set("statistics.interval.ms", statistics.ToString(System.Globalization.CultureInfo.InvariantCulture));
         return config;
     }
+
+    /// <summary>librdkafka's <c>reconnect.backoff.max.ms</c> as set (default 10 s): the longest wait between two attempts at a broker.</summary>
+    public static TimeSpan ReconnectBackoffMax(KafkaOptions options) =>
+        int.TryParse(Get(options, "reconnect.backoff.max.ms"), System.Globalization.NumberStyles.None, System.Globalization.CultureInfo.InvariantCulture, out int ms) && ms > 0
+            ? TimeSpan.FromMilliseconds(ms)
+            : TimeSpan.FromSeconds(10);
 
     /// <summary>
     /// A record's key, value, partition, offset and timestamp are all the worker reads (the

@@ -9,7 +9,9 @@ internal static class ClientLog
     /// <summary>Writes a librdkafka log line to the worker's log at the matching level.</summary>
     public static void Write(string client, LogMessage message)
     {
-        var level = message.Level switch
+        // A failed connection (facility FAIL) also reaches the error callback, which sums such
+        // failures up once per back-off interval (ConnectionErrorLog): here it is detail only.
+        var level = message.Facility == "FAIL" ? Serilog.Events.LogEventLevel.Debug : message.Level switch
         {
             SyslogLevel.Emergency or SyslogLevel.Alert or SyslogLevel.Critical or SyslogLevel.Error => Serilog.Events.LogEventLevel.Error,
             SyslogLevel.Warning => Serilog.Events.LogEventLevel.Warning,

@@ -55,9 +55,17 @@ internal sealed class KafkaWorker
     private readonly PartitionDrainer _drainer;
     private readonly RecordIntake _intake;
     private ExceptionDispatchInfo? _drainFault;
+    private readonly ConnectionErrorLog _connections;
 
     /// <summary>Also sees every alert of every partition (called from the partitions' threads; must be thread-safe and not block), or null.</summary>
     public Action<AlertTransition>? AlertObserver { get; init; }
+
+    /// <summary>
+    /// Stop with <see cref="KafkaWorkerException.BrokerDown"/> once no broker has been reachable for
+    /// this long (from the start, or since the last contact), for orchestrators that restart a
+    /// failed container; zero (the default) retries for ever, as librdkafka does.
+    /// </summary>
+    public TimeSpan ExitAfterBrokerDown { get; init; }
 
     /// <summary>Creates a worker (nothing connects until <c>Run</c>).</summary>
     public KafkaWorker(KafkaOptions options, DriftlineOptions core, WorkerStats? stats = null)
@@ -70,6 +78,7 @@ internal sealed class KafkaWorker
         _drainer = new PartitionDrainer(options);
         Stats = stats ?? new WorkerStats();
         _intake = new RecordIntake(options, _partitions, Stats);
+        _connections = new ConnectionErrorLog(ClientSettings.ReconnectBackoffMax(options));
     }
 
     /// <summary>Running counts.</summary>
@@ -111,12 +120,14 @@ internal sealed class KafkaWorker
             using var events = Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.EventsConsumer(_options))
                 .SetErrorHandler((_, e) => OnError("events consumer", e))
                 .SetLogHandler((_, m) => ClientLog.Write("events consumer", m))
+                .SetStatisticsHandler((_, json) => OnStatistics(json))
                 .SetPartitionsAssignedHandler((c, assigned) => OnAssigned(c, assigned))
                 .SetPartitionsRevokedHandler((c, revoked) => OnRevoked(c, revoked))
                 .SetPartitionsLostHandler((c, lost) => OnLost(c, lost)));
             try
             {
                 events.Subscribe(_options.EventsTopic);
+                Stats.LastBrokerContact = DateTime.UtcNow;
                 Stats.Running = true;
                 Loop(events, stop);
                 ThrowIfFatal();
@@ -171,6 +182,7 @@ internal sealed class KafkaWorker
         while (!stop.IsCancellationRequested)
         {
             ThrowIfFatal();
+            ThrowIfBrokerDown();
             // While the engines drain the last batch on the pool, this thread fetches the next one.
             int got = _intake.Pull(events, fromLabels: false, idle ? IdleWait : TimeSpan.Zero);
             if (_labels is not null)
@@ -181,13 +193,17 @@ internal sealed class KafkaWorker
             // From here to StartDrain the engines are idle: queues, positions and snapshots are the loop's.
             int done = FinishDrain(events);
             idle = got == 0 && done == 0;
-            if (_committer!.WriteCompleted)
+            // With no broker, a commit or a producer flush would hold the loop until its own time-out
+            // (47 s for a commit seen on the mock), and with it health and the broker-down limit.
+            // Both wait for the broker instead: deferring a checkpoint or a commit is always safe.
+            bool reachable = Stats.BrokerReachable;
+            if (reachable && _committer!.WriteCompleted)
             {
                 _committer.FinishWrite(events);
             }
             var now = DateTime.UtcNow;
-            if (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
-                || (now - _committer.LastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty)))
+            if (reachable && (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
+                || (now - _committer!.LastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty))))
             {
                 _committer!.CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList(), wait: false);
                 Stats.Lag = TopicChecks.Lag(events, _options.EventsTopic, _partitions.Values);
@@ -265,6 +281,10 @@ internal sealed class KafkaWorker
 
     private List<TopicPartitionOffset> OnAssigned(IConsumer<byte[]?, byte[]> events, List<TopicPartition> assigned)
     {
+        // An assignment (even an empty one) is an answer from the group coordinator.
+        Stats.GroupJoined = true;
+        Stats.BrokerReachable = true;
+        Stats.LastBrokerContact = DateTime.UtcNow;
         // Records consumed before this callback belong to the partitions owned before it.
         SettleDrain(events);
         ApplyStaged(events);
@@ -379,8 +399,45 @@ internal sealed class KafkaWorker
             Interlocked.CompareExchange(ref _fatal, $"fatal Kafka error in the {client}: {error.Reason} ({error.Code})", null);
             return;
         }
-        // librdkafka recovers from the rest by itself (brokers down, reconnects): tell the operator only.
+        // librdkafka recovers from the rest by itself (brokers down, reconnects): tell the operator only,
+        // and a broker that stays down once per back-off interval, not once per attempt.
+        if (ConnectionErrorLog.IsConnectionError(error))
+        {
+            if (error.Code == ErrorCode.Local_AllBrokersDown)
+            {
+                // Sooner than the next statistics, so the loop stops committing at once.
+                Stats.BrokerReachable = false;
+            }
+            _connections.Add(client, error);
+            return;
+        }
         Log.Warning("Kafka {Client}: {Reason} ({Code})", client, error.Reason, error.Code);
+    }
+
+    /// <summary>The events consumer's statistics (on the loop thread, inside Consume): broker contact for health and <see cref="ExitAfterBrokerDown"/>.</summary>
+    private void OnStatistics(string json)
+    {
+        bool wasReachable = Stats.BrokerReachable;
+        if (BrokerContact.Apply(json, Stats, DateTime.UtcNow) && !wasReachable)
+        {
+            _connections.Recovered();
+        }
+    }
+
+    private void ThrowIfBrokerDown()
+    {
+        if (ExitAfterBrokerDown <= TimeSpan.Zero || Stats.BrokerReachable)
+        {
+            return;
+        }
+        var down = DateTime.UtcNow - Stats.LastBrokerContact;
+        if (down >= ExitAfterBrokerDown)
+        {
+            throw new KafkaWorkerException($"no Kafka broker reachable at {_options.Bootstrap} for {down.TotalSeconds:0} s since the last contact (Worker:ExitAfterBrokerDown {ExitAfterBrokerDown:c}); stopping so the orchestrator can restart the worker")
+            {
+                BrokerDown = true,
+            };
+        }
     }
 
     private static void Close(IConsumer<byte[]?, byte[]> consumer, string client)

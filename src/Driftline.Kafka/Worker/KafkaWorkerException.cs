@@ -17,6 +17,9 @@ internal sealed class KafkaWorkerException : Exception
     {
     }
 
+    /// <summary>True when the worker stopped because no broker was reachable for <c>Worker:ExitAfterBrokerDown</c> (its own exit code).</summary>
+    public bool BrokerDown { get; init; }
+
     /// <summary>Creates the exception with a generic message.</summary>
     public KafkaWorkerException() : base("the Kafka worker stopped on a fatal error")
     {

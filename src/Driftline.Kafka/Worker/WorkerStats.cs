@@ -58,4 +58,16 @@ internal sealed class WorkerStats
 
     /// <summary>True once the loop runs; false again when it stops.</summary>
     public bool Running { get; set; }
+
+    /// <summary>True while the latest client statistics showed a broker connection up (see <see cref="BrokerContact"/>).</summary>
+    public bool BrokerReachable { get; set; }
+
+    /// <summary>True once the events consumer has joined its group (the first assignment, or the group steady in the statistics).</summary>
+    public bool GroupJoined { get; set; }
+
+    /// <summary>The last time (UTC) a broker was seen up; the worker's start before the first contact.</summary>
+    public DateTime LastBrokerContact { get; set; } = DateTime.UtcNow;
+
+    /// <summary>Ready for work: the loop runs, a broker is reachable and the group was joined (what <c>/health</c> answers 200 for).</summary>
+    public bool Healthy => Running && BrokerReachable && GroupJoined;
 }

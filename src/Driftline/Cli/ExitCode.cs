@@ -24,6 +24,9 @@ internal static class ExitCode
     /// <summary>The live worker stopped on a fatal Kafka error (nothing was committed past safe work).</summary>
     public const int Kafka = 5;
 
+    /// <summary>The live worker stopped because no broker was reachable for <c>Worker:ExitAfterBrokerDown</c>.</summary>
+    public const int BrokerDown = 7;
+
     /// <summary>
     /// <c>fit</c> read its input but the data cannot identify the model: no labelled events, features still
     /// collinear after the reference levels are left out, separated labels, one label only,

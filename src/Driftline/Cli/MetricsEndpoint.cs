@@ -9,7 +9,7 @@ namespace Driftline.Cli;
 
 /// <summary>
 /// The worker's HTTP endpoint: <c>/metrics</c> in the Prometheus text format (prometheus-net's
-/// HttpListener server over <see cref="WorkerMeter"/>, carried by <see cref="MeterScrape"/>) and <c>/health</c> (200 while the Kafka loop runs, 503 otherwise), both on one
+/// HttpListener server over <see cref="WorkerMeter"/>, carried by <see cref="MeterScrape"/>) and <c>/health</c> (200 while the Kafka loop runs with a broker reachable and the group joined, 503 otherwise), both on one
 /// address, 127.0.0.1 by default.
 /// </summary>
 /// <remarks>
@@ -91,10 +91,12 @@ internal sealed class MetricsEndpoint : IDisposable
             {
                 return; // stopped
             }
-            bool healthy = stats.Running;
+            // 200 only once work can flow: a loop that runs with no broker is not ready (orchestrators route and restart by this).
+            bool healthy = stats.Healthy;
+            string status = !stats.Running ? "stopped" : !stats.BrokerReachable ? (stats.GroupJoined ? "broker-down" : "connecting") : !stats.GroupJoined ? "joining" : "running";
             double age = stats.LastCheckpointAt == DateTime.MinValue ? -1 : (DateTime.UtcNow - stats.LastCheckpointAt).TotalSeconds;
             var body = Encoding.UTF8.GetBytes(string.Create(System.Globalization.CultureInfo.InvariantCulture,
-                $"{{\"status\":\"{(healthy ? "running" : "stopped")}\",\"partitions\":{stats.Partitions},\"checkpoint_age_seconds\":{age:0.0}}}\n"));
+                $"{{\"status\":\"{status}\",\"partitions\":{stats.Partitions},\"checkpoint_age_seconds\":{age:0.0}}}\n"));
             request.Response.StatusCode = healthy ? 200 : 503;
             request.Response.ContentType = "application/json";
             try

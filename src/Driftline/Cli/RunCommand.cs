@@ -116,7 +116,11 @@ internal sealed class RunCommand(CommandContext context)
         }
         // Alerts also go to the webhook when one is configured; its queue never blocks the partitions.
         await using var webhook = core.Webhook.Address() is not null ? new WebhookAlertSink(core.Webhook) : null;
-        var worker = new KafkaWorker(kafka, core) { AlertObserver = webhook is null ? null : a => webhook.Enqueue(a) };
+        var worker = new KafkaWorker(kafka, core)
+        {
+            AlertObserver = webhook is null ? null : a => webhook.Enqueue(a),
+            ExitAfterBrokerDown = host.ExitAfterBrokerDown,
+        };
         MetricsEndpoint? endpoint = null;
         if (host.MetricsPort > 0)
         {
@@ -143,7 +147,7 @@ internal sealed class RunCommand(CommandContext context)
             // The operator gets one line; the cause chain is there for debug logging.
             Log.Debug(ex, "Worker stopped: {Reason}", ex.Message);
             await context.Error.WriteLineAsync($"driftline: {ex.Message}").ConfigureAwait(false);
-            return ExitCode.Kafka;
+            return ex.BrokerDown ? ExitCode.BrokerDown : ExitCode.Kafka;
         }
     }
 

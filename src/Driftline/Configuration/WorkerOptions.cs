@@ -14,9 +14,20 @@ internal sealed class WorkerOptions
     /// <summary>Port of the metrics (<c>/metrics</c>) and health (<c>/health</c>) endpoint; 0 turns it off. Default 9464.</summary>
     public int MetricsPort { get; set; } = 9464;
 
+    /// <summary>
+    /// With Kafka: stop with exit code 7 once no broker has been reachable for this long (from the
+    /// start, or since the last contact), for orchestrators that restart a failed container.
+    /// Default 00:00:00: off, the worker keeps retrying as librdkafka does.
+    /// </summary>
+    public TimeSpan ExitAfterBrokerDown { get; set; } = TimeSpan.Zero;
+
     /// <summary>Checks every option; returns the mistakes found.</summary>
     public IEnumerable<OptionError> Validate()
     {
+        if (ExitAfterBrokerDown < TimeSpan.Zero)
+        {
+            yield return new("Worker:ExitAfterBrokerDown", $"{ExitAfterBrokerDown:c} is negative", "Use a duration such as \"00:02:00\", or 00:00:00 to keep retrying");
+        }
         if (LogFormat is not ("text" or "json"))
         {
             yield return new("Worker:LogFormat", $"'{LogFormat}' is not a log format", "Use text or json");

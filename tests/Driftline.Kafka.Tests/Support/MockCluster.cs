@@ -57,6 +57,29 @@ internal sealed class MockCluster : IDisposable
     /// </summary>
     public void ConsumerSessionTimeout(int milliseconds) => Native.Value.ConsumerSessionTimeout(Handle(), milliseconds);
 
+    /// <summary>
+    /// Takes broker <paramref name="id"/> (1 to 3) down or back up: librdkafka's
+    /// <c>rd_kafka_mock_broker_set_down</c> closes its connections and refuses new ones, as a
+    /// broker that crashed; <c>rd_kafka_mock_broker_set_up</c> lets clients in again.
+    /// </summary>
+    public void SetBroker(int id, bool up)
+    {
+        int error = up ? Native.Value.BrokerUp(Handle(), id) : Native.Value.BrokerDown(Handle(), id);
+        if (error != 0)
+        {
+            throw new InvalidOperationException($"rd_kafka_mock_broker_set_{(up ? "up" : "down")}({id}) returned {error}");
+        }
+    }
+
+    /// <summary>Every broker of the cluster down (<paramref name="up"/> false) or up.</summary>
+    public void SetAllBrokers(bool up)
+    {
+        for (int id = 1; id <= 3; id++)
+        {
+            SetBroker(id, up);
+        }
+    }
+
     private IntPtr Handle()
     {
         // Confluent.Kafka keeps the librdkafka handle internal; the test reaches it by name.
@@ -75,7 +98,9 @@ internal sealed class MockCluster : IDisposable
             System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<ClusterHandleFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_handle_mock_cluster")),
             System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<TopicCreateFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_topic_create")),
             System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<SetIntFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_group_initial_rebalance_delay_ms")),
-            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<SetIntFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_set_group_consumer_session_timeout_ms")));
+            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<SetIntFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_set_group_consumer_session_timeout_ms")),
+            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<BrokerFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_broker_set_down")),
+            System.Runtime.InteropServices.Marshal.GetDelegateForFunctionPointer<BrokerFn>(System.Runtime.InteropServices.NativeLibrary.GetExport(library, "rd_kafka_mock_broker_set_up")));
     });
 
     private delegate IntPtr ClusterHandleFn(IntPtr rk);
@@ -84,7 +109,9 @@ internal sealed class MockCluster : IDisposable
 
     private delegate void SetIntFn(IntPtr mcluster, int value);
 
-    private sealed record MockApi(ClusterHandleFn ClusterHandle, TopicCreateFn TopicCreate, SetIntFn InitialDelay, SetIntFn ConsumerSessionTimeout);
+    private delegate int BrokerFn(IntPtr mcluster, int brokerId);
+
+    private sealed record MockApi(ClusterHandleFn ClusterHandle, TopicCreateFn TopicCreate, SetIntFn InitialDelay, SetIntFn ConsumerSessionTimeout, BrokerFn BrokerDown, BrokerFn BrokerUp);
 
     public void Dispose() => _host.Dispose();
 }

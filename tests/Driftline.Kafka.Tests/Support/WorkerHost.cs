@@ -20,10 +20,10 @@ internal sealed class WorkerHost : IDisposable
         }
     }
 
-    public WorkerHost(KafkaOptions options, DriftlineOptions? core = null)
+    public WorkerHost(KafkaOptions options, DriftlineOptions? core = null, TimeSpan exitAfterBrokerDown = default)
     {
         Options = options;
-        Worker = new KafkaWorker(options, core ?? new DriftlineOptions());
+        Worker = new KafkaWorker(options, core ?? new DriftlineOptions()) { ExitAfterBrokerDown = exitAfterBrokerDown };
         _thread = new Thread(() =>
         {
             try
