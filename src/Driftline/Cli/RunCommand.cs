@@ -1,5 +1,4 @@
 using System.CommandLine;
-using System.Runtime.InteropServices;
 using Driftline.Configuration;
 using Driftline.Core.Options;
 using Driftline.Kafka.Options;
@@ -14,8 +13,10 @@ namespace Driftline.Cli;
 /// <summary>
 /// <c>driftline run</c>: the live worker. With a broker configured it joins the consumer
 /// group and scores the events topic into the predictions topic; without one it reads events
-/// on standard input and writes predictions to standard output, alerts and logs to standard
-/// error. SIGINT and SIGTERM stop it cleanly (checkpoint, commit, leave; exit 0).
+/// on standard input and writes predictions to standard output, alerts to <c>--alerts-file</c>
+/// or as <c>alert: </c> lines on standard error beside the log. With Kafka, SIGINT and SIGTERM
+/// stop it cleanly (checkpoint, commit, leave; exit 0); reading standard input, they end with a
+/// count line and exit 130 or 143, as shells report a process a signal ended.
 /// </summary>
 internal sealed class RunCommand(CommandContext context)
 {
@@ -31,9 +32,10 @@ internal sealed class RunCommand(CommandContext context)
         var deadLetters = new Option<string?>("--dead-letter-topic") { Description = "Topic rejected records go to (default dead-letters)" };
         var checkpoints = new Option<string?>("--checkpoint-dir") { Description = "Folder of the per-partition checkpoints (default checkpoints)" };
         var config = new Option<string?>("--config") { Description = "JSON configuration file; the Kafka section holds the topics and client settings" };
+        var alertsFile = new Option<string?>("--alerts-file") { Description = "Without Kafka: write alerts as JSON lines to this file (replaced at start) instead of as 'alert: ' lines on standard error" };
         var command = new Command("run", "Run the live worker: score every event, learn from labels, publish predictions and alerts")
         {
-            bootstrap, group, events, labels, predictions, alerts, deadLetters, checkpoints, config,
+            bootstrap, group, events, labels, predictions, alerts, deadLetters, checkpoints, config, alertsFile,
         };
         command.SetAction((result, token) =>
         {
@@ -48,7 +50,7 @@ internal sealed class RunCommand(CommandContext context)
                 ["DeadLetterTopic"] = result.GetValue(deadLetters),
                 ["CheckpointDir"] = result.GetValue(checkpoints),
             };
-            return RunAsync(result.GetValue(config), overrides, token);
+            return RunAsync(result.GetValue(config), overrides, token, result.GetValue(alertsFile));
         });
         return command;
     }
@@ -66,8 +68,14 @@ internal sealed class RunCommand(CommandContext context)
         [nameof(KafkaOptions.CheckpointDir)] = "--checkpoint-dir",
     };
 
-    /// <summary>Runs the worker; returns the exit code. <paramref name="overrides"/> are Kafka options from the command line (null = not given).</summary>
-    public async Task<int> RunAsync(string? configPath, IReadOnlyDictionary<string, string?> overrides, CancellationToken cancellation)
+    /// <summary>The prefix of an alert line on standard error, so a reader tells alerts from log lines (<c>grep '^alert: '</c>).</summary>
+    public const string AlertPrefix = "alert: ";
+
+    /// <summary>
+    /// Runs the worker; returns the exit code. <paramref name="overrides"/> are Kafka options from
+    /// the command line (null = not given); <paramref name="alertsFile"/> is where alerts go without Kafka (null = standard error).
+    /// </summary>
+    public async Task<int> RunAsync(string? configPath, IReadOnlyDictionary<string, string?> overrides, CancellationToken cancellation, string? alertsFile = null)
     {
         var settings = RunSettings.Load(configPath, context.Environment, overrides, out var errors);
         if (settings is null)
@@ -90,21 +98,20 @@ internal sealed class RunCommand(CommandContext context)
                     [new("Kafka:Bootstrap", "is not set, so the Kafka section would be ignored and events read from standard input", "Set Kafka:Bootstrap (or --bootstrap, or DRIFTLINE_Kafka__Bootstrap), or set it to \"\" to read standard input on purpose")]);
             }
         }
+        if (kafka.UsesKafka && alertsFile is not null)
+        {
+            await context.Error.WriteLineAsync("driftline: --alerts-file is for reading standard input; with Kafka, alerts go to the alerts topic (--alerts-topic)").ConfigureAwait(false);
+            return ExitCode.Usage;
+        }
         if (worker.LogFormat == "json")
         {
             Log.Logger = new LoggerConfiguration().WriteTo.Console(new CompactJsonFormatter(), standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
         }
 
-        using var stop = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
-        // SIGTERM (docker stop, Kubernetes) gets the same clean stop as Ctrl+C.
-        using var terminate = PosixSignalRegistration.Create(PosixSignal.SIGTERM, signal =>
-        {
-            signal.Cancel = true;
-            stop.Cancel();
-        });
+        // SIGINT and SIGTERM (docker stop, Kubernetes) are the host's (StopSignals): both cancel the token.
         return kafka.UsesKafka
-            ? await RunKafkaAsync(kafka, core, worker, stop.Token).ConfigureAwait(false)
-            : await RunStdioAsync(core, stop.Token).ConfigureAwait(false);
+            ? await RunKafkaAsync(kafka, core, worker, cancellation).ConfigureAwait(false)
+            : await RunStdioAsync(core, alertsFile, cancellation).ConfigureAwait(false);
     }
 
     private async Task<int> RunKafkaAsync(KafkaOptions kafka, DriftlineOptions core, WorkerOptions host, CancellationToken stop)
@@ -151,28 +158,54 @@ internal sealed class RunCommand(CommandContext context)
         }
     }
 
-    private async Task<int> RunStdioAsync(DriftlineOptions core, CancellationToken stop)
+    private async Task<int> RunStdioAsync(DriftlineOptions core, string? alertsFile, CancellationToken stop)
     {
-        Log.Information("No Kafka bootstrap configured: reading events on standard input, writing predictions to standard output");
+        StreamWriter? alertsOut = null;
+        if (alertsFile is not null)
+        {
+            try
+            {
+                alertsOut = new StreamWriter(OutputFile.CreateStreamed(alertsFile, context.CreateOutput), new System.Text.UTF8Encoding(false));
+            }
+            catch (OutputException ex)
+            {
+                await context.Error.WriteLineAsync(ex.Line).ConfigureAwait(false);
+                return ExitCode.Input;
+            }
+        }
+        await using var alertsScope = alertsOut;
+        Log.Information("No Kafka bootstrap configured: reading events on standard input, writing predictions to standard output, alerts to {Alerts}",
+            alertsFile ?? "standard error (lines starting 'alert: ')");
         using var input = context.StandardInput();
         var pipeline = new ReplayPipeline(core);
-        var outputs = new StdioOutputs(context.Out, context.Error);
+        var outputs = alertsOut is null ? new StdioOutputs(context.Out, context.Error, AlertPrefix) : new StdioOutputs(context.Out, alertsOut, "");
         try
         {
             var run = pipeline.RunAsync(input, outputs.Write, stop);
             // A read of an idle terminal or pipe does not observe cancellation, so a signal
-            // ends the wait here instead; what was read is scored and written by then.
+            // ends the wait here instead.
             var stopped = Task.Delay(Timeout.Infinite, stop);
             if (await Task.WhenAny(run, stopped).ConfigureAwait(false) == stopped)
             {
-                Log.Information("Stopped by signal");
-                return ExitCode.Ok;
+                // What was read and scored is written unless the read blocks (an idle pipe): a moment for the writer stage.
+                await Task.WhenAny(run, Task.Delay(TimeSpan.FromSeconds(1), CancellationToken.None)).ConfigureAwait(false);
+                return await StoppedAsync(pipeline, outputs).ConfigureAwait(false);
             }
             await run.ConfigureAwait(false);
+            if (stop.IsCancellationRequested)
+            {
+                // The pipeline ends a cancelled read as an end of input: still a stop by signal.
+                return await StoppedAsync(pipeline, outputs).ConfigureAwait(false);
+            }
         }
         catch (OperationCanceledException) when (stop.IsCancellationRequested)
         {
-            // A signal is a normal end for a worker.
+            return await StoppedAsync(pipeline, outputs).ConfigureAwait(false);
+        }
+        catch (OutputException ex)
+        {
+            await context.Error.WriteLineAsync(ex.Line).ConfigureAwait(false);
+            return ExitCode.Input;
         }
         catch (IOException ex)
         {
@@ -183,5 +216,16 @@ internal sealed class RunCommand(CommandContext context)
         Log.Information("Input ended: {Events} events scored, {Labels} labels ({Late} late), {DeadLetters} dead letters, {Alerts} alerts",
             c.Events, c.Labels, c.LateLabels, pipeline.DeadLetters, outputs.Alerts);
         return ExitCode.Ok;
+    }
+
+    /// <summary>The final count of a run a signal stopped, on standard error, and the signal's exit code (130 SIGINT, 143 SIGTERM).</summary>
+    private async Task<int> StoppedAsync(ReplayPipeline pipeline, StdioOutputs outputs)
+    {
+        int code = context.StoppedExitCode();
+        string signal = code == ExitCode.Terminated ? "SIGTERM" : "SIGINT";
+        await context.Error.WriteLineAsync(string.Create(System.Globalization.CultureInfo.InvariantCulture,
+            $"driftline: stopped by {signal}: {outputs.Predictions:N0} predictions written, {pipeline.Engine.Counters.Labels:N0} labels, {pipeline.DeadLetters:N0} dead letters, {outputs.Alerts:N0} alerts")).ConfigureAwait(false);
+        await context.Error.FlushAsync().ConfigureAwait(false);
+        return code;
     }
 }

@@ -9,10 +9,12 @@ namespace Driftline.Output;
 
 /// <summary>
 /// The worker's outputs without Kafka: predictions as JSON lines on standard output, alerts
-/// as JSON lines on standard error, dead letters as warnings in the log. Flushed after every
-/// batch so a pipe downstream sees predictions as they are made. Used by the writer stage only.
+/// as JSON lines after <paramref name="alertPrefix"/> (<c>alert: </c> on standard error, where
+/// the log's lines are too; none in a file of their own), dead letters as warnings in the log.
+/// Flushed after every batch so a pipe downstream sees predictions as they are made. Used by
+/// the writer stage only.
 /// </summary>
-internal sealed class StdioOutputs(TextWriter predictions, TextWriter alerts)
+internal sealed class StdioOutputs(TextWriter predictions, TextWriter alerts, string alertPrefix = "")
 {
     private readonly ArrayBufferWriter<byte> _buffer = new(1 << 16);
     private readonly Utf8JsonWriter _json = new(Stream.Null, new JsonWriterOptions { SkipValidation = true, Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
@@ -41,7 +43,7 @@ internal sealed class StdioOutputs(TextWriter predictions, TextWriter alerts)
             _json.Reset(_buffer);
             RecordJson.WriteAlert(_json, alert);
             _json.Flush();
-            alerts.WriteLine(System.Text.Encoding.UTF8.GetString(_buffer.WrittenSpan));
+            alerts.WriteLine(alertPrefix + System.Text.Encoding.UTF8.GetString(_buffer.WrittenSpan));
             Alerts++;
         }
         if (batch.Alerts.Count > 0)
