@@ -27,6 +27,7 @@ internal static class ValueNames
         ["--alerts-topic"] = "TOPIC",
         ["--dead-letter-topic"] = "TOPIC",
         ["--checkpoint-dir"] = "DIR",
+        ["--alerts-file"] = "FILE",
     };
 
     /// <summary>Where one command's option takes something else (fit and demo write one file, not a folder).</summary>
