@@ -182,7 +182,6 @@ internal sealed class KafkaWorker
         while (!stop.IsCancellationRequested)
         {
             ThrowIfFatal();
-            ThrowIfBrokerDown();
             // While the engines drain the last batch on the pool, this thread fetches the next one.
             int got = _intake.Pull(events, fromLabels: false, idle ? IdleWait : TimeSpan.Zero);
             if (_labels is not null)
@@ -474,6 +473,9 @@ internal sealed class KafkaWorker
         {
             throw new KafkaWorkerException(fatal);
         }
+        // Also inside a producer flush, which calls this every 500 ms: the producer's own
+        // all-brokers-down error marks the broker unreachable while the loop waits there.
+        ThrowIfBrokerDown();
     }
 
     private static IProducer<byte[]?, byte[]> Build(ProducerBuilder<byte[]?, byte[]> builder) => Build(builder.Build);
