@@ -181,6 +181,6 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         var window = engine.TopLabelWindow ?? engine.Window;
         var bins = new ReliabilityBin[window.Bins];
         window.CopyBins(bins);
-        return new BinsCapture(engine.Counters.Labels, window.Count, bins);
+        return new BinsCapture(engine.Counters.Labels, window.Count, bins, engine.Confusion);
     }
 }

@@ -256,9 +256,28 @@ internal static class ReportWriter
                 figures.Add(SmallDiagram("After", after, full ? "one window later" : "the last window (the run ended within a window of the alert)"));
             }
             page.Raw("<div class=\"row\">\n" + string.Join("\n", figures) + "\n</div>");
+            if (run.ClassBins.Count > 0 && capture.Before is { Confusion: { } from } && capture.At.Confusion is { } to)
+            {
+                ConfusionBetween(page, run.ClassBins.Select(c => c.Class).ToList(), from, to,
+                    $"Labels {capture.Before.Labels + 1:N0}–{capture.At.Labels:N0}, the stretch up to the raise, by observed class (rows) and the class given the highest probability (columns).");
+                if (capture.After is { Confusion: { } later })
+                {
+                    ConfusionBetween(page, run.ClassBins.Select(c => c.Class).ToList(), to, later,
+                        $"Labels {capture.At.Labels + 1:N0}–{capture.After.Labels:N0}, after the raise, the same way.");
+                }
+            }
             page.Raw(HtmlPage.Figure(RuleCharts.Distribution(capture),
                 "Share of the window's labels per probability bin, before, when and after the raise: mass moving towards 0 and 1 is growing confidence, towards the middle shrinking confidence."));
         }
+    }
+
+    // Observed × predicted counts of the labels graded between two captures.
+    private static void ConfusionBetween(HtmlPage page, IReadOnlyList<string> names, long[] from, long[] to, string caption)
+    {
+        int k = names.Count;
+        page.Paragraph(caption).Table(["observed \\ predicted", .. names, "labels"], Enumerable.Range(0, k).Select(r =>
+            (IReadOnlyList<string>)[names[r], .. Enumerable.Range(0, k).Select(c => "#num " + (to[r * k + c] - from[r * k + c]).ToString("N0", C)),
+                "#num " + Enumerable.Range(0, k).Sum(c => to[r * k + c] - from[r * k + c]).ToString("N0", C)]));
     }
 
     private static string SmallDiagram(string title, BinsCapture window, string which)

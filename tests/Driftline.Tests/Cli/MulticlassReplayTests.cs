@@ -50,6 +50,8 @@ public sealed class MulticlassReplayTests
         Assert.Contains("Reliability per class", report, StringComparison.Ordinal);
         Assert.Contains("Calibration per class over time", report, StringComparison.Ordinal);
         Assert.Contains("Predicted against observed class", report, StringComparison.Ordinal);
+        // ...and around each raise, the confusion of the stretch up to it and after it.
+        Assert.Contains("the stretch up to the raise, by observed class", report, StringComparison.Ordinal);
         Assert.All(Classes, c => Assert.Contains($"Class &#39;{c}&#39; against the rest", report, StringComparison.Ordinal));
 
         // The saved model warm-starts a second run with the same classes.
