@@ -15,6 +15,9 @@ namespace Driftline.Report;
 internal sealed record ReportRule(string Name, AlertMetric Metric, AlertSeverity Severity, int Window, double Raise, double Clear,
     bool IsEvidence, string Description, string? Class = null)
 {
+    /// <summary>For the sequential test: labels between false alarms on a calibrated stream (per class, ARL0 × K); 0 otherwise.</summary>
+    public double LabelsPerFalseAlarm { get; init; }
+
     /// <summary>The report's view of <paramref name="rule"/>; null for the loss change detectors, whose value is only a signal.</summary>
     public static ReportRule? Of(AlertRule rule)
     {
@@ -23,7 +26,7 @@ internal sealed record ReportRule(string Name, AlertMetric Metric, AlertSeverity
         if (rule.Cusum is { } cusum)
         {
             return new(o.Name, o.Metric, o.Severity, o.Window, cusum.Threshold, cusum.ClearFraction * cusum.Threshold, true,
-                "evidence (log-likelihood ratio)");
+                "evidence (log-likelihood ratio)") { LabelsPerFalseAlarm = o.LabelsPerFalseAlarm };
         }
         if (o.IsDetector)
         {

@@ -221,7 +221,7 @@ internal static class ReportWriter
                 continue;
             }
             string caption = rule.IsEvidence
-                ? $"The sequential calibration test's evidence against calibration: the largest of its CUSUMs, in log-likelihood-ratio units. It raises at {rule.Raise.ToString("0.0", C)} (at most one false alarm per {run.Options.EffectiveAlerts.FirstOrDefault(o => o.Name == rule.Name)?.LabelsPerFalseAlarm ?? 1e6:N0} labels on a calibrated stream) and clears once the evidence has fallen to {rule.Clear.ToString("0.0", C)}."
+                ? $"The sequential calibration test's evidence against calibration: the largest of its CUSUMs, in log-likelihood-ratio units. It raises at {rule.Raise.ToString("0.0", C)} (at most one false alarm per {rule.LabelsPerFalseAlarm:N0} labels on a calibrated stream{(rule.Class is null ? "" : $", for this class; the classes' tests together keep the configured rate")}) and clears once the evidence has fallen to {rule.Clear.ToString("0.0", C)}."
                 : $"{rule.Description}, as the rule computed it after each label (sampled). Raise at {rule.Raise.ToString("0.####", C)}, clear at {rule.Clear.ToString("0.####", C)}.";
             page.Raw(HtmlPage.Figure(RuleCharts.RuleSeries(run, i), caption));
         }
