@@ -30,6 +30,6 @@ static int PrintCount(long events)
 
 static int Usage()
 {
-    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K]");
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K]");
     return 2;
 }
