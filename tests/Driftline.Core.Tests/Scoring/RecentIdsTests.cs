@@ -34,4 +34,30 @@ public sealed class RecentIdsTests
         Assert.False(ids.Contains("a"));
         Assert.Equal(["c", "d", "e"], ids.Entries());
     }
+
+    [Fact]
+    public void Add_ManyIdsWithRepeats_AgreesWithAPlainListOfTheLastN()
+    {
+        // The reference is the definition itself: an id is held when it is among the last
+        // `capacity` ids added. Few distinct ids, so repeats, evictions of one copy of several,
+        // and wrapped probe runs in the table all happen.
+        const int capacity = 50;
+        var ids = new RecentIds(capacity);
+        var window = new List<string>();
+        var random = new Random(3);
+        for (int n = 0; n < 20_000; n++)
+        {
+            string id = $"o-{random.Next(120)}";
+            ids.Add(id);
+            window.Add(id);
+            if (window.Count > capacity)
+            {
+                window.RemoveAt(0);
+            }
+            string probe = $"o-{random.Next(130)}";
+            Assert.Equal(window.Contains(probe), ids.Contains(probe));
+        }
+        Assert.Equal(window, ids.Entries());
+        Assert.Equal(capacity, ids.Count);
+    }
 }
