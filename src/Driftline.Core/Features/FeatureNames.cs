@@ -50,11 +50,13 @@ internal sealed class FeatureNames
         {
             return;
         }
-        if (!_names.ContainsKey(hash) && HasRoom())
+        bool known = _names.ContainsKey(hash);
+        if (!known && HasRoom())
         {
             _names[hash] = Encoding.UTF8.GetString(utf8Name);
+            known = true;
         }
-        Remember(hash);
+        Remember(hash, known);
     }
 
     /// <summary>Records a categorical feature as <c>name=value</c>.</summary>
@@ -64,20 +66,24 @@ internal sealed class FeatureNames
         {
             return;
         }
-        if (!_names.ContainsKey(hash) && HasRoom())
+        bool known = _names.ContainsKey(hash);
+        if (!known && HasRoom())
         {
             _names[hash] = string.Concat(Encoding.UTF8.GetString(utf8Name), "=", Encoding.UTF8.GetString(utf8Value));
+            known = true;
         }
-        Remember(hash);
+        Remember(hash, known);
     }
 
     // The top bits index the cache: the weight slot uses the low bits, so these spread independently.
     private bool Seen(ulong hash) => _seen[(int)(hash >> 48)] == hash;
 
     // Only hashes that are in the record (or that found it full) are cached, so a cache hit never hides a name.
-    private void Remember(ulong hash)
+    // `known` is the caller's one probe: on a high-cardinality stream most features miss the
+    // cache once the record is full, and a second dictionary probe per miss was half the cost.
+    private void Remember(ulong hash, bool known)
     {
-        if (_names.ContainsKey(hash) || _names.Count >= Capacity)
+        if (known || _names.Count >= Capacity)
         {
             _seen[(int)(hash >> 48)] = hash;
         }
