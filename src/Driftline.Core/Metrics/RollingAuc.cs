@@ -77,8 +77,8 @@ internal sealed class RollingAuc
         if (_count == _ring.Length)
         {
             GradedPrediction evicted = _ring[_oldest];
-            _tree.Remove(evicted.P, evicted.Y);
-            _halfPairs -= PairsWithOthers(evicted.P, evicted.Y);
+            (int evictedBelow, int evictedAt) = _tree.RemoveAndRank(evicted.P, evicted.Y);
+            _halfPairs -= PairsWithOthers(evicted.Y, evictedBelow, evictedAt);
             _positives -= evicted.Y;
             _ring[_oldest] = new GradedPrediction(p, y);
             _oldest = _oldest + 1 == _ring.Length ? 0 : _oldest + 1;
@@ -90,9 +90,10 @@ internal sealed class RollingAuc
             _count++;
         }
 
-        _halfPairs += PairsWithOthers(p, y);
+        // The rank comes from the insert's own walk, taken before the new pair is counted.
+        (int below, int at) = _tree.AddAndRank(p, y);
+        _halfPairs += PairsWithOthers(y, below, at);
         _positives += y;
-        _tree.Add(p, y);
     }
 
     /// <summary>Empties the window; capacity is kept.</summary>
@@ -123,10 +124,10 @@ internal sealed class RollingAuc
         return result;
     }
 
-    // Half-pairs between (p, y) and the opposite outcomes in the tree (which does not hold it).
-    private long PairsWithOthers(double p, int y)
+    // Half-pairs between (p, y) and the opposite outcomes in the tree (which does not hold it),
+    // from their counts below and at p.
+    private long PairsWithOthers(int y, int below, int at)
     {
-        (int below, int at) = _tree.Rank(p, 1 - y);
         if (y == 1)
         {
             return (2L * below) + at;

@@ -61,10 +61,33 @@ internal sealed class ScoreRankTree
     }
 
     /// <summary>Adds one pair. The caller keeps the number of distinct scores within capacity.</summary>
-    public void Add(double score, int y) => _root = Insert(_root, score, y);
+    public void Add(double score, int y) => AddAndRank(score, y);
 
     /// <summary>Removes one pair that is present (the caller guarantees it).</summary>
-    public void Remove(double score, int y) => _root = Delete(_root, score, y);
+    public void Remove(double score, int y) => RemoveAndRank(score, y);
+
+    /// <summary>
+    /// Adds one pair and returns what <see cref="Rank"/> gave for the opposite outcome
+    /// (1 − <paramref name="y"/>) just before: the insert walks the same path, so the rank costs
+    /// no second descent. The caller keeps the number of distinct scores within capacity.
+    /// </summary>
+    public (int Below, int At) AddAndRank(double score, int y)
+    {
+        int below = 0, at = 0;
+        _root = Insert(_root, score, y, ref below, ref at);
+        return (below, at);
+    }
+
+    /// <summary>
+    /// Removes one pair that is present (the caller guarantees it) and returns the
+    /// <see cref="Rank"/> of the opposite outcome at its score, which the removal leaves unchanged.
+    /// </summary>
+    public (int Below, int At) RemoveAndRank(double score, int y)
+    {
+        int below = 0, at = 0;
+        _root = Delete(_root, score, y, ref below, ref at);
+        return (below, at);
+    }
 
     /// <summary>Counts of outcome <paramref name="y"/> with score strictly below, and exactly at, <paramref name="score"/>.</summary>
     public (int Below, int At) Rank(double score, int y)
@@ -116,7 +139,9 @@ internal sealed class ScoreRankTree
         }
     }
 
-    private int Insert(int t, double score, int y)
+    // Both walks add up the opposite outcome's counts on the way down, before anything below
+    // the current node changes, exactly as Rank would.
+    private int Insert(int t, double score, int y, ref int below, ref int at)
     {
         if (t == None)
         {
@@ -136,7 +161,7 @@ internal sealed class ScoreRankTree
 
         if (score < _key[t])
         {
-            int child = Insert(_left[t], score, y);
+            int child = Insert(_left[t], score, y, ref below, ref at);
             _left[t] = child;
             if (_priority[child] > _priority[t])
             {
@@ -150,7 +175,8 @@ internal sealed class ScoreRankTree
         }
         else if (score > _key[t])
         {
-            int child = Insert(_right[t], score, y);
+            below += Sub(_left[t], 1 - y) + _here[(2 * t) + 1 - y];
+            int child = Insert(_right[t], score, y, ref below, ref at);
             _right[t] = child;
             if (_priority[child] > _priority[t])
             {
@@ -163,6 +189,8 @@ internal sealed class ScoreRankTree
         }
         else
         {
+            below += Sub(_left[t], 1 - y);
+            at = _here[(2 * t) + 1 - y];
             _here[(2 * t) + y]++;
         }
 
@@ -170,18 +198,21 @@ internal sealed class ScoreRankTree
         return t;
     }
 
-    private int Delete(int t, double score, int y)
+    private int Delete(int t, double score, int y, ref int below, ref int at)
     {
         if (score < _key[t])
         {
-            _left[t] = Delete(_left[t], score, y);
+            _left[t] = Delete(_left[t], score, y, ref below, ref at);
         }
         else if (score > _key[t])
         {
-            _right[t] = Delete(_right[t], score, y);
+            below += Sub(_left[t], 1 - y) + _here[(2 * t) + 1 - y];
+            _right[t] = Delete(_right[t], score, y, ref below, ref at);
         }
         else
         {
+            below += Sub(_left[t], 1 - y);
+            at = _here[(2 * t) + 1 - y];
             _here[(2 * t) + y]--;
             if (_here[2 * t] == 0 && _here[(2 * t) + 1] == 0)
             {
