@@ -12,6 +12,7 @@ return args.FirstOrDefault() switch
     "bare" => PrintCount(BareLoop.Run(args[1])),
     "hash-sweep" => HashSweep.Run(args.Skip(1).ToArray()),
     "classes" => ClassesBenchmark.Run(args.Skip(1).ToArray()),
+    "pending" => PendingMemory.Run(args.Skip(1).ToArray()),
     _ => Usage(),
 };
 
@@ -30,6 +31,6 @@ static int PrintCount(long events)
 
 static int Usage()
 {
-    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K]");
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K] | pending [EVENTS]");
     return 2;
 }
