@@ -131,12 +131,23 @@ internal sealed class ScoreRankTree
 
     private int Sub(int t, int y) => t == None ? 0 : _below[(2 * t) + y];
 
+    // Runs on every node of every walk: both outcomes at once, each child read once.
     private void Pull(int t)
     {
-        for (int y = 0; y < 2; y++)
+        int negatives = _here[2 * t], positives = _here[(2 * t) + 1];
+        int left = _left[t], right = _right[t];
+        if (left != None)
         {
-            _below[(2 * t) + y] = Sub(_left[t], y) + Sub(_right[t], y) + _here[(2 * t) + y];
+            negatives += _below[2 * left];
+            positives += _below[(2 * left) + 1];
         }
+        if (right != None)
+        {
+            negatives += _below[2 * right];
+            positives += _below[(2 * right) + 1];
+        }
+        _below[2 * t] = negatives;
+        _below[(2 * t) + 1] = positives;
     }
 
     // Both walks add up the opposite outcome's counts on the way down, before anything below
