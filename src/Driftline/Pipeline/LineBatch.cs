@@ -40,7 +40,17 @@ internal sealed class LineBatch
     public string? Error(int i) => _errors[i];
 
     /// <summary>True when line <paramref name="i"/> holds nothing but blanks (skipped, but counted for line numbers).</summary>
-    public bool IsBlank(int i) => _refused[i] is null && Line(i).Trim(" \t"u8).IsEmpty;
+    public bool IsBlank(int i)
+    {
+        if (_refused[i] is not null)
+        {
+            return false;
+        }
+        // Asked twice of every line (parse and score); a line that starts with anything but a
+        // blank is not blank, so the trim runs only for lines that start with one.
+        var line = Line(i);
+        return line.IsEmpty || (line[0] is (byte)' ' or (byte)'\t' && line.Trim(" \t"u8).IsEmpty);
+    }
 
     /// <summary>Parses every line with <paramref name="parser"/> into the batch's records.</summary>
     public void Parse(EventParser parser)
