@@ -214,14 +214,6 @@ internal sealed class ScoringEngine
     /// <summary>The per-segment windows when <c>Monitor:SegmentBy</c> is set, else null.</summary>
     public SegmentTracker? Segments => _segments;
 
-    /// <summary>
-    /// A rolling AUC over the report window's labels, when <see cref="TrackAuc"/> asked for one
-    /// (the report draws it; O(log n) a label, so it is off unless wanted).
-    /// </summary>
-    public RollingAuc? WindowAuc { get; private set; }
-
-    /// <summary>Starts <see cref="WindowAuc"/> over the last <paramref name="labels"/> labels.</summary>
-    public void TrackAuc(int labels) => WindowAuc ??= new RollingAuc(labels);
 
     /// <summary>
     /// Called for every graded label with its whole-model log-loss (the raw model's), in grading
@@ -438,7 +430,6 @@ internal sealed class ScoringEngine
         if (_outputs == 1)
         {
             _segments?.Add(segment, p[0], y);
-            WindowAuc?.Add(p[0], y);
             GradeChannel(_channels[0], p[0], priorP[0], y, id, timeTicks, explain: true);
             if (model.Recalibration is { } recalibration)
             {

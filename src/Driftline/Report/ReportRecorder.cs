@@ -46,10 +46,11 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         data.Rules.Clear();
         // In the engine's order (channel by channel), each rule named with the class it watches.
         data.Rules.AddRange(engine.Channels.SelectMany(c => c.Rules.Select(r => ReportRule.Of(r.Rule) is { } shown ? shown with { Class = c.ClassName } : null)));
-        engine.TrackAuc(engine.Window.Capacity);
     }
 
     private AlertRule[] _rules = [];
+    private long _aucAt = long.MinValue / 2;
+    private double _auc = double.NaN;
 
     /// <inheritdoc />
     public void OnPrediction(in Prediction prediction)
@@ -142,7 +143,7 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         }
         points.Add(new ReportPoint(labels, engine.Counters.Events, window.Count, window.LogLoss, prior.LogLoss,
             window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired,
-            window.Brier, engine.WindowAuc?.Value ?? double.NaN, engine.ClockTicks, values,
+            window.Brier, WindowAuc(engine, labels), engine.ClockTicks, values,
             engine.ClassNames is null ? null : engine.ClassMeasuresOf(total: false).Select(c => c.MeanP - c.ObservedRate).ToArray(),
             engine.ServedWindow?.Current.CalibrationInTheLarge ?? double.NaN, engine.ServedWindow?.Current.LogLoss ?? double.NaN));
         if (points.Count >= MaxPoints)
@@ -174,6 +175,26 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
                 _awaitingAfter.RemoveAt(i);
             }
         }
+    }
+
+    // The report window's AUC, recomputed from its contents once a quarter-window of labels has
+    // passed and held in between: a rolling AUC updated on every label cost 8.6% of the scoring
+    // thread in the wide replay's profile, for a chart drawn from a thousand points.
+    private double WindowAuc(ScoringEngine engine, long labels)
+    {
+        var window = engine.Window;
+        if (labels - _aucAt >= Math.Max(1, window.Capacity / 4))
+        {
+            _aucAt = labels;
+            var contents = window.ToArray();
+            var auc = new RollingAuc(Math.Max(1, contents.Length));
+            foreach (var g in contents)
+            {
+                auc.Add(g.P, g.Y);
+            }
+            _auc = auc.Value;
+        }
+        return _auc;
     }
 
     private static BinsCapture Capture(ScoringEngine engine)
