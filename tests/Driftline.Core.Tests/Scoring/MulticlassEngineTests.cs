@@ -95,9 +95,13 @@ public sealed class MulticlassEngineTests
         double truthLoss = 0;
         double gap = 0;
         int n = 30_000, tail = 5_000;
+        var rows = new List<double[]>();
+        var labels = new List<int>();
         for (int i = 0; i < n; i++)
         {
             var e = stream.Next(i);
+            rows.Add(e.Dense);
+            labels.Add(e.Label);
             EngineDriver.Feed(engine, [e.Json]);
             truthLoss -= Math.Log(e.TrueP[e.Label]);
             if (i >= n - tail)
@@ -109,6 +113,13 @@ public sealed class MulticlassEngineTests
         Assert.True(gap < 0.06, $"mean total-variation gap to the true probabilities {gap:F4}");
         double modelLoss = engine.Totals.Current.LogLoss;
         Assert.InRange(modelLoss / (truthLoss / n), 1.0 - 0.02, 1.02);
+        // The check: within 2% of the batch optimum's in-sample log-loss, the joint
+        // maximum-likelihood fit of the same rows (MultinomialNewtonFit, itself checked against
+        // the published mnlogit of anes96).
+        var batch = Core.Fitting.MultinomialNewtonFit.Fit(rows, labels, SoftmaxStream.Classes.Length);
+        Assert.True(batch.Converged, batch.Problem);
+        double batchLoss = -batch.LogLikelihood / n;
+        Assert.InRange(modelLoss / batchLoss, 1.0, 1.02);
         Assert.True(engine.Totals.Current.LogLoss < engine.PriorTotals.Current.LogLoss);
     }
 

@@ -24,8 +24,8 @@ internal sealed class SoftmaxStream(int seed)
     /// <summary>The class the shift applies to.</summary>
     public int ShiftClass { get; set; } = 1;
 
-    /// <summary>One event: its JSON line, the true class probabilities and the drawn class.</summary>
-    public (string Json, double[] TrueP, int Label) Next(int n, bool withLabel = true)
+    /// <summary>One event: its JSON line, the true class probabilities, the drawn class and its features as a dense row (distance, zone=river, zone=hill, raining).</summary>
+    public (string Json, double[] TrueP, int Label, double[] Dense) Next(int n, bool withLabel = true)
     {
         double distance = 3 + 1.5 * Normal();
         int level = _random.Next(Levels.Length);
@@ -50,7 +50,7 @@ internal sealed class SoftmaxStream(int seed)
         var ci = CultureInfo.InvariantCulture;
         string label = withLabel ? $",\"label\":\"{Classes[y]}\"" : "";
         string json = string.Create(ci, $"{{\"id\":\"e{n}\",\"features\":{{\"distance_km\":{distance:R},\"zone\":\"{Levels[level]}\",\"raining\":{(raining ? "true" : "false")}}}{label}}}");
-        return (json, p, y);
+        return (json, p, y, [distance, level == 1 ? 1 : 0, level == 2 ? 1 : 0, raining ? 1 : 0]);
     }
 
     private double Normal()
