@@ -1,8 +1,6 @@
 using Confluent.Kafka;
 using Confluent.Kafka.Admin;
-using DotNet.Testcontainers.Builders;
 using Driftline.Kafka.Tests.Support;
-using Testcontainers.Kafka;
 using Xunit;
 
 namespace Driftline.Kafka.Tests;
@@ -16,22 +14,12 @@ namespace Driftline.Kafka.Tests;
 [Collection(RealProcesses.Name)]
 public sealed class RealBrokerGroupTests
 {
-    private const string Image = "apache/kafka:4.0.0";
     private const int Partitions = 16;
 
     [Fact]
     public async Task Run_ThreeWorkersOnARealBroker_SplitEvenlyAndPredictEveryId()
     {
-        KafkaContainer container;
-        try
-        {
-            container = new KafkaBuilder(Image).Build();
-        }
-        catch (DockerUnavailableException ex)
-        {
-            Assert.Skip($"no Docker engine for the real-broker group test: {ex.Message}");
-            return;
-        }
+        var container = RealBroker.BuildOrSkip("real-broker group test");
         await using (container)
         {
             var token = TestContext.Current.CancellationToken;

@@ -1,8 +1,6 @@
 using Confluent.Kafka;
 using Confluent.Kafka.Admin;
-using DotNet.Testcontainers.Builders;
 using Driftline.Kafka.Tests.Support;
-using Testcontainers.Kafka;
 using Xunit;
 
 namespace Driftline.Kafka.Tests;
@@ -13,22 +11,10 @@ namespace Driftline.Kafka.Tests;
 /// </summary>
 public sealed class RealBrokerTests
 {
-    /// <summary>Kafka 4.0 is the first release with the consumer group protocol the tests use on by default.</summary>
-    private const string Image = "apache/kafka:4.0.0";
-
     [Fact]
     public async Task Run_RealBroker_OnePredictionPerEventAndEveryLabelJoined()
     {
-        KafkaContainer container;
-        try
-        {
-            container = new KafkaBuilder(Image).Build();
-        }
-        catch (DockerUnavailableException ex)
-        {
-            Assert.Skip($"no Docker engine for the real-broker test: {ex.Message}");
-            return;
-        }
+        var container = RealBroker.BuildOrSkip("real-broker test");
         await using (container)
         {
             var token = TestContext.Current.CancellationToken;
