@@ -11,7 +11,7 @@ internal static class ClassCharts
         ArgumentNullException.ThrowIfNull(run);
         ArgumentNullException.ThrowIfNull(classes);
         using var plot = ReportCharts.NewPlot("Calibration per class", "mean p − observed rate of the class over the window");
-        var zero = plot.Add.HorizontalLine(0, 1, Colors.Gray, LinePattern.Dotted);
+        var zero = plot.Add.HorizontalLine(0, 1, Colors.Gray, LinePattern.Solid);
         zero.ExcludeFromLegend = true;
         var points = run.Points.Where(p => p.ClassGaps is not null).ToList();
         for (int k = 0; k < classes.Count; k++)

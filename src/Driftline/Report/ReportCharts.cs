@@ -44,7 +44,9 @@ internal static class ReportCharts
         if (runs.Count > 0)
         {
             var prior = Line(plot, runs[0].Points, p => p.PriorLogLoss, Faint);
-            prior.LinePattern = LinePattern.Dashed;
+            // Solid: the SVG export drops dash patterns (SkiaSharp's SVG canvas has no path
+            // effects, and says so on stderr for every dashed line), so lines differ by colour.
+            prior.LineWidth = 1.5f;
             prior.LegendText = "class-prior baseline";
         }
         if (alertMarks && runs.Count == 1)
@@ -63,7 +65,7 @@ internal static class ReportCharts
     public static string CalibrationInTheLarge(IReadOnlyList<ReportData> runs, bool alertMarks)
     {
         using var plot = NewPlot("Calibration-in-the-large", "mean p − observed rate over the window");
-        var zero = plot.Add.HorizontalLine(0, 1, Faint, LinePattern.Dotted);
+        var zero = plot.Add.HorizontalLine(0, 1, Faint, LinePattern.Solid);
         zero.ExcludeFromLegend = true;
         for (int r = 0; r < runs.Count; r++)
         {
@@ -73,7 +75,7 @@ internal static class ReportCharts
         if (runs.Count == 1 && runs[0].ServedTotal is not null)
         {
             // Recalibration on: the stream actually served, beside the model's own.
-            var served = Line(plot, runs[0].Points, p => p.ServedGap, Palette[2]);
+            var served = Line(plot, runs[0].Points, p => p.ServedGap, Palette[3]);
             served.LegendText = "served (recalibrated)";
         }
         if (alertMarks && runs.Count == 1)
@@ -117,7 +119,7 @@ internal static class ReportCharts
         plot.XLabel("mean predicted probability");
         var diagonal = plot.Add.Line(0, 0, 1, 1);
         diagonal.LineColor = Faint;
-        diagonal.LinePattern = LinePattern.Dashed;
+        diagonal.LineWidth = 1;
         diagonal.LegendText = "perfectly calibrated";
         for (int s = 0; s < series.Count; s++)
         {
@@ -195,7 +197,7 @@ internal static class ReportCharts
     }
 
     /// <summary>
-    /// Marks each raise (solid: red for critical, amber for warning) and clear (green, dashed)
+    /// Marks each raise (solid: red for critical, amber for warning) and clear (green)
     /// with its rule's name, and shades the stretches while an alert was open.
     /// </summary>
     internal static void AlertMarks(Plot plot, ReportData run, string? onlyRule = null, string? onlyClass = null)
@@ -211,7 +213,7 @@ internal static class ReportCharts
             }
             bool critical = a.Severity == Core.Alerts.AlertSeverity.Critical;
             var colour = !a.Raised ? ClearColour : critical ? RaiseColour : WarningColour;
-            var mark = plot.Add.VerticalLine(a.Labels, 1.5f, colour, a.Raised ? LinePattern.Solid : LinePattern.Dashed);
+            var mark = plot.Add.VerticalLine(a.Labels, 1.5f, colour, LinePattern.Solid);
             string kind = !a.Raised ? "cleared" : critical ? "critical raised" : "warning raised";
             if (shown.Add(kind))
             {
@@ -235,7 +237,8 @@ internal static class ReportCharts
         foreach (var capture in run.Alerts)
         {
             var a = capture.Alert;
-            if (onlyRule is not null && (a.Rule != onlyRule || a.Class != onlyClass))
+            // A challenger's decision is an event, not a state: it opens nothing to shade.
+            if ((onlyRule is not null && (a.Rule != onlyRule || a.Class != onlyClass)) || a.Metric == Core.Alerts.AlertMetric.ChallengerEvidence)
             {
                 continue;
             }

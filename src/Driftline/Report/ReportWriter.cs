@@ -74,7 +74,7 @@ internal static class ReportWriter
         int window = run.Options.Monitor.Window;
         page.Heading(2, "Loss over time", "loss")
             .Raw(HtmlPage.Figure(ReportCharts.LogLoss([run], alertMarks: true),
-                $"Log-loss of the model and of the class-prior baseline over the last {window:N0} labels. The model earns its keep while its line stays below the dashed baseline; where they meet or cross, it predicts no better than the base rate. Marks name the rule that raised (red: critical, amber: warning); green dashed lines are clears, and shading shows while an alert was open."));
+                $"Log-loss of the model and of the class-prior baseline over the last {window:N0} labels. The model earns its keep while its line stays below the grey baseline; where they meet or cross, it predicts no better than the base rate. Marks name the rule that raised (red: critical, amber: warning); green lines are clears, and shading shows while an alert was open."));
         page.Heading(2, "Calibration over time", "calibration")
             .Raw(HtmlPage.Figure(ReportCharts.CalibrationInTheLarge([run], alertMarks: true),
                 $"Mean predicted probability minus the observed rate over the last {window:N0} labels. Zero means the probabilities are right on average; above zero the model over-predicts, below it under-predicts. A drift away from zero is the first sign that a probability no longer means what it says."));
@@ -84,7 +84,7 @@ internal static class ReportWriter
                 $"AUC (the chance that a positive is scored above a negative) and Brier score (mean squared error of the probability) over the last {window:N0} labels. AUC is about ranking only: it can stay high while calibration breaks, which is why the rules above watch calibration too."));
         page.Heading(2, "Reliability over the whole run", "reliability")
             .Raw(HtmlPage.Figure(ReportCharts.Reliability("Whole run", [("model", run.WholeRun)], 520),
-                "Each point is one probability bin: mean predicted probability across, observed rate of positives up, with its 95% Wilson interval and the number of labels in it. Points on the dashed diagonal are calibrated; an interval that misses the diagonal is a bin the model gets wrong beyond chance."
+                "Each point is one probability bin: mean predicted probability across, observed rate of positives up, with its 95% Wilson interval and the number of labels in it. Points on the grey diagonal are calibrated; an interval that misses the diagonal is a bin the model gets wrong beyond chance."
                 + (run.ClassBins.Count > 0 ? " For this multiclass model it is the top label's: the most probable class's probability against how often that class was right." : "")));
         if (run.ClassBins.Count > 0)
         {
@@ -178,13 +178,13 @@ internal static class ReportWriter
             $"<a href=\"{Uri.EscapeDataString(r.Name)}/{FileName}\"><span class=\"swatch\" style=\"background:{ReportCharts.ColourHex(i)}\"></span>{HtmlPage.Encode(r.Name)}</a>")) + "</p>");
         page.Heading(2, "Loss over time", "loss")
             .Raw(HtmlPage.Figure(ReportCharts.LogLoss(runs, alertMarks: false),
-                "Rolling log-loss of each configuration over its own window, with the class-prior baseline of the first dashed. The configuration that stays lowest through the hard stretches, and comes back down fastest after them, forgets at the right pace."));
+                "Rolling log-loss of each configuration over its own window, with the class-prior baseline of the first in grey. The configuration that stays lowest through the hard stretches, and comes back down fastest after them, forgets at the right pace."));
         page.Heading(2, "Calibration over time", "calibration")
             .Raw(HtmlPage.Figure(ReportCharts.CalibrationInTheLarge(runs, alertMarks: false),
                 "Mean predicted probability minus observed rate over each configuration's window. The closer a line keeps to zero, the more its probabilities can be taken at face value."));
         page.Heading(2, "Reliability over the whole run", "reliability")
             .Raw(HtmlPage.Figure(ReportCharts.Reliability("Whole run", runs.Select(r => (r.Name, r.WholeRun)).ToList(), 520),
-                "Mean predicted probability against observed rate per bin for each configuration, with 95% Wilson intervals. Points nearer the dashed diagonal are better calibrated."));
+                "Mean predicted probability against observed rate per bin for each configuration, with 95% Wilson intervals. Points nearer the grey diagonal are better calibrated."));
 
         page.Heading(2, "Alerts", "alerts");
         if (runs.All(r => r.Alerts.Count == 0))
@@ -213,7 +213,7 @@ internal static class ReportWriter
             return;
         }
         page.Heading(2, "What each rule watched", "rules")
-            .Paragraph("Each rule over its own window, with the line it raises at (red, dashed) and the line it clears at (green, dotted); shaded stretches are the times it was raised. A threshold rule clears only after its value has stayed past the clear line for its hold.");
+            .Paragraph("Each rule over its own window, with the line it raises at (red) and the line it clears at (green); shaded stretches are the times it was raised. A threshold rule clears only after its value has stayed past the clear line for its hold.");
         for (int i = 0; i < run.Rules.Count; i++)
         {
             if (run.Rules[i] is not { } rule)

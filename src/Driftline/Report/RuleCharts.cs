@@ -20,9 +20,9 @@ internal static class RuleCharts
         using var plot = ReportCharts.NewPlot($"{rule.Name}{(rule.Class is null ? "" : $", class '{rule.Class}'")} ({(rule.Severity == Core.Alerts.AlertSeverity.Critical ? "critical" : "warning")})", rule.Description);
         var line = ReportCharts.Line(plot, run.Points, p => p.RuleValues is { } v && index < v.Length ? v[index] : double.NaN, ReportCharts.Palette[0]);
         line.LegendText = rule.IsEvidence ? "evidence" : "value the rule saw";
-        var raise = plot.Add.HorizontalLine(rule.Raise, 1.5f, ReportCharts.RaiseColour, LinePattern.Dashed);
+        var raise = plot.Add.HorizontalLine(rule.Raise, 1.5f, ReportCharts.RaiseColour, LinePattern.Solid);
         raise.LegendText = $"raise at {Number(rule.Raise)}";
-        var clear = plot.Add.HorizontalLine(rule.Clear, 1.5f, ReportCharts.ClearColour, LinePattern.Dotted);
+        var clear = plot.Add.HorizontalLine(rule.Clear, 1.5f, ReportCharts.ClearColour, LinePattern.Solid);
         clear.LegendText = $"clear at {Number(rule.Clear)}";
         ReportCharts.AlertMarks(plot, run, rule.Name, rule.Class);
         ReportCharts.EventTimeAxis(plot, run.Points);
