@@ -14,14 +14,17 @@ public sealed class WorkerGroupProcessTests
     private const int Keys = 64;
 
     [Theory]
-    [InlineData(1)]
-    [InlineData(2)]
-    [InlineData(3)]
-    [InlineData(4)]
-    public void Run_WorkersInOneGroup_SplitEvenlyPredictEveryIdAndStopOnSigterm(int workers)
+    [InlineData(1, "classic")]
+    [InlineData(2, "classic")]
+    [InlineData(3, "classic")]
+    [InlineData(4, "classic")]
+    [InlineData(3, "consumer")]
+    public void Run_WorkersInOneGroup_SplitEvenlyPredictEveryIdAndStopOnSigterm(int workers, string protocol)
     {
         using var cluster = new MockCluster();
-        using var group = new WorkerGroup(cluster, $"gp{workers}", Partitions, Detect);
+        // The consumer protocol (KIP-848) takes no client session or heartbeat setting: the broker sets both.
+        var client = protocol == "classic" ? Detect : new Dictionary<string, string> { ["group.protocol"] = protocol };
+        using var group = new WorkerGroup(cluster, $"gp{workers}{protocol[..2]}", Partitions, client);
         var records = TestStream.Generate(20_000, Keys, seed: 40 + workers);
         int events = records.Count(r => !r.IsLabel);
         for (int i = 0; i < workers; i++)
@@ -30,7 +33,7 @@ public sealed class WorkerGroupProcessTests
         }
         // Spread: every partition owned once, the counts at most one apart, each member owning some within 5 s of its start.
         var split = group.WaitForSplit(s => s.Max() - s.Min() <= 1, TimeSpan.FromSeconds(30), TimeSpan.FromSeconds(1));
-        TestContext.Current.TestOutputHelper?.WriteLine($"{workers} workers: split {string.Join("/", split)}; first partitions after {string.Join(", ", group.Members.Select(m => $"{(m.FirstOwned!.Value - m.JoinedAt!.Value).TotalSeconds:0.0} s"))}");
+        TestContext.Current.TestOutputHelper?.WriteLine($"{workers} workers ({protocol}): split {string.Join("/", split)}; first partitions after {string.Join(", ", group.Members.Select(m => $"{(m.FirstOwned!.Value - m.JoinedAt!.Value).TotalSeconds:0.0} s"))}");
         foreach (var m in group.Members)
         {
             Assert.True(m.FirstOwned!.Value - m.JoinedAt!.Value <= TimeSpan.FromSeconds(5), $"a member owned its first partition {(m.FirstOwned.Value - m.JoinedAt.Value).TotalSeconds:0.0} s after it started");
@@ -64,6 +67,7 @@ public sealed class WorkerGroupProcessTests
 
         // A live feed of 10 s; a member joins at 2 s and at 4 s, one leaves cleanly at 6 s and one is killed at 8 s.
         var feed = new Thread(() => Topics.ProducePaced(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records, eventsPerSecond: 2_000));
+        var feedStart = DateTime.UtcNow;
         feed.Start();
         var clock = System.Diagnostics.Stopwatch.StartNew();
         WaitUntil(clock, 2.0);
@@ -83,7 +87,20 @@ public sealed class WorkerGroupProcessTests
         long kill = new DateTimeOffset(killedAt).ToUnixTimeMilliseconds();
         var (gap, key, at) = LongestGap([.. predictions.Where(p => p.TimestampMs < kill)]);
         var (killGap, killKey, _) = LongestGap([.. predictions.Where(p => p.TimestampMs >= kill - 200)]);
-        TestContext.Current.TestOutputHelper?.WriteLine($"[measured] joins and a clean leave under load: longest gap in one key's predictions {gap.TotalSeconds:0.00} s (key {key}, until {at:HH:mm:ss.fff}); after a SIGKILL: {killGap.TotalSeconds:0.00} s (key {killKey}; session timeout 1.5 s)");
+        // Which keys moved: each key lives on the events partition its records went to.
+        var partitionOf = Topics.ReadPlaced(cluster.Bootstrap, group.EventsTopic, events, TimeSpan.FromSeconds(30))
+            .GroupBy(r => System.Text.Json.JsonDocument.Parse(r.Value).RootElement.GetProperty("key").GetString()!)
+            .ToDictionary(g => g.Key, g => g.First().Partition, StringComparer.Ordinal);
+        var moves = group.Handovers(feedStart);
+        var moved = moves.Where(m => m.At < killedAt).Select(m => m.Partition).ToHashSet();
+        var beforeKill = predictions.Where(p => p.TimestampMs < kill).ToList();
+        var (movedGap, _, _) = LongestGap([.. beforeKill.Where(p => moved.Contains(partitionOf[KeyOf(p.Value)]))]);
+        // The same run's baseline: keys whose partition never moved, scoring through the same rebalances on the same loaded machine.
+        var (keptGap, _, _) = LongestGap([.. beforeKill.Where(p => !moved.Contains(partitionOf[KeyOf(p.Value)]))]);
+        var unowned = moves.Where(m => m.At < killedAt && !m.Overlap).Select(m => m.Unowned.TotalSeconds).Order().ToList();
+        string load = File.ReadAllText("/proc/loadavg").Split(' ')[0];
+        TestContext.Current.TestOutputHelper?.WriteLine(group.TimedTimeline(feedStart, DateTime.MaxValue));
+        TestContext.Current.TestOutputHelper?.WriteLine($"[measured] joins and a clean leave under load: longest gap in one key's predictions {gap.TotalSeconds:0.00} s (key {key}, until {at:HH:mm:ss.fff}); moved partitions' keys {movedGap.TotalSeconds:0.00} s, never-moved partitions' keys {keptGap.TotalSeconds:0.00} s; {unowned.Count} moves, a partition without owner {(unowned.Count > 0 ? unowned[unowned.Count / 2] : 0):0.00} s median, {(unowned.Count > 0 ? unowned[^1] : 0):0.00} s longest; {moves.Count(m => m.Overlap)} assigned while another member held them; after a SIGKILL: {killGap.TotalSeconds:0.00} s (key {killKey}; session timeout 1.5 s); load average {load}");
         Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(30)), "not every label was joined and checkpointed\n" + group.Timeline());
         foreach (var m in group.Members.Where(m => !m.Killed && !m.HasExited))
         {
@@ -149,6 +166,74 @@ public sealed class WorkerGroupProcessTests
         Assert.Equal(events, actual.Count);
         int differ = expected.Count(kv => actual.GetValueOrDefault(kv.Key) != kv.Value);
         Assert.True(differ == 0, $"{differ} ids' last prediction differs from an uninterrupted run's, e.g. {expected.Where(kv => actual.GetValueOrDefault(kv.Key) != kv.Value).Select(kv => kv.Value + " vs " + actual.GetValueOrDefault(kv.Key)).FirstOrDefault()}");
+    }
+
+    [Fact]
+    public void Run_OwnersKilledAndStoppedWithPredictionsWaiting_TheirLateLabelsJoinOnTheNewOwner()
+    {
+        using var cluster = new MockCluster();
+        using var group = new WorkerGroup(cluster, "gf", Partitions, Detect);
+        var records = TestStream.Generate(6_000, Keys, seed: 81);
+        var events = records.Where(r => !r.IsLabel).ToList();
+        var late = records.Where(r => r.IsLabel).OrderBy(r => r.TimestampMs).ToList();
+        var killed = group.Start();
+        var stopped = group.Start();
+        var survivor = group.Start();
+        group.WaitForSplit(s => s.All(c => c > 0), TimeSpan.FromSeconds(30), TimeSpan.Zero);
+
+        // Every event predicted and checkpointed by its first owner, its late label not yet sent.
+        Topics.Produce(cluster.Bootstrap, group.EventsTopic, events.Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
+        var predictions = Topics.ReadTimed(cluster.Bootstrap, group.PredictionsTopic, events.Count, TimeSpan.FromSeconds(60));
+        Assert.Equal(events.Count, predictions.Select(p => p.Id).Distinct().Count());
+        var before = WaitForCheckpointedEvents(group, events.Count);
+        var waiting = before.ToDictionary(c => c.Partition, c => c.Snapshot.Pending.Select(p => p.Id).ToHashSet(StringComparer.Ordinal));
+        Assert.Equal(late.Select(r => r.Id).Order(StringComparer.Ordinal), waiting.Values.SelectMany(w => w).Order(StringComparer.Ordinal));
+        var moved = killed.Owned.Concat(stopped.Owned).ToList();
+
+        // One owner dies without a word, the other leaves cleanly: the survivor owns everything.
+        killed.Kill();
+        group.WaitForSplit(s => s.Length == 2 && s.All(c => c > 0), TimeSpan.FromSeconds(30), TimeSpan.Zero);
+        Assert.Equal(0, stopped.Terminate(TimeSpan.FromSeconds(10)));
+        group.WaitForSplit(s => s.Length == 1, TimeSpan.FromSeconds(30), TimeSpan.Zero);
+
+        Topics.Produce(cluster.Bootstrap, group.LabelsTopic, late.Select(r => ((string?)r.Key, r.Value, r.TimestampMs)));
+        Assert.True(group.WaitForCheckpointedLabels(events.Count, TimeSpan.FromSeconds(60)), "not every label was joined and checkpointed\n" + group.Timeline());
+        Assert.Equal(0, survivor.Terminate(TimeSpan.FromSeconds(10)));
+
+        // Each moved partition joined exactly the late labels of the predictions its old owner left waiting.
+        var after = CheckpointFiles.All(group.Checkpoints, group.EventsTopic, Partitions).ToDictionary(c => c.Partition);
+        foreach (int p in moved)
+        {
+            Assert.True(waiting[p].Count > 0, $"partition {p} had no prediction waiting for a label");
+            Assert.Equal(waiting[p].Count, after[p].Snapshot.Counters.LateLabels);
+            Assert.Empty(after[p].Snapshot.Pending);
+        }
+        Assert.Equal(0, after.Values.Sum(c => c.Snapshot.Counters.UnknownLabels + c.Snapshot.Counters.DuplicateLabels));
+        Assert.Equal(late.Count, after.Values.Sum(c => c.Snapshot.Counters.LateLabels));
+        Assert.Equal(events.Count, after.Values.Sum(c => c.Snapshot.Counters.Events));
+        Assert.Contains("restored", survivor.Errors, StringComparison.Ordinal);
+    }
+
+    private static List<Driftline.Kafka.Checkpoints.PartitionCheckpoint> WaitForCheckpointedEvents(WorkerGroup group, int events)
+    {
+        var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(30);
+        while (true)
+        {
+            try
+            {
+                var checkpoints = CheckpointFiles.All(group.Checkpoints, group.EventsTopic, Partitions);
+                if (checkpoints.Count == Partitions && checkpoints.Sum(c => c.Snapshot.Counters.Events) == events)
+                {
+                    return checkpoints;
+                }
+            }
+            catch (IOException)
+            {
+                // Being replaced.
+            }
+            Assert.True(DateTime.UtcNow < deadline, "the owners did not checkpoint every event\n" + group.Timeline());
+            Thread.Sleep(50);
+        }
     }
 
     /// <summary>The same stream through one driftline process of its own group, without a stop: its last prediction per id.</summary>
@@ -223,6 +308,8 @@ public sealed class WorkerGroupProcessTests
         }
         return best;
     }
+
+    private static string KeyOf(string prediction) => System.Text.Json.JsonDocument.Parse(prediction).RootElement.GetProperty("key").GetString()!;
 
     private static void AssertAllCheckpointed(WorkerGroup group, int events)
     {

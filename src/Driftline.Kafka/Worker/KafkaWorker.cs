@@ -284,6 +284,7 @@ internal sealed class KafkaWorker
         Stats.GroupJoined = true;
         Stats.BrokerReachable = true;
         Stats.LastBrokerContact = DateTime.UtcNow;
+        var clock = Stopwatch.StartNew();
         // Records consumed before this callback belong to the partitions owned before it.
         SettleDrain(events);
         ApplyStaged(events);
@@ -334,11 +335,17 @@ internal sealed class KafkaWorker
         }
         _labels?.IncrementalAssign(labels);
         Stats.Partitions = _partitions.Count;
+        if (assigned.Count > 0)
+        {
+            // The group waits for this callback: its length is part of every move's pause.
+            Log.Information("Assignment of {Count} partitions ready in {Elapsed:0} ms", assigned.Count, clock.Elapsed.TotalMilliseconds);
+        }
         return start;
     }
 
     private void OnRevoked(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> revoked)
     {
+        var clock = Stopwatch.StartNew();
         SettleDrain(events);
         var states = revoked.Select(tp => _partitions.GetValueOrDefault(tp.Partition.Value)).OfType<PartitionState>().ToList();
         if (states.Count == 0)
@@ -356,7 +363,7 @@ internal sealed class KafkaWorker
         ProcessReady(events, states);
         _committer!.CheckpointAndCommit(events, states, wait: true);
         Drop(states.Select(s => s.Partition).ToList());
-        Log.Information("Partitions {Partitions} revoked: checkpointed and committed", states.Select(s => s.Partition).ToArray());
+        Log.Information("Partitions {Partitions} revoked: checkpointed and committed in {Elapsed:0} ms", states.Select(s => s.Partition).ToArray(), clock.Elapsed.TotalMilliseconds);
     }
 
     private void OnLost(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> lost)

@@ -107,6 +107,76 @@ internal sealed class WorkerGroup : IDisposable
     /// <summary>Each member's ownership changes and warnings, for a failure message.</summary>
     public string Timeline() => string.Join("\n----\n", Members.Select(m => string.Join("\n", m.Errors.Split('\n').Where(l => l.Contains("assigned", StringComparison.Ordinal) || l.Contains("revoked", StringComparison.Ordinal) || l.Contains("lost", StringComparison.Ordinal) || l.Contains("WRN", StringComparison.Ordinal) && !l.Contains("Alert", StringComparison.Ordinal) || l.Contains("ERR", StringComparison.Ordinal) || l.Contains("left group", StringComparison.Ordinal)).Select(l => l.Length > 240 ? l[..240] : l))));
 
+    /// <summary>
+    /// The members' ownership changes between <paramref name="from"/> and <paramref name="to"/>
+    /// in time order, each with the time the test read it and the member's number, to see where
+    /// a rebalance spends its time.
+    /// </summary>
+    public string TimedTimeline(DateTime from, DateTime to) => string.Join("\n", Members
+        .SelectMany((m, i) => m.TimedLines.Where(l => l.At >= from && l.At <= to && (l.Line.Contains("assigned", StringComparison.Ordinal) || l.Line.Contains("revoked", StringComparison.Ordinal) || l.Line.Contains("lost", StringComparison.Ordinal) || l.Line.Contains("joining group", StringComparison.Ordinal) || l.Line.Contains("left group", StringComparison.Ordinal))).Select(l => (l.At, Text: $"{l.At:HH:mm:ss.fff} m{i}: {(l.Line.Length > 160 ? l.Line[..160] : l.Line)}")))
+        .OrderBy(l => l.At)
+        .Select(l => l.Text));
+
+    /// <summary>
+    /// Every partition move after <paramref name="from"/>, from the members' logs: how long the
+    /// partition had no owner (from its revocation, its owner's clean exit or kill, to its
+    /// assignment elsewhere), and whether a member was assigned a partition another member still
+    /// held (the old owner not yet told). The time the group itself takes to hand a partition on,
+    /// apart from the scoring before and after.
+    /// </summary>
+    public List<(int Partition, DateTime At, TimeSpan Unowned, bool Overlap)> Handovers(DateTime from)
+    {
+        var changes = new List<(DateTime At, int Member, bool Assigned, int[] Partitions)>();
+        for (int i = 0; i < Members.Count; i++)
+        {
+            foreach (var (at, line) in Members[i].TimedLines)
+            {
+                var assigned = System.Text.RegularExpressions.Regex.Match(line, @"\bPartition (\d+) assigned");
+                var gone = System.Text.RegularExpressions.Regex.Match(line, @"\bPartitions \[([\d, ]*)\] (revoked|lost)");
+                if (assigned.Success)
+                {
+                    changes.Add((at, i, true, [int.Parse(assigned.Groups[1].Value, System.Globalization.CultureInfo.InvariantCulture)]));
+                }
+                else if (gone.Success)
+                {
+                    changes.Add((at, i, false, [.. gone.Groups[1].Value.Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).Select(p => int.Parse(p, System.Globalization.CultureInfo.InvariantCulture))]));
+                }
+                else if (line.Contains("Worker left group", StringComparison.Ordinal))
+                {
+                    changes.Add((at, i, false, [.. Enumerable.Range(0, Partitions)]));
+                }
+            }
+            if (Members[i].KilledAt is { } killed)
+            {
+                changes.Add((killed, i, false, [.. Enumerable.Range(0, Partitions)]));
+            }
+        }
+        var owner = new Dictionary<int, int>();
+        var released = new Dictionary<int, DateTime>();
+        var moves = new List<(int, DateTime, TimeSpan, bool)>();
+        foreach (var (at, member, isAssigned, partitions) in changes.OrderBy(c => c.At))
+        {
+            foreach (int p in partitions)
+            {
+                if (isAssigned)
+                {
+                    bool overlap = owner.TryGetValue(p, out int other) && other != member;
+                    if (at >= from && (overlap || released.ContainsKey(p)))
+                    {
+                        moves.Add((p, at, overlap ? TimeSpan.Zero : at - released[p], overlap));
+                    }
+                    owner[p] = member;
+                }
+                else if (owner.TryGetValue(p, out int held) && held == member)
+                {
+                    owner.Remove(p);
+                    released[p] = at;
+                }
+            }
+        }
+        return moves;
+    }
+
     /// <summary>Starts one more member; <paramref name="environment"/> overrides settings as an operator would.</summary>
     public WorkerProcess Start(IReadOnlyDictionary<string, string>? environment = null)
     {

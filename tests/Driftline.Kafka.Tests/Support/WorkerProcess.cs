@@ -10,6 +10,7 @@ internal sealed class WorkerProcess : IDisposable
     private readonly StringBuilder _stderr = new();
     private readonly HashSet<int> _owned = [];
     private readonly List<(DateTime At, int Count)> _ownership = [];
+    private readonly List<(DateTime At, string Line)> _timed = [];
 
     public WorkerProcess(string configPath, string bootstrap, IReadOnlyDictionary<string, string>? environment = null)
     {
@@ -33,6 +34,10 @@ internal sealed class WorkerProcess : IDisposable
             lock (_stderr)
             {
                 _stderr.AppendLine(e.Data);
+                if (e.Data is not null)
+                {
+                    _timed.Add((DateTime.UtcNow, e.Data));
+                }
                 Track(e.Data);
             }
         };
@@ -53,6 +58,18 @@ internal sealed class WorkerProcess : IDisposable
     }
 
     public bool HasExited => _process.HasExited;
+
+    /// <summary>Each line of standard error with the time this process read it (UTC), for timelines of a rebalance.</summary>
+    public IReadOnlyList<(DateTime At, string Line)> TimedLines
+    {
+        get
+        {
+            lock (_stderr)
+            {
+                return [.. _timed];
+            }
+        }
+    }
 
     /// <summary>Processor time the process has used so far (user and system).</summary>
     public TimeSpan ProcessorTime
@@ -130,10 +147,14 @@ internal sealed class WorkerProcess : IDisposable
     /// <summary>True once <see cref="Kill"/> was called.</summary>
     public bool Killed { get; private set; }
 
+    /// <summary>When <see cref="Kill"/> was called (UTC), or null.</summary>
+    public DateTime? KilledAt { get; private set; }
+
     /// <summary>SIGKILL: no chance to checkpoint or flush.</summary>
     public void Kill()
     {
         Killed = true;
+        KilledAt = DateTime.UtcNow;
         _process.Kill();
         _process.WaitForExit(10_000);
     }
