@@ -21,17 +21,20 @@ internal static class GroupBenchmark
     public static void Run(int events, int maxWorkers, int repeats)
     {
         Console.WriteLine($"group: {events:N0} events over 64 keys, half the labels late on their own topic, {Partitions} partitions; median of {repeats}");
-        Console.WriteLine("| members | records/s, total | records/s per member | member processor time per record | split |");
-        Console.WriteLine("| --- | --- | --- | --- | --- |");
+        Console.WriteLine("| members | records/s, total | records/s per member | member processor time per record | idle member's processor time (ms/s) | per record, less the members' idle time | split |");
+        Console.WriteLine("| --- | --- | --- | --- | --- | --- | --- |");
         for (int workers = 1; workers <= maxWorkers; workers++)
         {
             var runs = Enumerable.Range(0, repeats).Select(_ => Measure(workers, events)).OrderBy(r => r.RecordsPerSecond).ToList();
             var median = runs[runs.Count / 2];
-            Console.WriteLine($"| {workers} | {median.RecordsPerSecond / 1000:0}k | {median.RecordsPerSecond / workers / 1000:0}k | {median.MicrosecondsPerRecord:0.0} µs | {median.Split} |");
+            Console.WriteLine($"| {workers} | {median.RecordsPerSecond / 1000:0}k | {median.RecordsPerSecond / workers / 1000:0}k | {median.MicrosecondsPerRecord:0.0} µs | {median.IdleMsPerSecond:0.0} | {median.BusyMicrosecondsPerRecord:0.0} µs | {median.Split} |");
         }
     }
 
-    private sealed record Result(double RecordsPerSecond, double MicrosecondsPerRecord, string Split);
+    private sealed record Result(double RecordsPerSecond, double MicrosecondsPerRecord, double IdleMsPerSecond, double BusyMicrosecondsPerRecord, string Split);
+
+    /// <summary>How long the members sit idle, owning their partitions, before the stream, to learn what each costs with nothing to do.</summary>
+    private static readonly TimeSpan IdleWindow = TimeSpan.FromSeconds(3);
 
     private static Result Measure(int workers, int events)
     {
@@ -66,6 +69,12 @@ internal static class GroupBenchmark
         {
             string split = WaitForSplit(members);
             var records = TestStream.Generate(events, keys: 64, seed: 7).OrderBy(r => r.TimestampMs).ToList();
+            // Each member's own cost with nothing to do (its loop, librdkafka's fetches and
+            // heartbeats, statistics): paid once per member whatever its share of the stream.
+            var idleFrom = members.Select(m => m.ProcessorTime).ToList();
+            var idleClock = Stopwatch.StartNew();
+            Thread.Sleep(IdleWindow);
+            double idle = members.Select((m, i) => (m.ProcessorTime - idleFrom[i]).TotalSeconds).Sum() / idleClock.Elapsed.TotalSeconds;
             var cpu = members.Select(m => m.ProcessorTime).ToList();
             var clock = Stopwatch.StartNew();
             Produce(cluster.Bootstrap, prefix, records);
@@ -76,7 +85,8 @@ internal static class GroupBenchmark
             {
                 m.Terminate(TimeSpan.FromSeconds(30));
             }
-            return new Result(records.Count / elapsed.TotalSeconds, used * 1e6 / records.Count, split);
+            double busy = used - idle * elapsed.TotalSeconds;
+            return new Result(records.Count / elapsed.TotalSeconds, used * 1e6 / records.Count, idle * 1000 / workers, busy * 1e6 / records.Count, split);
         }
         finally
         {

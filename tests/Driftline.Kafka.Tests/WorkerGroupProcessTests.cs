@@ -186,7 +186,7 @@ public sealed class WorkerGroupProcessTests
         var predictions = Topics.ReadTimed(cluster.Bootstrap, group.PredictionsTopic, events.Count, TimeSpan.FromSeconds(60));
         Assert.Equal(events.Count, predictions.Select(p => p.Id).Distinct().Count());
         var before = WaitForCheckpointedEvents(group, events.Count);
-        var waiting = before.ToDictionary(c => c.Partition, c => c.Snapshot.Pending.Select(p => p.Id).ToHashSet(StringComparer.Ordinal));
+        var waiting = before.ToDictionary(c => c.Partition, c => c.Snapshot.Pending.Where(p => !p.Labelled).Select(p => p.Id).ToHashSet(StringComparer.Ordinal));
         Assert.Equal(late.Select(r => r.Id).Order(StringComparer.Ordinal), waiting.Values.SelectMany(w => w).Order(StringComparer.Ordinal));
         var moved = killed.Owned.Concat(stopped.Owned).ToList();
 
@@ -206,7 +206,8 @@ public sealed class WorkerGroupProcessTests
         {
             Assert.True(waiting[p].Count > 0, $"partition {p} had no prediction waiting for a label");
             Assert.Equal(waiting[p].Count, after[p].Snapshot.Counters.LateLabels);
-            Assert.Empty(after[p].Snapshot.Pending);
+            // The graded stay in the store a while (a second label for them is a duplicate); none still waits.
+            Assert.DoesNotContain(after[p].Snapshot.Pending, x => !x.Labelled);
         }
         Assert.Equal(0, after.Values.Sum(c => c.Snapshot.Counters.UnknownLabels + c.Snapshot.Counters.DuplicateLabels));
         Assert.Equal(late.Count, after.Values.Sum(c => c.Snapshot.Counters.LateLabels));

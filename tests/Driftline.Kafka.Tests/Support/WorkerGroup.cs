@@ -201,7 +201,7 @@ internal sealed class WorkerGroup : IDisposable
         var since = DateTime.UtcNow;
         while (true)
         {
-            foreach (var m in Members.Where(m => m.HasExited && !m.Killed))
+            foreach (var m in Members.Where(m => m.HasExited && !m.Killed && !m.Terminated))
             {
                 throw new Xunit.Sdk.XunitException("a member exited early:\n" + m.Errors);
             }

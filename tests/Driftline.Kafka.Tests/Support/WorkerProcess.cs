@@ -159,9 +159,13 @@ internal sealed class WorkerProcess : IDisposable
         _process.WaitForExit(10_000);
     }
 
+    /// <summary>True once <see cref="Terminate"/> was called: the member was asked to leave.</summary>
+    public bool Terminated { get; private set; }
+
     /// <summary>SIGTERM, then the exit code.</summary>
     public int Terminate(TimeSpan limit)
     {
+        Terminated = true;
         using (var kill = Process.Start("kill", ["-TERM", _process.Id.ToString(System.Globalization.CultureInfo.InvariantCulture)]))
         {
             kill.WaitForExit();
