@@ -70,10 +70,14 @@ public sealed class WorkerGroupProcessTests
         var feedStart = DateTime.UtcNow;
         feed.Start();
         var clock = System.Diagnostics.Stopwatch.StartNew();
+        // Each change waits for the one before to take effect, so on a loaded machine, where a
+        // process can take seconds to start, the changes still follow one another.
         WaitUntil(clock, 2.0);
         var b = group.Start();
+        WaitUntilOwns(b);
         WaitUntil(clock, 4.0);
         var c = group.Start();
+        WaitUntilOwns(c);
         WaitUntil(clock, 6.0);
         Assert.Equal(0, b.Terminate(TimeSpan.FromSeconds(10)));
         WaitUntil(clock, 8.0);
@@ -276,6 +280,15 @@ public sealed class WorkerGroupProcessTests
     /// with the default), where a broker ends the round once every member has rejoined.
     /// </summary>
     internal static readonly Dictionary<string, string> Detect = new() { ["session.timeout.ms"] = "1500", ["heartbeat.interval.ms"] = "150" };
+
+    private static void WaitUntilOwns(WorkerProcess member)
+    {
+        var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(20);
+        while (member.Owned.Count == 0 && DateTime.UtcNow < deadline && !member.HasExited)
+        {
+            Thread.Sleep(20);
+        }
+    }
 
     private static void WaitUntil(System.Diagnostics.Stopwatch clock, double seconds)
     {
