@@ -22,12 +22,12 @@ namespace Driftline.Core.Recalibration;
 /// within ±20; a label whose update is not finite is ignored (the pair stays as it was).
 /// </para>
 /// <para>
-/// Progressive: <see cref="Apply"/> uses only labels given to <see cref="Learn"/> before it.
+/// Progressive: <see cref="Apply(double)"/> uses only labels given to <see cref="Learn(double, int)"/> before it.
 /// The correction fixes calibration, not ranking: for b &gt; 0 it is monotone, so the order of
 /// the predictions (and AUC) is unchanged.
 /// </para>
 /// </remarks>
-internal sealed class LogOddsRecalibration
+internal sealed class LogOddsRecalibration : IRecalibration
 {
     private const double InterceptBound = 20;
     private const int NewtonSteps = 2;
@@ -58,7 +58,7 @@ internal sealed class LogOddsRecalibration
     public long Labels { get; private set; }
 
     /// <summary>
-    /// Whether <see cref="Apply"/> corrects: from <see cref="RecalibrationOptions.MinLabels"/> labels on,
+    /// Whether <see cref="Apply(double)"/> corrects: from <see cref="RecalibrationOptions.MinLabels"/> labels on,
     /// always for <see cref="RecalibrationMode.Always"/>, and while a calibration rule holds it for
     /// <see cref="RecalibrationMode.OnAlert"/>.
     /// </summary>
@@ -69,6 +69,15 @@ internal sealed class LogOddsRecalibration
 
     /// <summary>The probability to serve for the model's own <paramref name="p"/>.</summary>
     public double Apply(double p) => Serving ? Correct(p) : p;
+
+    /// <inheritdoc/>
+    public IReadOnlyList<(double Intercept, double Slope)> Parameters => [(_a, _b)];
+
+    /// <inheritdoc/>
+    public void Apply(ReadOnlySpan<double> raw, Span<double> served) => served[0] = Apply(raw[0]);
+
+    /// <inheritdoc/>
+    public void Learn(ReadOnlySpan<double> raw, int y) => Learn(raw[0], y);
 
     /// <summary>σ(a + b · logit p), whether or not the correction is being served.</summary>
     public double Correct(double p) => Sigmoid(_a + _b * CalibrationSlope.Logit(p));
@@ -146,7 +155,7 @@ internal sealed class LogOddsRecalibration
     public void Import(RecalibrationState state)
     {
         ArgumentNullException.ThrowIfNull(state);
-        if (state.Curvature is not { Length: 3 } h || !double.IsFinite(state.Intercept) || !double.IsFinite(state.Slope)
+        if (state.Curvature is not { Length: 3 } h || state.Intercepts is not null || state.Slopes is not null || !double.IsFinite(state.Intercept) || !double.IsFinite(state.Slope)
             || !h.All(double.IsFinite) || h[0] < 0 || h[2] < 0 || state.Labels < 0 || state.ClearStreak < 0
             || Math.Abs(state.Intercept) > InterceptBound || state.Slope < _options.MinSlope || state.Slope > _options.MaxSlope)
         {
