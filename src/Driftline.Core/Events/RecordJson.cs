@@ -26,6 +26,16 @@ internal static class RecordJson
                 w.WriteNumber(names[k], classes[k]);
             }
             w.WriteEndObject();
+            if (p.RawClasses is { } raw)
+            {
+                // Recalibration on: p is served, p_raw the model's own, over the same classes.
+                w.WriteStartObject("p_raw"u8);
+                for (int k = 0; k < raw.Length; k++)
+                {
+                    w.WriteNumber(names[k], raw[k]);
+                }
+                w.WriteEndObject();
+            }
         }
         else
         {

@@ -53,10 +53,6 @@ internal sealed class DriftlineOptions
         errors.AddRange(Webhook.Validate());
         errors.AddRange(Recalibration.Validate());
         errors.AddRange(Challengers.Validate());
-        if (Recalibration.Enabled && Model.IsMulticlass)
-        {
-            errors.Add(new("Recalibration:Mode", "recalibration works on binary models only so far (the per-class vector scaling is not built)", "Leave Recalibration:Mode Off for a model with Model:Classes"));
-        }
         var rules = EffectiveAlerts;
         for (int i = 0; i < rules.Count; i++)
         {

@@ -30,7 +30,7 @@ internal sealed class KeyedModel
     public PriorBaseline Prior { get; set; }
 
     /// <summary>The live correction of this model's probabilities, when <c>Recalibration:Mode</c> is not Off; else null.</summary>
-    public Recalibration.LogOddsRecalibration? Recalibration { get; set; }
+    public Recalibration.IRecalibration? Recalibration { get; set; }
 
     /// <summary>Events scored by this model.</summary>
     public long Scored { get; set; }

@@ -53,6 +53,21 @@ internal sealed class PendingPrediction
     /// <summary>With recalibration on: the probability served for the event (binary); NaN otherwise.</summary>
     public double Served { get; set; } = double.NaN;
 
+    /// <summary>Multiclass with recalibration on: the class probabilities served (empty otherwise).</summary>
+    public ReadOnlySpan<double> ServedClassP => _servedClassP;
+
+    private double[] _servedClassP = [];
+
+    /// <summary>Multiclass with recalibration on: keeps the served class probabilities (the array is reused).</summary>
+    public void SetServed(ReadOnlySpan<double> served)
+    {
+        if (_servedClassP.Length != served.Length)
+        {
+            _servedClassP = new double[served.Length];
+        }
+        served.CopyTo(_servedClassP);
+    }
+
     /// <summary>Multiclass: the class probabilities emitted (empty for binary).</summary>
     public ReadOnlySpan<double> ClassP => _classP;
 

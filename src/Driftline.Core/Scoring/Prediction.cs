@@ -9,5 +9,6 @@ namespace Driftline.Core.Scoring;
 /// <param name="Classes">A multiclass model's probabilities in the order of <paramref name="ClassNames"/> (summing to 1); null for binary.</param>
 /// <param name="ClassNames">The class names (<c>Model:Classes</c>); null for binary.</param>
 /// <param name="Raw">With recalibration on: the model's own probability, <paramref name="P"/> being the served one; NaN otherwise.</param>
+/// <param name="RawClasses">Multiclass with recalibration on: the model's own class probabilities, <paramref name="Classes"/> being the served ones; null otherwise.</param>
 internal readonly record struct Prediction(string Id, string Key, double P, long ModelVersion, long TimeTicks,
-    double[]? Classes = null, IReadOnlyList<string>? ClassNames = null, double Raw = double.NaN);
+    double[]? Classes = null, IReadOnlyList<string>? ClassNames = null, double Raw = double.NaN, double[]? RawClasses = null);

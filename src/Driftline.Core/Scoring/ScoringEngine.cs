@@ -49,6 +49,7 @@ internal sealed class ScoringEngine
     private readonly int _outputs;
     private readonly double[] _p;
     private readonly double[] _priorP;
+    private readonly double[] _served;
     private readonly long[]? _confusion;
     private long _clockTicks = ParsedRecord.NoTime;
     private readonly long _maxSkewTicks;
@@ -87,19 +88,22 @@ internal sealed class ScoringEngine
         _outputs = options.Model.IsMulticlass ? options.Model.ClassCount : 1;
         _p = new double[_outputs];
         _priorP = new double[_outputs];
+        _served = new double[_outputs];
         _segments = options.Monitor.SegmentBy is null ? null : new SegmentTracker(options.Monitor.Window, options.Monitor.MaxSegments);
         if (options.Recalibration.Enabled)
         {
-            ServedTotals = new CalibrationTotals(bins);
-            ServedWindow = new CalibrationWindow(options.Monitor.Window, bins);
+            _servedGrading = new ServedGrading(_outputs, options.Monitor.Window, bins);
         }
     }
 
-    /// <summary>With recalibration on: whole-run measures of the served probabilities (the raw ones are <see cref="Totals"/>); else null.</summary>
-    public CalibrationTotals? ServedTotals { get; private set; }
+    private readonly ServedGrading? _servedGrading;
 
-    /// <summary>With recalibration on: the served probabilities over the report window; else null.</summary>
-    public CalibrationWindow? ServedWindow { get; private set; }
+    /// <summary>
+    /// With recalibration on: the served probabilities' measures over the report window
+    /// (<paramref name="total"/> false) or the whole run, as <see cref="Measures"/> gives the raw
+    /// model's; null with recalibration off.
+    /// </summary>
+    public CalibrationSnapshot? ServedMeasures(bool total) => _servedGrading?.Measures(total);
 
     /// <summary>Whole-run counts.</summary>
     public ScoringCounters Counters { get; private set; } = new();
@@ -287,12 +291,13 @@ internal sealed class ScoringEngine
         model.Scored++;
         Counters.Events++;
         // Progressive: the served probability uses only labels graded before this event.
-        double served = model.Recalibration?.Apply(p[0]) ?? double.NaN;
+        var served = Serve(model, p);
         _sink.OnPrediction(_outputs != 1
-            ? new Prediction(record.Id, model.Key, double.NaN, model.Learner.Updates, record.TimeTicks, (double[])p.Clone(), ClassNames)
-            : model.Recalibration is null
+            ? new Prediction(record.Id, model.Key, double.NaN, model.Learner.Updates, record.TimeTicks,
+                served.IsEmpty ? (double[])p.Clone() : served.ToArray(), ClassNames, RawClasses: served.IsEmpty ? null : (double[])p.Clone())
+            : served.IsEmpty
                 ? new Prediction(record.Id, model.Key, p[0], model.Learner.Updates, record.TimeTicks)
-                : new Prediction(record.Id, model.Key, served, model.Learner.Updates, record.TimeTicks, Raw: p[0]));
+                : new Prediction(record.Id, model.Key, served[0], model.Learner.Updates, record.TimeTicks, Raw: p[0]));
 
         if (record.HasLabel)
         {
@@ -305,7 +310,7 @@ internal sealed class ScoringEngine
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.SetProbabilities(p, priorP);
-        pending.Served = served;
+        KeepServed(pending, served);
         pending.Segment = record.Segment;
         pending.SetFeatures(_x.Slots, _x.Values);
         return StepOutcome.Scored;
@@ -335,11 +340,13 @@ internal sealed class ScoringEngine
         {
             double p = pending.P;
             double priorP = pending.PriorP;
-            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, pending.Segment, pending.Served);
+            double served = pending.Served;
+            Grade(model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), record.Label, record.Id, time, pending.Segment,
+                double.IsNaN(served) ? [] : new ReadOnlySpan<double>(in served));
         }
         else
         {
-            Grade(model, pending.ClassP, pending.ClassPriorP, record.Label, record.Id, time, pending.Segment);
+            Grade(model, pending.ClassP, pending.ClassPriorP, record.Label, record.Id, time, pending.Segment, pending.ServedClassP);
         }
         if (pending.Count > 0)
         {
@@ -370,11 +377,10 @@ internal sealed class ScoringEngine
         Counters.Probabilities++;
         // With recalibration on, monitor serves the corrected stream of a model it does not own:
         // each record's p is the raw one, and its served p goes out as a prediction.
-        double served = double.NaN;
-        if (model.Recalibration is { } recalibration)
+        var served = Serve(model, new ReadOnlySpan<double>(in p));
+        if (!served.IsEmpty)
         {
-            served = recalibration.Apply(p);
-            _sink.OnPrediction(new Prediction(record.Id, model.Key, served, recalibration.Labels, record.TimeTicks, Raw: p));
+            _sink.OnPrediction(new Prediction(record.Id, model.Key, served[0], model.Recalibration!.Labels, record.TimeTicks, Raw: p));
         }
         if (record.HasLabel)
         {
@@ -386,7 +392,7 @@ internal sealed class ScoringEngine
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.SetProbabilities(new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP));
-        pending.Served = served;
+        KeepServed(pending, served);
         pending.Segment = record.Segment;
         pending.SetFeatures([], []);
         return StepOutcome.ProbabilityRecorded;
@@ -403,16 +409,24 @@ internal sealed class ScoringEngine
         }
         model.Prior.Predict(_priorP);
         Counters.Probabilities++;
+        // As for a binary model: with recalibration on, the served class probabilities go out.
+        var served = Serve(model, p);
+        if (!served.IsEmpty)
+        {
+            _sink.OnPrediction(new Prediction(record.Id, model.Key, double.NaN, model.Recalibration!.Labels, record.TimeTicks,
+                served.ToArray(), ClassNames, RawClasses: p.ToArray()));
+        }
         if (record.HasLabel)
         {
             Counters.InlineLabels++;
-            Grade(model, p, _priorP, record.Label, record.Id, time, record.Segment);
+            Grade(model, p, _priorP, record.Label, record.Id, time, record.Segment, served);
             InlineLabelled.Add(record.Id);
             return StepOutcome.ProbabilityRecorded;
         }
         var pending = Pending.Add(record.Id, time);
         pending.Model = index;
         pending.SetProbabilities(p, _priorP);
+        KeepServed(pending, served);
         pending.Segment = record.Segment;
         pending.SetFeatures([], []);
         return StepOutcome.ProbabilityRecorded;
@@ -422,7 +436,7 @@ internal sealed class ScoringEngine
     // pair itself. Multiclass: (p_y, 1) for the whole model, whose log-loss is then −ln p_y,
     // and (p_k, [y = k]) for each class k against the rest.
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    private void Grade(KeyedModel model, ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, int y, string id, long timeTicks, string? segment, double served = double.NaN)
+    private void Grade(KeyedModel model, ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, int y, string id, long timeTicks, string? segment, ReadOnlySpan<double> served)
     {
         model.Prior.Add(y);
         Counters.Labels++;
@@ -431,10 +445,6 @@ internal sealed class ScoringEngine
         {
             _segments?.Add(segment, p[0], y);
             GradeChannel(_channels[0], p[0], priorP[0], y, id, timeTicks, explain: true);
-            if (model.Recalibration is { } recalibration)
-            {
-                Recalibrate(recalibration, p[0], served, y);
-            }
         }
         else
         {
@@ -455,6 +465,10 @@ internal sealed class ScoringEngine
             {
                 GradeChannel(_channels[k + 1], p[k], priorP[k], k == y ? 1 : 0, id, timeTicks, explain: true);
             }
+        }
+        if (model.Recalibration is { } recalibration)
+        {
+            Recalibrate(recalibration, p, served, y);
         }
         if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
         {
@@ -501,23 +515,51 @@ internal sealed class ScoringEngine
     // The windows and rules above watch the raw model, which is still broken and must say so;
     // the served stream is measured beside it. Then the correction learns from the label, after
     // the label's own served probability was made (progressive).
-    private void Recalibrate(LogOddsRecalibration recalibration, double raw, double served, int y)
+    // A prediction restored from a snapshot written before its served probabilities were kept
+    // has none: it is left out of the served measures rather than guessed.
+    private void Recalibrate(IRecalibration recalibration, ReadOnlySpan<double> raw, ReadOnlySpan<double> served, int y)
     {
-        if (double.IsFinite(served))
+        if (served.Length == raw.Length && double.IsFinite(served[0]))
         {
-            var terms = GradedTerms.Of(served, y, _edges);
-            ServedTotals!.Add(terms);
-            ServedWindow!.Add(terms);
+            _servedGrading!.Add(served, y);
         }
         recalibration.Learn(raw, y);
         if (_options.Recalibration.Mode == RecalibrationMode.OnAlert)
         {
+            // Any calibration rule of the model, whole or (multiclass) per class, engages it.
             bool raised = false;
-            foreach (var (rule, _) in _channels[0].Rules)
+            foreach (var channel in _channels)
             {
-                raised |= rule.Raised && rule.Options.WatchesCalibration;
+                foreach (var (rule, _) in channel.Rules)
+                {
+                    raised |= rule.Raised && rule.Options.WatchesCalibration;
+                }
             }
             recalibration.ObserveRules(raised);
+        }
+    }
+
+    // The probabilities to serve for the model's own p, in the engine's buffer; empty with
+    // recalibration off.
+    private ReadOnlySpan<double> Serve(KeyedModel model, ReadOnlySpan<double> p)
+    {
+        if (model.Recalibration is not { } recalibration)
+        {
+            return [];
+        }
+        recalibration.Apply(p, _served);
+        return _served;
+    }
+
+    private static void KeepServed(PendingPrediction pending, ReadOnlySpan<double> served)
+    {
+        if (served.Length > 1)
+        {
+            pending.SetServed(served);
+        }
+        else
+        {
+            pending.Served = served.IsEmpty ? double.NaN : served[0];
         }
     }
 
@@ -537,10 +579,17 @@ internal sealed class ScoringEngine
     /// <summary>The measures now, as reported every <c>Monitor:MetricsEvery</c> labels.</summary>
     public MetricsRow CurrentMetrics(long timeTicks) => new(Counters.Events, Counters.Labels, timeTicks,
         Measures(false), PriorMeasures(false), Measures(true), PriorMeasures(true), Counters.LateLabels, Pending.Expired,
-        ClassNames is null ? null : ClassMeasuresOf(false), ClassWiseEce(false), ServedWindow?.Current);
+        ClassNames is null ? null : ClassMeasuresOf(false), ClassWiseEce(false), ServedMeasures(false));
 
     /// <summary>The engine's whole state, for a checkpoint or a saved model.</summary>
-    public EngineSnapshot Snapshot() => new()
+    public EngineSnapshot Snapshot()
+    {
+        var snapshot = Capture();
+        _servedGrading?.Export(snapshot);
+        return snapshot;
+    }
+
+    private EngineSnapshot Capture() => new()
     {
         Options = _options,
         Models = _models.Select(m => new ModelSnapshot
@@ -565,6 +614,7 @@ internal sealed class ScoringEngine
             PriorP = e.Labelled || _outputs != 1 ? 0 : e.PriorP,
             ClassP = e.Labelled || _outputs == 1 ? null : e.ClassP.ToArray(),
             ClassPriorP = e.Labelled || _outputs == 1 ? null : e.ClassPriorP.ToArray(),
+            ServedClassP = e.Labelled || e.ServedClassP.IsEmpty ? null : e.ServedClassP.ToArray(),
             Served = e.Labelled || !double.IsFinite(e.Served) ? null : e.Served,
             Labelled = e.Labelled,
             Slots = e.Labelled ? null : e.Slots.ToArray(),
@@ -585,8 +635,6 @@ internal sealed class ScoringEngine
         Confusion = _confusion?.ToArray(),
         Counters = Counters.Copy(),
         ClockTicks = _clockTicks,
-        ServedTotals = ServedTotals?.ToState(),
-        ServedWindow = ServedWindow?.ToArray(),
     };
 
     /// <summary>
@@ -645,6 +693,10 @@ internal sealed class ScoringEngine
             if (e.ClassP is { } classP && e.ClassPriorP is { } classPriorP)
             {
                 slot.SetProbabilities(classP, classPriorP);
+                if (e.ServedClassP is { } servedClassP && servedClassP.Length == classP.Length)
+                {
+                    slot.SetServed(servedClassP);
+                }
             }
             else
             {
@@ -697,14 +749,7 @@ internal sealed class ScoringEngine
         }
         Counters = snapshot.Counters.Copy();
         _clockTicks = snapshot.ClockTicks;
-        if (ServedTotals is not null && snapshot.ServedTotals is { } servedTotals)
-        {
-            ServedTotals = CalibrationTotals.Restore(servedTotals);
-        }
-        if (ServedWindow is not null && snapshot.ServedWindow is { } servedWindow)
-        {
-            ServedWindow = CalibrationWindow.Restore(_options.Monitor.Window, _options.Monitor.Bins, servedWindow);
-        }
+        _servedGrading?.Import(snapshot);
     }
 
     private static ChannelSnapshot ExportChannel(GradingChannel channel) => new()
@@ -825,7 +870,7 @@ internal sealed class ScoringEngine
         index = _models.Count;
         _models.Add(new KeyedModel(key, _options.Model)
         {
-            Recalibration = _options.Recalibration.Enabled ? new LogOddsRecalibration(_options.Recalibration) : null,
+            Recalibration = _options.Recalibration.Enabled ? IRecalibration.Create(_options.Recalibration, _outputs) : null,
         });
         _modelIndex.Add(key, index);
         return index;

@@ -89,6 +89,17 @@ internal sealed class EngineSnapshot
     /// <summary>With recalibration on: the served probabilities' report window, oldest first; null otherwise.</summary>
     public GradedPrediction[]? ServedWindow { get; set; }
 
+    /// <summary>
+    /// Multiclass with recalibration on: the served top label's totals, then each class's against
+    /// the rest (<see cref="ServedTotals"/> being the true class's); null otherwise.
+    /// </summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public List<CalibrationTotalsState>? ServedClassTotals { get; set; }
+
+    /// <summary>Multiclass with recalibration on: the windows in the order of <see cref="ServedClassTotals"/>; null otherwise.</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public List<GradedPrediction[]>? ServedClassWindows { get; set; }
+
     /// <summary>Latest event time seen (UTC ticks), or no time.</summary>
     public long ClockTicks { get; set; }
 
@@ -168,6 +179,10 @@ internal sealed class PendingSnapshot
     /// <summary>Multiclass: the class prior's probabilities at the same moment.</summary>
     [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
     public double[]? ClassPriorP { get; set; }
+
+    /// <summary>Multiclass with recalibration on: the class probabilities served (null otherwise or once labelled).</summary>
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public double[]? ServedClassP { get; set; }
 
     /// <summary>Already graded (kept to recognise duplicates).</summary>
     public bool Labelled { get; set; }

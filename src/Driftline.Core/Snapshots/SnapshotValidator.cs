@@ -73,11 +73,13 @@ internal static class SnapshotValidator
                 // The same checks the layer makes when it imports the state, named by place here.
                 try
                 {
-                    new Recalibration.LogOddsRecalibration(options.Recalibration).Import(recalibration);
+                    Recalibration.IRecalibration.Create(options.Recalibration, options.Model.IsMulticlass ? options.Model.ClassCount : 1).Import(recalibration);
                 }
                 catch (ArgumentException)
                 {
-                    throw Damage(at + ".recalibration", $"is impossible: it needs a finite intercept within ±20, a slope within {options.Recalibration.MinSlope}–{options.Recalibration.MaxSlope} and three finite curvature terms");
+                    throw Damage(at + ".recalibration", options.Model.IsMulticlass
+                        ? $"is impossible: vector scaling over {options.Model.ClassCount} classes needs {options.Model.ClassCount} finite intercepts within ±20 and slopes within {options.Recalibration.MinSlope}–{options.Recalibration.MaxSlope}, and a {2 * options.Model.ClassCount} × {2 * options.Model.ClassCount} finite curvature"
+                        : $"is impossible: it needs a finite intercept within ±20, a slope within {options.Recalibration.MinSlope}–{options.Recalibration.MaxSlope} and three finite curvature terms");
                 }
             }
             if (options.Model.IsMulticlass != model.PriorClassCounts is not null
@@ -192,6 +194,10 @@ internal static class SnapshotValidator
             if ((p.ClassP is null) != (p.ClassPriorP is null) || (p.ClassP is not null && (p.ClassP.Length != p.ClassPriorP!.Length || p.ClassP.Concat(p.ClassPriorP).Any(v => !Probability(v)))))
             {
                 throw Damage(at, "class_p and class_prior_p differ in length or hold a probability outside 0–1");
+            }
+            if (p.ServedClassP is { } servedClassP && (p.ClassP is null || servedClassP.Length != p.ClassP.Length || servedClassP.Any(v => !Probability(v))))
+            {
+                throw Damage(at, "served_class_p is not one probability per class of class_p");
             }
             if ((p.Slots is null) != (p.Values is null) || (p.Slots is not null && p.Slots.Length != p.Values!.Length))
             {

@@ -79,10 +79,12 @@ internal sealed class CheckCommand(CommandContext context)
         o.WriteLine($"Input: lines and Kafka messages up to {options.Input.MaxLineBytes:N0} bytes, ids, keys and feature names and values up to {options.Input.MaxTextBytes:N0} bytes; longer ones are dead letters.");
         o.WriteLine($"Monitor: rolling window of {options.Monitor.Window:N0} labels, {options.Monitor.Bins} reliability bins, a metrics row every {options.Monitor.MetricsEvery:N0} labels.");
         var recal = options.Recalibration;
+        // Multiclass: the same layer per class (vector scaling), renormalised by the softmax.
+        string form = options.Model.IsMulticlass ? "softmax(b_k·ln p_k + a_k) per class" : "σ(a + b·logit p)";
         o.WriteLine(recal.Mode switch
         {
-            Core.Recalibration.RecalibrationMode.Always => $"Recalibration: every prediction is served as σ(a + b·logit p), fitted online (half-life {recal.HalfLife:N0} labels, b within {recal.MinSlope}–{recal.MaxSlope}, served from {recal.MinLabels:N0} labels on); p_raw keeps the model's own.",
-            Core.Recalibration.RecalibrationMode.OnAlert => $"Recalibration: served as σ(a + b·logit p) from a calibration rule's raise until the rules have been clear for {recal.ClearLabels:N0} labels (half-life {recal.HalfLife:N0} labels, b within {recal.MinSlope}–{recal.MaxSlope}); p_raw keeps the model's own.",
+            Core.Recalibration.RecalibrationMode.Always => $"Recalibration: every prediction is served as {form}, fitted online (half-life {recal.HalfLife:N0} labels, b within {recal.MinSlope}–{recal.MaxSlope}, served from {recal.MinLabels:N0} labels on); p_raw keeps the model's own.",
+            Core.Recalibration.RecalibrationMode.OnAlert => $"Recalibration: served as {form} from a calibration rule's raise until the rules have been clear for {recal.ClearLabels:N0} labels (half-life {recal.HalfLife:N0} labels, b within {recal.MinSlope}–{recal.MaxSlope}); p_raw keeps the model's own.",
             _ => "Recalibration: off (predictions carry the model's own p).",
         });
         o.WriteLine($"As champion: a challenger (replay --challenger) is declared better at error rate {options.Challengers.ErrorRate}, per-label log-loss differences clipped at {options.Challengers.LossClip} nats.");

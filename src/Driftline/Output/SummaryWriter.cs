@@ -65,11 +65,11 @@ internal static class SummaryWriter
             }
             w.WriteEndArray();
         }
-        if (engine.ServedTotals is { } servedTotals)
+        if (engine.ServedMeasures(total: true) is { } served)
         {
             // Recalibration on: the figures above are the raw model's (what the alerts watch);
-            // these are of the probabilities served, with each model's fitted correction.
-            var served = servedTotals.Current;
+            // these are of the probabilities served, with each model's fitted correction
+            // (multiclass: as the raw block, Brier summed over classes, ECE of the top label).
             w.WriteStartObject("served");
             Number(w, "log_loss", served.LogLoss);
             Number(w, "brier", served.Brier);
@@ -81,8 +81,25 @@ internal static class SummaryWriter
                 var r = m.Recalibration!;
                 w.WriteStartObject();
                 w.WriteString("key", m.Key);
-                Number(w, "intercept", r.Intercept);
-                Number(w, "slope", r.Slope);
+                if (engine.ClassNames is { } names)
+                {
+                    // Vector scaling: one pair per class.
+                    w.WriteStartArray("classes");
+                    for (int k = 0; k < r.Parameters.Count; k++)
+                    {
+                        w.WriteStartObject();
+                        w.WriteString("class", names[k]);
+                        Number(w, "intercept", r.Parameters[k].Intercept);
+                        Number(w, "slope", r.Parameters[k].Slope);
+                        w.WriteEndObject();
+                    }
+                    w.WriteEndArray();
+                }
+                else
+                {
+                    Number(w, "intercept", r.Parameters[0].Intercept);
+                    Number(w, "slope", r.Parameters[0].Slope);
+                }
                 w.WriteNumber("labels", r.Labels);
                 w.WriteBoolean("serving", r.Serving);
                 w.WriteEndObject();

@@ -108,9 +108,11 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         }
         data.Total = engine.Measures(total: true);
         data.PriorTotal = engine.PriorMeasures(total: true);
-        data.ServedTotal = engine.ServedTotals?.Current;
+        data.ServedTotal = engine.ServedMeasures(total: true);
         data.Recalibrations.Clear();
-        data.Recalibrations.AddRange(engine.Models.Where(m => m.Recalibration is not null).Select(m => (m.Key, m.Recalibration!.Intercept, m.Recalibration.Slope)));
+        // One pair per model (binary), or per model and class (vector scaling).
+        data.Recalibrations.AddRange(engine.Models.Where(m => m.Recalibration is not null).SelectMany(m => m.Recalibration!.Parameters.Select((x, k) =>
+            (engine.ClassNames is { } names ? $"{m.Key}: {names[k]}" : m.Key, x.Intercept, x.Slope))));
         data.Counters = engine.Counters.Copy();
         data.ExpiredLabels = engine.Pending.Expired;
         data.WaitingLabels = engine.Pending.Waiting;
@@ -145,7 +147,7 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
             window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired,
             window.Brier, WindowAuc(engine, labels), engine.ClockTicks, values,
             engine.ClassNames is null ? null : engine.ClassMeasuresOf(total: false).Select(c => c.MeanP - c.ObservedRate).ToArray(),
-            engine.ServedWindow?.Current.CalibrationInTheLarge ?? double.NaN, engine.ServedWindow?.Current.LogLoss ?? double.NaN));
+            engine.ServedMeasures(total: false)?.CalibrationInTheLarge ?? double.NaN, engine.ServedMeasures(total: false)?.LogLoss ?? double.NaN));
         if (points.Count >= MaxPoints)
         {
             // Keep every other point, then sample half as often.

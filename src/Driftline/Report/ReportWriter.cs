@@ -344,11 +344,15 @@ internal static class ReportWriter
         if (r.ServedTotal is { } served)
         {
             yield return ["log-loss, served (recalibrated)", Num(served.LogLoss)];
-            yield return ["expected calibration error, served", Num(served.Ece)];
-            yield return ["calibration-in-the-large, served", Num(served.CalibrationInTheLarge)];
-            foreach (var (key, a, b) in r.Recalibrations.Take(10))
+            if (classes)
             {
-                yield return [$"recalibration of '{key}' (p' = σ(a + b·logit p))", $"#num a = {a.ToString("0.000", C)}, b = {b.ToString("0.000", C)}"];
+                yield return ["Brier score summed over classes, served", Num(served.Brier)];
+            }
+            yield return [classes ? "expected calibration error of the top label, served" : "expected calibration error, served", Num(served.Ece)];
+            yield return [classes ? "mean top-label probability − accuracy, served" : "calibration-in-the-large, served", Num(served.CalibrationInTheLarge)];
+            foreach (var (key, a, b) in r.Recalibrations.Take(classes ? 40 : 10))
+            {
+                yield return [classes ? $"vector scaling of '{key}' (p' = softmax(b·ln p + a))" : $"recalibration of '{key}' (p' = σ(a + b·logit p))", $"#num a = {a.ToString("0.000", C)}, b = {b.ToString("0.000", C)}"];
             }
         }
         yield return ["alerts raised / cleared", $"#num {c.AlertsRaised:N0} / {c.AlertsCleared:N0}"];
