@@ -47,7 +47,8 @@ internal static class PredictionLines
                 buffer.Write("\n"u8);
                 continue;
             }
-            var span = buffer.GetSpan(MaxFixedBytes + p.Id.Length + p.Key.Length + ClassBytes(p.ClassNames));
+            // With recalibration on, a multiclass line holds two objects over the classes.
+            var span = buffer.GetSpan(MaxFixedBytes + p.Id.Length + p.Key.Length + (p.RawClasses is null ? 1 : 2) * ClassBytes(p.ClassNames));
             int n = Put(span, 0, "{\"id\":\""u8);
             n += Encoding.ASCII.GetBytes(p.Id, span[n..]);
             n = Put(span, n, "\",\"key\":\""u8);
@@ -58,20 +59,13 @@ internal static class PredictionLines
             if (p.Classes is { } classes && p.ClassNames is { } names)
             {
                 // Multiclass: an object over the classes in the configured order.
-                span[n++] = (byte)'{';
-                for (int k = 0; k < classes.Length; k++)
+                n = ClassObject(span, n, classes, names, ref fits);
+                if (p.RawClasses is { } raw)
                 {
-                    if (k > 0)
-                    {
-                        span[n++] = (byte)',';
-                    }
-                    span[n++] = (byte)'"';
-                    n += Encoding.ASCII.GetBytes(names[k], span[n..]);
-                    n = Put(span, n, "\":"u8);
-                    fits &= classes[k].TryFormat(span[n..], out written, default, CultureInfo.InvariantCulture);
-                    n += written;
+                    // Recalibration on: p is served, p_raw the model's own.
+                    n = Put(span, n, ",\"p_raw\":"u8);
+                    n = ClassObject(span, n, raw, names, ref fits);
                 }
-                span[n++] = (byte)'}';
             }
             else
             {
@@ -98,6 +92,25 @@ internal static class PredictionLines
             n = Put(span, n, "}\n"u8);
             buffer.Advance(n);
         }
+    }
+
+    private static int ClassObject(Span<byte> span, int n, double[] values, IReadOnlyList<string> names, ref bool fits)
+    {
+        span[n++] = (byte)'{';
+        for (int k = 0; k < values.Length; k++)
+        {
+            if (k > 0)
+            {
+                span[n++] = (byte)',';
+            }
+            span[n++] = (byte)'"';
+            n += Encoding.ASCII.GetBytes(names[k], span[n..]);
+            n = Put(span, n, "\":"u8);
+            fits &= values[k].TryFormat(span[n..], out int written, default, CultureInfo.InvariantCulture);
+            n += written;
+        }
+        span[n++] = (byte)'}';
+        return n;
     }
 
     private static bool PlainNames(IReadOnlyList<string>? names)

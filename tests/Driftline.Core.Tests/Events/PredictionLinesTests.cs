@@ -46,13 +46,23 @@ public sealed class PredictionLinesTests
         from ticks in Ticks
         select new Prediction(id, "default", double.NaN, version, ticks, p, names);
 
+    // Multiclass with recalibration on: p the served object, p_raw the model's own (issue 11).
+    private static readonly Gen<Prediction> ServedClassPredictions =
+        from id in Text
+        from names in Gen.OneOf(Gen.Const(new[] { "on-time", "late", "failed", "cancelled" }), Gen.Const(new[] { "a", "b\"q", "c" }), Text.Array[3, 5])
+        from p in Gen.Double[0.0, 1.0].Array[names.Length]
+        from raw in Gen.Double[0.0, 1.0].Array[names.Length]
+        from version in Gen.Long[0, long.MaxValue]
+        from ticks in Ticks
+        select new Prediction(id, "default", double.NaN, version, ticks, p, names, RawClasses: raw);
+
     [Theory]
     [InlineData(true)]
     [InlineData(false)]
     public void Append_AnyPredictions_SameBytesAsTheJsonWriter(bool relaxed)
     {
         var options = new JsonWriterOptions { SkipValidation = true, Encoder = relaxed ? JavaScriptEncoder.UnsafeRelaxedJsonEscaping : JavaScriptEncoder.Default };
-        Gen.OneOf(Predictions, ClassPredictions).Array[0, 40].Sample(batch =>
+        Gen.OneOf(Predictions, ClassPredictions, ServedClassPredictions).Array[0, 40].Sample(batch =>
         {
             var fast = new ArrayBufferWriter<byte>();
             using (var json = new Utf8JsonWriter(fast, options))
