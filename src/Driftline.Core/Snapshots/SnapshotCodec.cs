@@ -32,7 +32,7 @@ internal static class SnapshotCodec
         }
         catch (JsonException ex)
         {
-            throw new InvalidDataException("not a Driftline model snapshot: " + ex.Message, ex);
+            throw new InvalidDataException("not a Driftline model snapshot: " + EnumNamesOnly.Describe(ex), ex);
         }
         if (snapshot is null || snapshot.Format != EngineSnapshot.FormatName)
         {

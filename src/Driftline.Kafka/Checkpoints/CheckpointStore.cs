@@ -65,7 +65,7 @@ internal sealed class CheckpointStore
         }
         catch (JsonException ex)
         {
-            throw new InvalidDataException($"{source} is not readable: {ex.Message}", ex);
+            throw new InvalidDataException($"{source} is not readable: {EnumNamesOnly.Describe(ex)}", ex);
         }
         if (checkpoint is null || checkpoint.Format != PartitionCheckpoint.FormatName || checkpoint.FormatVersion != PartitionCheckpoint.CurrentVersion)
         {

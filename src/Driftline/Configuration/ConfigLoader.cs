@@ -99,6 +99,16 @@ internal static class ConfigLoader
         if (path is not null)
         {
             var full = Path.GetFullPath(path);
+            if (Directory.Exists(full))
+            {
+                // A folder is not a missing file: say what it is.
+                errors = [new OptionError("--config", $"'{path}' is a folder, not a file", "Give the path of a JSON configuration file inside it (see config/ for examples)")
+                {
+                    Source = $"config {path}",
+                    Message = "it is a folder, not a file; give the path of a JSON configuration file (see config/ for examples)",
+                }];
+                return null;
+            }
             if (!File.Exists(full))
             {
                 errors = [new OptionError("--config", $"file '{path}' does not exist", "Give the path of a JSON configuration file (see config/ for examples)")

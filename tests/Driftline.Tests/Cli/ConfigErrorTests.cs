@@ -48,6 +48,18 @@ public sealed class ConfigErrorTests
     }
 
     [Fact]
+    public async Task Replay_ConfigIsAFolder_SaysItIsAFolder()
+    {
+        // It used to say the file does not exist, though the path plainly does.
+        using var dir = new TempFolder();
+        var run = await CliRun.RunAsync(["replay", dir.File("none.jsonl"), "--out", dir.File("out"), "--config", dir.Path], null, null);
+        Assert.Equal(3, run.ExitCode);
+        Assert.Contains("is a folder, not a file", run.Error, StringComparison.Ordinal);
+        Assert.DoesNotContain("does not exist", run.Error, StringComparison.Ordinal);
+        Assert.Single(run.Error.TrimEnd().Split('\n'));
+    }
+
+    [Fact]
     public async Task Replay_LearnerGivenAsNumber_IsRefusedBeforeReadingInput()
     {
         using var dir = new TempFolder();

@@ -48,6 +48,10 @@ public sealed class InspectCommandTests(DemoReplay replay) : IClassFixture<DemoR
 
         Assert.Equal(4, code);
         Assert.Single(stderr.TrimEnd().Split('\n'));
+        // In the user's terms: the field and the names it takes, not a .NET type name.
+        Assert.DoesNotContain("Driftline.Core", stderr, StringComparison.Ordinal);
+        Assert.Contains(name.Split(':')[0].Trim('"'), stderr, StringComparison.Ordinal);
+        Assert.Contains(name.Split(':')[1].Trim('"'), stderr, StringComparison.Ordinal);
     }
 
     [Fact]
