@@ -38,6 +38,30 @@ public sealed class RunStdinTests
     }
 
     [Fact]
+    public async Task Run_NoBootstrapMulticlassRecalibrated_PredictionsCarryServedAndRawClassObjects()
+    {
+        // Issue 11: vector scaling on the worker's predictions, as in replay and monitor.
+        using var dir = new TempDir();
+        string config = Path.Combine(dir.Path, "c.json");
+        File.WriteAllText(config, """{"Model":{"Classes":["on-time","late","failed"]},"Recalibration":{"Mode":"Always","MinLabels":20}}""");
+        var input = new StringBuilder();
+        string[] classes = ["on-time", "late", "failed"];
+        for (int i = 0; i < 200; i++)
+        {
+            input.Append($"{{\"id\":\"d-{i}\",\"features\":{{\"distance_km\":{1 + i % 7}}},\"label\":\"{classes[i % 3 == 0 ? 1 : i % 5 == 0 ? 2 : 0]}\"}}\n");
+        }
+
+        var (code, output, error) = await RunAsync(["run", "--config", config], input.ToString());
+
+        Assert.True(code == ExitCode.Ok, error);
+        var lines = output.Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonDocument.Parse(l).RootElement).ToList();
+        Assert.Equal(200, lines.Count);
+        Assert.All(lines, l => Assert.Equal(classes, l.GetProperty("p_raw").EnumerateObject().Select(c => c.Name)));
+        // Served from MinLabels on: the last predictions differ from the model's own.
+        Assert.Contains(lines.Skip(100), l => l.GetProperty("p").GetRawText() != l.GetProperty("p_raw").GetRawText());
+    }
+
+    [Fact]
     public async Task Run_NoBootstrap_AlertsOnStandardErrorArePrefixedLines()
     {
         var (code, _, error) = await RunAsync(["run"], Demo());
