@@ -13,6 +13,9 @@ return args.FirstOrDefault() switch
     "hash-sweep" => HashSweep.Run(args.Skip(1).ToArray()),
     "classes" => ClassesBenchmark.Run(args.Skip(1).ToArray()),
     "pending" => PendingMemory.Run(args.Skip(1).ToArray()),
+    "startup" => StartupBenchmark.Run(args.Skip(1).ToArray()),
+    // The start-up benchmark's baseline: a .NET process that does nothing.
+    "noop" => 0,
     _ => Usage(),
 };
 
@@ -31,6 +34,6 @@ static int PrintCount(long events)
 
 static int Usage()
 {
-    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K] | pending [EVENTS]");
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K] | pending [EVENTS] | startup [--app DIR] [--repeats K]");
     return 2;
 }

@@ -127,7 +127,7 @@ internal static class ReplayBenchmark
 
     // getrusage(RUSAGE_CHILDREN): user + system time of every child waited for so far (Linux
     // x64 layout: two timevals of two longs each at the start of struct rusage).
-    private static double ChildrenCpuSeconds()
+    internal static double ChildrenCpuSeconds()
     {
         var usage = new long[18];
         if (!OperatingSystem.IsLinux() || GetRusage(-1, usage) != 0)
