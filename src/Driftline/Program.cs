@@ -3,7 +3,10 @@ using Driftline.Configuration;
 using System.Runtime.InteropServices;
 using Serilog;
 
-Log.Logger = new LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger();
+// The console sink is built on the first log event: a replay that logs nothing never pays for it.
+Log.Logger = new LoggerConfiguration()
+    .WriteTo.Sink(new DeferredSink(() => new LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger()))
+    .CreateLogger();
 try
 {
     using var signals = new StopSignals(args);
