@@ -71,9 +71,18 @@ internal sealed class CheckpointStore
         {
             throw new InvalidDataException($"{source} is not a version {PartitionCheckpoint.CurrentVersion} Driftline partition checkpoint");
         }
-        if (checkpoint.Snapshot.Format != EngineSnapshot.FormatName || checkpoint.Snapshot.FormatVersion != EngineSnapshot.CurrentVersion)
+        if (checkpoint.Snapshot is null || checkpoint.Snapshot.Format != EngineSnapshot.FormatName || checkpoint.Snapshot.FormatVersion != EngineSnapshot.CurrentVersion)
         {
             throw new InvalidDataException($"{source} holds a model snapshot of another format version");
+        }
+        try
+        {
+            // The same checks as a model file's: damage is refused here, not met on the first event.
+            SnapshotValidator.Check(checkpoint.Snapshot);
+        }
+        catch (InvalidDataException ex)
+        {
+            throw new InvalidDataException($"{source} holds a damaged model snapshot: {ex.Message}", ex);
         }
         return checkpoint;
     }
@@ -91,19 +100,51 @@ internal sealed class CheckpointStore
     /// <summary>
     /// Writes a checkpoint atomically (temporary file, flush to disk, rename).
     /// <paramref name="json"/> is its <see cref="Serialize"/> form, made once for the file and the topic.
+    /// The temporary name is <c>NAME.PID.tmp</c>, as for the replay outputs: two workers sharing
+    /// the folder (a takeover on a shared volume) never write through each other's file, and the
+    /// file is created new, so nothing is opened through a link placed there.
     /// </summary>
     public void Write(PartitionCheckpoint checkpoint, byte[] json)
     {
         ArgumentNullException.ThrowIfNull(checkpoint);
         ArgumentNullException.ThrowIfNull(json);
         string path = PathOf(checkpoint.EventsTopic, checkpoint.Partition);
-        string temporary = path + ".tmp";
-        using (var file = new FileStream(temporary, FileMode.Create, FileAccess.Write, FileShare.None, 1 << 16))
+        string temporary = TemporaryName(path);
+        // Only this process's own leftover (a write that failed, or a reused process id) has this name.
+        File.Delete(temporary);
+        bool renamed = false;
+        try
         {
-            file.Write(json);
-            file.Flush(flushToDisk: true);
+            using (var file = new FileStream(temporary, FileMode.CreateNew, FileAccess.Write, FileShare.None, 1 << 16))
+            {
+                file.Write(json);
+                file.Flush(flushToDisk: true);
+            }
+            File.Move(temporary, path, overwrite: true);
+            renamed = true;
         }
-        File.Move(temporary, path, overwrite: true);
+        finally
+        {
+            if (!renamed)
+            {
+                TryDelete(temporary);
+            }
+        }
+    }
+
+    /// <summary>The temporary name this process writes <paramref name="path"/> through.</summary>
+    public static string TemporaryName(string path) => $"{path}.{Environment.ProcessId}.tmp";
+
+    private static void TryDelete(string path)
+    {
+        try
+        {
+            File.Delete(path);
+        }
+        catch (Exception ex) when (ex is IOException or UnauthorizedAccessException)
+        {
+            // The write's own error is the one to report; a leftover is replaced by the next write.
+        }
     }
 
     private static string Sanitise(string topic) =>

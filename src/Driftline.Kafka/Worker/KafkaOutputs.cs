@@ -89,20 +89,44 @@ internal sealed class KafkaOutputs : IScoringSink
         _json.WriteString("source_topic"u8, topic);
         _json.WriteNumber("partition"u8, partition);
         _json.WriteNumber("offset"u8, offset);
-        // The record as text when it is UTF-8, so a person can read it; cut like the file dead letters.
-        string raw;
-        try
+        // The record as text when it is UTF-8, so a person can read it, else base64.
+        var text = Utf8Prefix(value, MaxRawBytes);
+        if (System.Text.Unicode.Utf8.IsValid(text))
         {
-            raw = new UTF8Encoding(false, true).GetString(value.Length > 8_000 ? value[..8_000] : value);
+            _json.WriteString("raw"u8, text);
         }
-        catch (DecoderFallbackException)
+        else
         {
-            raw = Convert.ToBase64String(value.Length > 6_000 ? value[..6_000] : value);
             _json.WriteString("raw_encoding"u8, "base64");
+            _json.WriteBase64String("raw"u8, value.Length > MaxRawBase64Bytes ? value[..MaxRawBase64Bytes] : value);
         }
-        _json.WriteString("raw"u8, raw);
         _json.WriteEndObject();
         Send(_deadLetters, key);
+    }
+
+    /// <summary>Most bytes of a record a dead letter carries as text.</summary>
+    public const int MaxRawBytes = 8_000;
+
+    /// <summary>Most bytes of a record a dead letter carries as base64 (8,000 characters).</summary>
+    public const int MaxRawBase64Bytes = 6_000;
+
+    /// <summary>
+    /// The first <paramref name="max"/> bytes at most, cut before a UTF-8 sequence that would
+    /// be split (a continuation byte, 10xxxxxx, never starts a character; RFC 3629 section 3).
+    /// </summary>
+    public static ReadOnlySpan<byte> Utf8Prefix(ReadOnlySpan<byte> value, int max)
+    {
+        if (value.Length <= max)
+        {
+            return value;
+        }
+        int cut = max;
+        // A sequence is at most 4 bytes: look back at most 3 for the byte that starts it.
+        while (cut > 0 && cut > max - 3 && (value[cut] & 0xC0) == 0x80)
+        {
+            cut--;
+        }
+        return value[..cut];
     }
 
     private void Begin()

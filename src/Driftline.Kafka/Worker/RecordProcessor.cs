@@ -33,7 +33,7 @@ internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats, 
         {
             // The client has the message in memory already; refusing it keeps it off the parser and the outputs.
             outputs.DeadLetter(string.Create(CultureInfo.InvariantCulture, $"message of {value.Length:N0} bytes exceeds Input:MaxLineBytes ({input.MaxLineBytes:N0})"),
-                topic, partition, record.Offset, record.Key, value[..Math.Min(value.Length, 8_000)]);
+                topic, partition, record.Offset, record.Key, value);
             return false;
         }
         if (value.Trim(" \t\r\n"u8).IsEmpty)
