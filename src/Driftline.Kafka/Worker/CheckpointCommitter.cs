@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using Confluent.Kafka;
 using Driftline.Kafka.Checkpoints;
 using Driftline.Kafka.Options;
@@ -6,13 +7,13 @@ using Serilog;
 namespace Driftline.Kafka.Worker;
 
 /// <summary>
-/// The commit rule, in one place: flush the producer (every prediction before the offsets
-/// acknowledged), snapshot the engines, write the checkpoints (to the folder and, when
-/// <paramref name="topic"/> is given, to the checkpoint topic, acknowledged by the broker),
-/// and only then commit the events offsets. Used by the worker loop only; at most one write
-/// is in flight.
+/// The commit rule, in one place: cut (the positions, and the delivery epoch of every output
+/// before them), snapshot the engines at the cut, wait until the broker has acknowledged that
+/// epoch, write the checkpoints (to the folder and, when <paramref name="topic"/> is given, to
+/// the checkpoint topic, acknowledged by the broker), and only then commit the events offsets.
+/// Used by the worker loop only; at most one write is in flight.
 /// </summary>
-internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore store, TopicCheckpointWriter? topic, WorkerStats stats, IProducer<byte[]?, byte[]> producer, Action throwIfFatal)
+internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore store, TopicCheckpointWriter? topic, WorkerStats stats, DeliveryFailure delivery, Action throwIfFatal)
 {
     private static readonly TimeSpan FlushLimit = TimeSpan.FromSeconds(60);
 
@@ -20,39 +21,47 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
     private List<TopicPartitionOffset>? _toCommit;
     private DateTime _writtenAt;
 
-    /// <summary>When the last checkpoint's snapshots were taken (UTC).</summary>
+    /// <summary>When the last checkpoint was cut (UTC).</summary>
     public DateTime LastCheckpoint { get; private set; } = DateTime.UtcNow;
+
+    /// <summary>True while a background write has not been collected by <see cref="FinishWrite"/>.</summary>
+    public bool Writing => _writing is not null;
 
     /// <summary>True when a background write has finished and its offsets wait to be committed.</summary>
     public bool WriteCompleted => _writing is { IsCompleted: true };
 
     /// <summary>
-    /// Flush, then checkpoint, then commit: the order the commit rule needs. The snapshots are
-    /// taken here, on the loop thread; writing them (JSON, fsync, rename) runs on a pool thread
-    /// unless <paramref name="wait"/>, and the commit follows once the files are on disk (and on the checkpoint topic)
-    /// (<see cref="FinishWrite"/>), so the loop keeps scoring meanwhile.
+    /// Cuts a checkpoint of <paramref name="states"/> (engines idle: between two batches or in a
+    /// rebalance callback) and commits once it is durable. Unless <paramref name="wait"/>, the
+    /// loop is held only for the cut: each partition's snapshot is taken by the thread that
+    /// drains it next, before its next record (<see cref="PartitionState.DueCut"/>), and waiting
+    /// for the acknowledgements, the JSON and the disk write run on a thread of their own; the
+    /// commit follows in <see cref="FinishWrite"/>. With <paramref name="wait"/> (revocation,
+    /// shutdown) the snapshots are taken here and everything is done before it returns.
     /// </summary>
     public void CheckpointAndCommit(IConsumer<byte[]?, byte[]> events, List<PartitionState> states, bool wait)
     {
         // One write in flight at a time, so two versions of a file never race.
         FinishWrite(events);
-        var clock = System.Diagnostics.Stopwatch.StartNew();
-        while (producer.Flush(TimeSpan.FromMilliseconds(500)) > 0)
-        {
-            throwIfFatal();
-            if (clock.Elapsed > FlushLimit)
-            {
-                throw new KafkaWorkerException($"the broker has not acknowledged the predictions within {FlushLimit.TotalSeconds:0} s; stopping without committing (a restart resumes from the last checkpoint)");
-            }
-        }
         throwIfFatal();
-        stats.LastFlushMs = clock.Elapsed.TotalMilliseconds;
+        var clock = Stopwatch.StartNew();
         var now = DateTime.UtcNow;
-        var checkpoints = new List<PartitionCheckpoint>();
+        // Every output of the records before the cut is in this epoch; later ones go to the next.
+        var acknowledged = delivery.Cut();
+        var cuts = new List<CheckpointCut>();
         var commits = new List<TopicPartitionOffset>();
         foreach (var state in states.Where(s => s.Dirty))
         {
-            checkpoints.Add(state.ToCheckpoint(options.EventsTopic, options.LabelsTopic, now));
+            var cut = new CheckpointCut(state, options.EventsTopic, options.LabelsTopic, now);
+            if (wait)
+            {
+                cut.Take();
+            }
+            else
+            {
+                state.DueCut = cut;
+            }
+            cuts.Add(cut);
             state.CheckpointedEvents = state.EventsNext;
             state.CheckpointedLabels = state.LabelsNext;
             state.LabelsSinceCheckpoint = 0;
@@ -62,30 +71,42 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
             }
         }
         LastCheckpoint = now;
-        stats.LastCheckpointMs = clock.Elapsed.TotalMilliseconds;
-        if (checkpoints.Count == 0)
+        if (cuts.Count == 0)
         {
+            stats.LastCheckpointMs = clock.Elapsed.TotalMilliseconds;
             return;
         }
-        _writing = wait ? null : Task.Run(() => WriteAll(checkpoints));
         _toCommit = commits;
         _writtenAt = now;
         if (wait)
         {
-            WriteAll(checkpoints);
+            WriteAll(acknowledged, cuts);
+            stats.LastCheckpointMs = clock.Elapsed.TotalMilliseconds;
             FinishWrite(events);
+            return;
         }
+        // A thread of its own: it blocks on the snapshots and the broker, never on the pool the drains use.
+        _writing = Task.Factory.StartNew(() => WriteAll(acknowledged, cuts), CancellationToken.None, TaskCreationOptions.LongRunning, TaskScheduler.Default);
+        stats.LastCheckpointMs = clock.Elapsed.TotalMilliseconds;
     }
 
-    private void WriteAll(List<PartitionCheckpoint> checkpoints)
+    private void WriteAll(DeliveryEpoch acknowledged, List<CheckpointCut> cuts)
     {
-        foreach (var checkpoint in checkpoints)
+        var clock = Stopwatch.StartNew();
+        acknowledged.Wait(FlushLimit, throwIfFatal);
+        stats.LastFlushMs = clock.Elapsed.TotalMilliseconds;
+        double snapshots = 0;
+        foreach (var cut in cuts)
         {
+            var checkpoint = cut.Wait();
+            snapshots += cut.SnapshotMs;
             // Serialised once: the file and the topic carry the same bytes.
             byte[] json = CheckpointStore.Serialize(checkpoint);
             store.Write(checkpoint, json);
             topic?.Write(checkpoint, json);
         }
+        stats.LastSnapshotMs = snapshots;
+        stats.LastWriteMs = clock.Elapsed.TotalMilliseconds;
     }
 
     /// <summary>Waits for the checkpoint write in flight, if any, then commits the offsets it makes safe.</summary>
@@ -105,7 +126,12 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
             }
             catch (KafkaWorkerException)
             {
-                // The checkpoint topic did not acknowledge: nothing of this write may be committed.
+                // Unacknowledged outputs, or the checkpoint topic did not acknowledge: nothing of this write may be committed.
+                _toCommit = null;
+                throw;
+            }
+            catch
+            {
                 _toCommit = null;
                 throw;
             }

@@ -144,11 +144,14 @@ internal sealed class KafkaOutputs : IScoringSink
     private void Produce(string topic, byte[]? key, byte[] value)
     {
         var message = new Message<byte[]?, byte[]> { Key = key, Value = value };
+        // Counted before it is handed over, so the epoch never looks acknowledged while it is in flight.
+        var epoch = _failure.Current;
+        epoch.Sending();
         while (true)
         {
             try
             {
-                _producer.Produce(topic, message, _failure.Handler);
+                _producer.Produce(topic, message, epoch.Handler);
                 return;
             }
             catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
@@ -156,6 +159,11 @@ internal sealed class KafkaOutputs : IScoringSink
                 // Backpressure: the send queue is full, so wait for the broker to take some.
                 _stats.ProduceWaits++;
                 Thread.Sleep(5);
+            }
+            catch
+            {
+                epoch.NotSent();
+                throw;
             }
         }
     }

@@ -111,7 +111,7 @@ internal sealed class KafkaWorker
             var topicWriter = _options.CheckpointTopic is { } checkpointTopic
                 ? new TopicCheckpointWriter(producer, checkpointTopic, TopicChecks.RequireCheckpointTopic(producer, checkpointTopic))
                 : null;
-            _committer = new CheckpointCommitter(_options, _store, topicWriter, Stats, producer, ThrowIfFatal);
+            _committer = new CheckpointCommitter(_options, _store, topicWriter, Stats, _delivery, ThrowIfFatal);
             _loader = new CheckpointLoader(_options, _store, topicWriter);
             using var labels = HasLabels ? Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.LabelsConsumer(_options))
                 .SetErrorHandler((_, e) => OnError("labels consumer", e))
@@ -201,7 +201,8 @@ internal sealed class KafkaWorker
                 _committer.FinishWrite(events);
             }
             var now = DateTime.UtcNow;
-            if (reachable && (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
+            // A checkpoint still being written defers the next one rather than holding the loop for it.
+            if (reachable && !_committer!.Writing && (_partitions.Values.Any(p => p.LabelsSinceCheckpoint >= _options.CheckpointEveryLabels)
                 || (now - _committer!.LastCheckpoint >= _options.CheckpointEvery && _partitions.Values.Any(p => p.Dirty))))
             {
                 _committer!.CheckpointAndCommit(events, _partitions.Values.Where(p => p.Dirty).ToList(), wait: false);
@@ -220,7 +221,8 @@ internal sealed class KafkaWorker
         _intake.ApplyStaged(events, _labels);
     }
 
-    private List<PartitionState> Busy() => _partitions.Values.Where(s => s.Events.Count + s.Labels.Count > 0).ToList();
+    /// <summary>The partitions with records queued or a checkpoint cut to snapshot (so no cut outlives the next batch).</summary>
+    private List<PartitionState> Busy() => _partitions.Values.Where(s => s.Events.Count + s.Labels.Count > 0 || s.DueCut is not null).ToList();
 
     /// <summary>Waits for the batch in flight, if any, and collects its counts, model keys and resumes; returns the records it processed.</summary>
     private int FinishDrain(IConsumer<byte[]?, byte[]> events)

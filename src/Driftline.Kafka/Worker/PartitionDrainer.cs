@@ -78,6 +78,12 @@ internal sealed class PartitionDrainer(KafkaOptions options)
         }
         if (fault is not null)
         {
+            // A partition no thread reached keeps its cut: give it up, so the writer waiting for it stops.
+            foreach (var state in batch.Partitions)
+            {
+                state.DueCut?.Abandon();
+                state.DueCut = null;
+            }
             ExceptionDispatchInfo.Capture(fault).Throw();
         }
         return (batch.Partitions, batch.Done);
@@ -111,6 +117,12 @@ internal sealed class PartitionDrainer(KafkaOptions options)
     /// <summary>Runs one partition's records in merged order as far as the merge allows.</summary>
     private int Drain(PartitionState state, long now, long hold)
     {
+        if (state.DueCut is { } cut)
+        {
+            // The state at the cut, before this batch's records: the loop went on meanwhile.
+            state.DueCut = null;
+            cut.Take();
+        }
         int done = 0;
         while (state.TryTakeNext(now, hold, out var record, out bool fromLabels))
         {

@@ -134,6 +134,12 @@ internal sealed class PartitionState
         return false;
     }
 
+    /// <summary>
+    /// A checkpoint cut here and not yet snapshotted: the thread that drains the partition next
+    /// takes it before any record. Set and cleared only while the engine is idle or by its drain.
+    /// </summary>
+    public CheckpointCut? DueCut { get; set; }
+
     /// <summary>A checkpoint of the state now (the engine's snapshot and the positions it reflects).</summary>
     public PartitionCheckpoint ToCheckpoint(string eventsTopic, string? labelsTopic, DateTime now) => new()
     {

@@ -32,7 +32,7 @@ internal sealed class WorkerMeter : IDisposable
         _meter.CreateObservableGauge("driftline.partitions", () => stats.Partitions, "{partition}", "Events partitions owned");
         _meter.CreateObservableGauge("driftline.consumer.lag", () => stats.Lag, "{record}", "Events behind the end of the owned partitions, at the last checkpoint");
         _meter.CreateObservableGauge("driftline.checkpoint.age", () => stats.LastCheckpointAt == DateTime.MinValue ? 0 : (DateTime.UtcNow - stats.LastCheckpointAt).TotalSeconds, "s", "Time since the last checkpoint");
-        _meter.CreateObservableGauge("driftline.checkpoint.duration", () => stats.LastCheckpointMs / 1000, "s", "How long the last checkpoint (flush, snapshot, write) held the loop");
+        _meter.CreateObservableGauge("driftline.checkpoint.duration", () => stats.LastCheckpointMs / 1000, "s", "How long the last checkpoint held the loop (the cut; all of it at a revocation or a stop)");
         _meter.CreateObservableGauge("driftline.window.log_loss", () => Ready(stats) ? stats.LastMetrics!.Value.Window.LogLoss : double.NaN, "1", "Rolling-window log-loss of the latest partition to report");
         _meter.CreateObservableGauge("driftline.window.ece", () => Ready(stats) ? stats.LastMetrics!.Value.Window.Ece : double.NaN, "1", "Rolling-window expected calibration error of the latest partition to report");
     }

@@ -41,11 +41,17 @@ internal sealed class WorkerStats
     /// <summary>When the last checkpoint was written (UTC), or MinValue before the first.</summary>
     public DateTime LastCheckpointAt { get; set; } = DateTime.MinValue;
 
-    /// <summary>How long the last checkpoint held the loop, flush included, in milliseconds.</summary>
+    /// <summary>How long the last checkpoint held the loop (the cut; the whole checkpoint at a revocation or a stop), in milliseconds.</summary>
     public double LastCheckpointMs { get; set; }
 
-    /// <summary>How long the producer flush of the last checkpoint took, in milliseconds.</summary>
+    /// <summary>How long the last checkpoint waited for the broker to acknowledge the outputs before its cut (off the loop), in milliseconds.</summary>
     public double LastFlushMs { get; set; }
+
+    /// <summary>The last checkpoint's snapshots, summed over its partitions (each taken by the thread draining it), in milliseconds.</summary>
+    public double LastSnapshotMs { get; set; }
+
+    /// <summary>From the cut to the last file written of the last checkpoint (off the loop), in milliseconds.</summary>
+    public double LastWriteMs { get; set; }
 
     /// <summary>Partitions owned now.</summary>
     public int Partitions { get; set; }
