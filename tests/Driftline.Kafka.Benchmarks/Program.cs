@@ -45,7 +45,12 @@ try
     }
     if (part is "all" or "latency")
     {
-        bench.Latency(rate, TimeSpan.FromSeconds(3));
+        // Three alternating pairs: without a checkpoint in the window, then with one every 0.5 s.
+        for (int run = 0; run < 3; run++)
+        {
+            bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: null);
+            bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: TimeSpan.FromSeconds(0.5));
+        }
     }
 }
 catch (InvalidOperationException ex)

@@ -66,4 +66,76 @@ public sealed class WorkerCrashTests
         int differ = expected.Count(kv => actual.GetValueOrDefault(kv.Key) != kv.Value);
         Assert.True(differ == 0, $"{differ} ids' last prediction differs from an uninterrupted run's");
     }
+
+    [Fact]
+    public void Run_KilledWhileABackgroundCheckpointIsBeingWritten_LosesNothingAndDoublesNothing()
+    {
+        // The loop only cuts a checkpoint; its snapshot, the wait for the broker's
+        // acknowledgements and the file write run while the loop scores on. A SIGKILL in that
+        // write must leave the previous checkpoint in force and the offsets after it
+        // uncommitted: the restart resumes from it, no label lost or applied twice.
+        using var cluster = new MockCluster();
+        using var group = new WorkerGroup(cluster, "gw", Partitions, WorkerGroupProcessTests.Detect, checkpointEveryLabels: 20);
+        var records = TestStream.Generate(20_000, keys: 64, seed: 1312);
+        int events = records.Count(r => !r.IsLabel);
+        int late = records.Count(r => r.IsLabel);
+        Topics.ProduceStream(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records);
+
+        // The kill comes the moment a worker's temporary checkpoint file appears (inotify), so
+        // it lands inside the background write; a temporary file left behind proves it did.
+        int midWrite = 0;
+        var kills = new List<long>();
+        using var watcher = new PredictionWatcher(cluster.Bootstrap, group.PredictionsTopic);
+        for (int run = 0; run < 5; run++)
+        {
+            var member = group.Start();
+            int ids = watcher.Distinct + 200;
+            var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(60);
+            while (watcher.Distinct < ids)
+            {
+                Assert.True(DateTime.UtcNow < deadline && !member.HasExited, "the worker did not get on:\n" + member.Errors);
+                Thread.Sleep(1);
+            }
+            string own = $".{member.Id}.tmp";
+            using var killed = new ManualResetEventSlim();
+            using var files = new FileSystemWatcher(group.Checkpoints, "*" + own);
+            files.Created += (_, _) =>
+            {
+                member.Kill();
+                killed.Set();
+            };
+            files.EnableRaisingEvents = true;
+            Assert.True(killed.Wait(TimeSpan.FromSeconds(60)), "no checkpoint was written:\n" + member.Errors);
+            while (!member.HasExited)
+            {
+                Thread.Sleep(1);
+            }
+            var left = Directory.GetFiles(group.Checkpoints, "*" + own);
+            midWrite += left.Length > 0 ? 1 : 0;
+            foreach (var file in left)
+            {
+                File.Delete(file);
+            }
+            kills.Add(watcher.Distinct);
+        }
+        TestContext.Current.TestOutputHelper?.WriteLine($"killed at {string.Join(", ", kills)} of {events} ids predicted, {midWrite} of 5 with a temporary file left behind");
+        Assert.True(midWrite > 0, "no kill landed inside a checkpoint write");
+        Assert.True(kills[^1] < events, "the last kill came before the stream ended");
+
+        var last = group.Start();
+        Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(90)), "the last run did not finish\n" + group.Timeline());
+        Assert.Equal(0, last.Terminate(TimeSpan.FromSeconds(10)));
+
+        var checkpoints = CheckpointFiles.All(group.Checkpoints, group.EventsTopic, Partitions);
+        Assert.Equal(events, checkpoints.Sum(c => c.Snapshot.Counters.Events));
+        Assert.Equal(events, checkpoints.Sum(c => c.Snapshot.Counters.Labels));
+        Assert.Equal(late, checkpoints.Sum(c => c.Snapshot.Counters.LateLabels));
+        Assert.Equal(0, checkpoints.Sum(c => c.Snapshot.Counters.UnknownLabels + c.Snapshot.Counters.DuplicateLabels));
+
+        var actual = WorkerGroupProcessTests.LastPerId(Topics.ReadTimed(cluster.Bootstrap, group.PredictionsTopic, events, TimeSpan.FromSeconds(60)));
+        var expected = WorkerGroupProcessTests.Uninterrupted(cluster, group, events);
+        Assert.Equal(events, actual.Count);
+        int differ = expected.Count(kv => actual.GetValueOrDefault(kv.Key) != kv.Value);
+        Assert.True(differ == 0, $"{differ} ids' last prediction differs from an uninterrupted run's");
+    }
 }
