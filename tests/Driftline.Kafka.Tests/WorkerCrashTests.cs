@@ -105,7 +105,7 @@ public sealed class WorkerCrashTests
                 killed.Set();
             };
             files.EnableRaisingEvents = true;
-            Assert.True(killed.Wait(TimeSpan.FromSeconds(60)), "no checkpoint was written:\n" + member.Errors);
+            Assert.True(killed.Wait(TimeSpan.FromSeconds(60), TestContext.Current.CancellationToken), "no checkpoint was written:\n" + member.Errors);
             while (!member.HasExited)
             {
                 Thread.Sleep(1);
