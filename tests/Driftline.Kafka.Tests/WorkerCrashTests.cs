@@ -76,10 +76,13 @@ public sealed class WorkerCrashTests
         // uncommitted: the restart resumes from it, no label lost or applied twice.
         using var cluster = new MockCluster();
         using var group = new WorkerGroup(cluster, "gw", Partitions, WorkerGroupProcessTests.Detect, checkpointEveryLabels: 20);
-        var records = TestStream.Generate(20_000, keys: 64, seed: 1312);
+        var records = TestStream.Generate(30_000, keys: 64, seed: 1312);
         int events = records.Count(r => !r.IsLabel);
         int late = records.Count(r => r.IsLabel);
-        Topics.ProduceStream(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records);
+        // A live feed: with checkpoints off the loop a worker runs through a stream produced
+        // beforehand faster than five kills and restarts come, and a kill after the end proves nothing.
+        var feed = new Thread(() => Topics.ProducePaced(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records, eventsPerSecond: 1_000)) { IsBackground = true };
+        feed.Start();
 
         // The kill comes the moment a worker's temporary checkpoint file appears (inotify), so
         // it lands inside the background write; a temporary file left behind proves it did.
@@ -123,6 +126,7 @@ public sealed class WorkerCrashTests
         Assert.True(kills[^1] < events, "the last kill came before the stream ended");
 
         var last = group.Start();
+        Assert.True(feed.Join(TimeSpan.FromSeconds(90)), "the feed did not finish");
         Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(90)), "the last run did not finish\n" + group.Timeline());
         Assert.Equal(0, last.Terminate(TimeSpan.FromSeconds(10)));
 
