@@ -29,10 +29,12 @@ namespace Driftline.Kafka.Worker;
 /// had drained in line. librdkafka's own threads fetch ahead and send behind through bounded
 /// queues (fetch queue, send queue), with pausing and a full send queue as
 /// backpressure.</para>
-/// <para>Commit rule: a partition's offset is committed only after the producer has flushed
-/// (every prediction before it acknowledged by the broker) and the checkpoint holding the
-/// engine state at that offset, labels included, is on disk (and, with a checkpoint topic,
-/// acknowledged there). On assignment the worker restores the newer of the file and the
+/// <para>Commit rule: a partition's offset is committed only after every output produced
+/// before the checkpoint's cut has been acknowledged by the broker (its delivery epoch, see
+/// <see cref="CheckpointCommitter"/>) and the checkpoint holding the engine state at that
+/// offset, labels included, is on disk (and, with a checkpoint topic, acknowledged there).
+/// The loop only cuts; the partition's next drain takes the snapshot before its next record,
+/// and the rest runs on a writer thread. On assignment the worker restores the newer of the file and the
 /// topic's copy and seeks both partitions to the offsets it reflects, so a
 /// restart or a move never loses or doubles a label; predictions after the checkpoint may be
 /// emitted again (at least once).</para>
