@@ -136,10 +136,11 @@ public sealed class WorkerCrashTests
         Assert.Equal(late, checkpoints.Sum(c => c.Snapshot.Counters.LateLabels));
         Assert.Equal(0, checkpoints.Sum(c => c.Snapshot.Counters.UnknownLabels + c.Snapshot.Counters.DuplicateLabels));
 
+        // Every id predicted. Not compared with an uninterrupted run's predictions: on a live
+        // feed the merge order of an event and a label still on its way depends on arrival
+        // (src/Driftline.Kafka/README.md, "Order of events and labels"); the test above on
+        // recorded input checks that equality.
         var actual = WorkerGroupProcessTests.LastPerId(Topics.ReadTimed(cluster.Bootstrap, group.PredictionsTopic, events, TimeSpan.FromSeconds(60)));
-        var expected = WorkerGroupProcessTests.Uninterrupted(cluster, group, events);
         Assert.Equal(events, actual.Count);
-        int differ = expected.Count(kv => actual.GetValueOrDefault(kv.Key) != kv.Value);
-        Assert.True(differ == 0, $"{differ} ids' last prediction differs from an uninterrupted run's");
     }
 }
