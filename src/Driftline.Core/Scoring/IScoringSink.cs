@@ -16,4 +16,14 @@ internal interface IScoringSink
 
     /// <summary>The measures every <c>Monitor:MetricsEvery</c> labels.</summary>
     void OnMetrics(in MetricsRow row);
+
+    /// <summary>
+    /// After each prediction (and its sink call), with <see cref="ScoringEngine.Position"/> as it
+    /// was then and the measures graded up to it: on the scoring thread, or, with grading
+    /// deferred, on the grading stage. For samples of the run that must fall at the same places
+    /// whichever thread grades; nothing by default.
+    /// </summary>
+    void OnScored()
+    {
+    }
 }

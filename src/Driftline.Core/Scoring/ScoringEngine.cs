@@ -55,6 +55,10 @@ internal sealed class ScoringEngine
     private readonly long _maxSkewTicks;
     private string? _lastKey;
     private int _lastModel;
+    // With grading deferred: where the scoring thread leaves each batch's grading work.
+    private GradingLog? _deferred;
+    // While the grading stage works through a log: the position of the entry in hand.
+    private EnginePosition? _replaying;
 
     /// <summary>Creates an engine with no models yet; options must have been validated.</summary>
     public ScoringEngine(DriftlineOptions options, IScoringSink sink)
@@ -225,6 +229,90 @@ internal sealed class ScoringEngine
     /// </summary>
     public Action<GradedLabel>? LabelGraded { get; set; }
 
+    /// <summary>
+    /// Where the stream stands for what is being reported: the live counts on the scoring
+    /// thread, or, while <see cref="GradeDeferred"/> runs, the counts captured when the label or
+    /// prediction in hand was scored.
+    /// </summary>
+    public EnginePosition Position => _replaying ?? LivePosition;
+
+    private EnginePosition LivePosition => new(Counters.Events, Counters.Labels, Counters.LateLabels, Pending.Expired, _clockTicks);
+
+    /// <summary>
+    /// True when the windows, totals, alert rules and segments may be updated on a stage of their
+    /// own (<see cref="DeferGradingTo"/>): nothing the scoring thread does next depends on them.
+    /// Not with recalibration (the served probability of the next event learns from each label,
+    /// and with <c>Recalibration:Mode=OnAlert</c> from the rules' state), nor with a
+    /// <see cref="LabelGraded"/> listener (a challenger's decisions join the champion's alerts).
+    /// </summary>
+    public bool CanDeferGrading => !_options.Recalibration.Enabled && LabelGraded is null;
+
+    /// <summary>
+    /// From now on, graded labels (and the position after each prediction) go into
+    /// <paramref name="log"/> instead of being graded, until it is set to another log or null;
+    /// <see cref="GradeDeferred"/> then grades them, in order, on any one thread.
+    /// </summary>
+    /// <exception cref="InvalidOperationException">Grading cannot be deferred (<see cref="CanDeferGrading"/>).</exception>
+    public void DeferGradingTo(GradingLog? log)
+    {
+        if (log is not null && !CanDeferGrading)
+        {
+            throw new InvalidOperationException("grading cannot be deferred with recalibration or a LabelGraded listener");
+        }
+        _deferred = log;
+    }
+
+    /// <summary>
+    /// Grades what <paramref name="log"/> holds, in stream order: each label updates the windows,
+    /// totals, rules and segments and may raise alerts and metric rows into the sink, and the sink
+    /// hears of each prediction (<see cref="IScoringSink.OnScored"/>) between them, with
+    /// <see cref="Position"/> as it was when each was scored. The outputs are those of inline
+    /// grading, byte for byte. Not concurrently with itself; the scoring thread may go on.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    public void GradeDeferred(GradingLog log)
+    {
+        ArgumentNullException.ThrowIfNull(log);
+        var ticks = log.Ticks;
+        int t = 0;
+        try
+        {
+            foreach (ref readonly var entry in log.Labels)
+            {
+                for (; t < entry.Ticks; t++)
+                {
+                    _replaying = ticks[t];
+                    _sink.OnScored();
+                }
+                _replaying = entry.Position;
+                GradeMeasures(log.P(entry), log.PriorP(entry), entry.Y, entry.Id, entry.TimeTicks, entry.Segment);
+                MetricsIfDue(entry.TimeTicks);
+            }
+            for (; t < ticks.Length; t++)
+            {
+                _replaying = ticks[t];
+                _sink.OnScored();
+            }
+        }
+        finally
+        {
+            _replaying = null;
+        }
+    }
+
+    // After each prediction: the sink hears of it now, or the grading stage tells it later.
+    private void Scored()
+    {
+        if (_deferred is { } log)
+        {
+            log.AddTick(LivePosition);
+        }
+        else
+        {
+            _sink.OnScored();
+        }
+    }
+
     /// <summary>Hands <paramref name="alert"/> to this engine's sink, as if a rule had raised it (a challenger's decision, made outside the rules).</summary>
     public void Emit(AlertTransition alert) => _sink.OnAlert(alert);
 
@@ -298,6 +386,7 @@ internal sealed class ScoringEngine
             : served.IsEmpty
                 ? new Prediction(record.Id, model.Key, p[0], model.Learner.Updates, record.TimeTicks)
                 : new Prediction(record.Id, model.Key, served[0], model.Learner.Updates, record.TimeTicks, Raw: p[0]));
+        Scored();
 
         if (record.HasLabel)
         {
@@ -381,6 +470,7 @@ internal sealed class ScoringEngine
         if (!served.IsEmpty)
         {
             _sink.OnPrediction(new Prediction(record.Id, model.Key, served[0], model.Recalibration!.Labels, record.TimeTicks, Raw: p));
+            Scored();
         }
         if (record.HasLabel)
         {
@@ -438,9 +528,28 @@ internal sealed class ScoringEngine
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private void Grade(KeyedModel model, ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, int y, string id, long timeTicks, string? segment, ReadOnlySpan<double> served)
     {
+        // The prior predicts the next event and the label count numbers the labels: both stay
+        // with the scoring thread even when the rest of the grading is deferred.
         model.Prior.Add(y);
         Counters.Labels++;
+        if (_deferred is { } log)
+        {
+            log.AddLabel(p, priorP, y, id, timeTicks, segment, LivePosition);
+            return;
+        }
         LabelGraded?.Invoke(new GradedLabel(id, timeTicks, PredictionScores.LogLoss(_outputs == 1 ? p[0] : p[y], _outputs == 1 ? y : 1)));
+        GradeMeasures(p, priorP, y, id, timeTicks, segment);
+        if (model.Recalibration is { } recalibration)
+        {
+            Recalibrate(recalibration, p, served, y);
+        }
+        MetricsIfDue(timeTicks);
+    }
+
+    // The windows, totals, rules and segments of one graded label, on whichever thread grades.
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private void GradeMeasures(ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, int y, string id, long timeTicks, string? segment)
+    {
         if (_outputs == 1)
         {
             _segments?.Add(segment, p[0], y);
@@ -466,11 +575,11 @@ internal sealed class ScoringEngine
                 GradeChannel(_channels[k + 1], p[k], priorP[k], k == y ? 1 : 0, id, timeTicks, explain: true);
             }
         }
-        if (model.Recalibration is { } recalibration)
-        {
-            Recalibrate(recalibration, p, served, y);
-        }
-        if (Counters.Labels % _options.Monitor.MetricsEvery == 0)
+    }
+
+    private void MetricsIfDue(long timeTicks)
+    {
+        if (Position.Labels % _options.Monitor.MetricsEvery == 0)
         {
             _sink.OnMetrics(CurrentMetrics(timeTicks));
         }
@@ -505,7 +614,7 @@ internal sealed class ScoringEngine
                 }
                 var o = rule.Options;
                 double threshold = rule.Cusum is { } cusum ? (raised ? cusum.Threshold : cusum.ClearFraction * cusum.Threshold) : raised ? o.Raise : o.Clear;
-                _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, threshold, o.Window, id, timeTicks, Counters.Labels,
+                _sink.OnAlert(new AlertTransition(o.Name, raised, o.Metric, value, threshold, o.Window, id, timeTicks, Position.Labels,
                     o.Severity, explain ? AlertExplanation.Of(window, _segments?.Worst()) : null, o.RelativeTo, raised ? rule.Cusum?.RaisedBy?.Describe() : null,
                     channel.ClassName, Counters.Incidents));
             }
@@ -577,8 +686,10 @@ internal sealed class ScoringEngine
     }
 
     /// <summary>The measures now, as reported every <c>Monitor:MetricsEvery</c> labels.</summary>
-    public MetricsRow CurrentMetrics(long timeTicks) => new(Counters.Events, Counters.Labels, timeTicks,
-        Measures(false), PriorMeasures(false), Measures(true), PriorMeasures(true), Counters.LateLabels, Pending.Expired,
+    public MetricsRow CurrentMetrics(long timeTicks) => CurrentMetrics(timeTicks, Position);
+
+    private MetricsRow CurrentMetrics(long timeTicks, EnginePosition at) => new(at.Events, at.Labels, timeTicks,
+        Measures(false), PriorMeasures(false), Measures(true), PriorMeasures(true), at.LateLabels, at.Expired,
         ClassNames is null ? null : ClassMeasuresOf(false), ClassWiseEce(false), ServedMeasures(false));
 
     /// <summary>The engine's whole state, for a checkpoint or a saved model.</summary>

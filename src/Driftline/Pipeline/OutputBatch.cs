@@ -27,9 +27,13 @@ internal sealed class OutputBatch
     /// <summary>Rejected records.</summary>
     public List<DeadLetter> DeadLetters { get; } = [];
 
+    /// <summary>With grading deferred: the labels the scoring stage left for the grading stage.</summary>
+    public GradingLog Grading { get; } = new();
+
     /// <summary>Empties the batch, keeping its buffers.</summary>
     public void Clear()
     {
+        Grading.Clear();
         PredictionCount = 0;
         Alerts.Clear();
         Metrics.Clear();

@@ -83,6 +83,13 @@ internal sealed class ReplayPipeline
     /// </summary>
     public bool ProbabilitiesOnly { get; init; }
 
+    /// <summary>
+    /// Grade labels on a stage of their own between scoring and writing (the default), when
+    /// every lane's engine allows it (<see cref="ScoringEngine.CanDeferGrading"/>); false grades
+    /// on the scoring thread. The outputs are the same either way.
+    /// </summary>
+    public bool GradingStage { get; init; } = true;
+
     /// <summary>Runs the whole input through the engine into <paramref name="outputs"/>.</summary>
     public Task RunAsync(Stream input, ReplayOutputs outputs, CancellationToken cancellation) => RunAsync(input, [outputs], cancellation);
 
@@ -121,6 +128,13 @@ internal sealed class ReplayPipeline
         }
         var lines = Channel.CreateBounded<LineBatch>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
         var results = Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait });
+        // Grading (windows, totals, rules, segments, report samples) is the largest part of the
+        // scoring thread's work and nothing scored later depends on it, so it runs on a stage of
+        // its own fed each batch's labels in order (tests/Driftline.Benchmarks README).
+        bool defer = GradingStage && _lanes.All(l => l.Engine.CanDeferGrading);
+        var scored = defer
+            ? Channel.CreateBounded<OutputBatch[]>(new BoundedChannelOptions(BatchesInFlight) { SingleReader = true, SingleWriter = true, FullMode = BoundedChannelFullMode.Wait })
+            : results;
 
         // One stage failing stops the others, and its exception (not their cancellation) surfaces.
         // A stop asked by the caller (a signal) is not a failure: the reader stops, the scorer
@@ -135,8 +149,9 @@ internal sealed class ReplayPipeline
             // its own cost more in hand-offs between the two cores than it saved
             // (tests/Driftline.Benchmarks replay, same-run A/B).
             Stage(() => LineReader.RunAsync(source, _parser, linePool.Reader, lines.Writer, reading.Token, _lanes[0].Engine.Options.Input.MaxLineBytes), failed, cancellation),
-            Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, results.Writer, failed.Token, cancellation), failed, cancellation),
+            Stage(() => ScoreAsync(lines.Reader, linePool.Writer, outputPool.Reader, scored.Writer, defer, failed.Token, cancellation), failed, cancellation),
             Stage(() => WriteAsync(results.Reader, outputPool.Writer, write, failed.Token), failed, cancellation),
+            defer ? Stage(() => GradeAsync(scored.Reader, results.Writer, failed.Token), failed, cancellation) : Task.CompletedTask,
         ];
         try
         {
@@ -145,6 +160,14 @@ internal sealed class ReplayPipeline
         catch (Exception) when (stages.FirstOrDefault(t => t.IsFaulted && t.Exception!.InnerException is not OperationCanceledException) is { } failure)
         {
             System.Runtime.ExceptionServices.ExceptionDispatchInfo.Throw(failure.Exception!.InnerException!);
+        }
+        finally
+        {
+            foreach (var lane in _lanes)
+            {
+                lane.Engine.DeferGradingTo(null);
+                lane.Sink.Graded = null;
+            }
         }
     }
 
@@ -167,7 +190,7 @@ internal sealed class ReplayPipeline
         });
 
     private async Task ScoreAsync(ChannelReader<LineBatch> input, ChannelWriter<LineBatch> linePool,
-        ChannelReader<OutputBatch[]> outputPool, ChannelWriter<OutputBatch[]> output, CancellationToken cancellation, CancellationToken stop)
+        ChannelReader<OutputBatch[]> outputPool, ChannelWriter<OutputBatch[]> output, bool defer, CancellationToken cancellation, CancellationToken stop)
     {
         try
         {
@@ -180,6 +203,10 @@ internal sealed class ReplayPipeline
                     {
                         result[l].Clear();
                         _lanes[l].Sink.Current = result[l];
+                        if (defer)
+                        {
+                            _lanes[l].Engine.DeferGradingTo(result[l].Grading);
+                        }
                     }
                     for (int i = 0; i < batch.Count; i++)
                     {
@@ -277,6 +304,36 @@ internal sealed class ReplayPipeline
             raw = raw[..DeadLetter.MaxRawChars];
         }
         result.DeadLetters.Add(new DeadLetter(lineNumber, reason, raw));
+    }
+
+    // The grading stage: each lane's labels of a batch graded in order, their alerts and metric
+    // rows added to that batch, which then goes on to the writer.
+    private async Task GradeAsync(ChannelReader<OutputBatch[]> input, ChannelWriter<OutputBatch[]> output, CancellationToken cancellation)
+    {
+        try
+        {
+            while (await input.WaitToReadAsync(cancellation).ConfigureAwait(false))
+            {
+                while (input.TryRead(out var batch))
+                {
+                    for (int l = 0; l < _lanes.Length; l++)
+                    {
+                        var lane = _lanes[l];
+                        lane.Sink.Graded = batch[l];
+                        lane.Engine.GradeDeferred(batch[l].Grading);
+                        lane.Sink.Graded = null;
+                    }
+                    await output.WriteAsync(batch, cancellation).ConfigureAwait(false);
+                }
+            }
+            await input.Completion.ConfigureAwait(false);
+            output.Complete();
+        }
+        catch (Exception ex)
+        {
+            output.Complete(ex);
+            throw;
+        }
     }
 
     private static async Task WriteAsync(ChannelReader<OutputBatch[]> input, ChannelWriter<OutputBatch[]> pool, Action<OutputBatch[]> write, CancellationToken cancellation)

@@ -5,8 +5,9 @@ using Driftline.Core.Scoring;
 namespace Driftline.Report;
 
 /// <summary>
-/// A sink in front of the pipeline's own that samples what the report draws, on the scoring
-/// thread while the engine's state is current: the rolling measures every few events, and
+/// A sink in front of the pipeline's own that samples what the report draws, after each
+/// prediction with the engine's measures and position as they were then (on the scoring
+/// thread, or on the grading stage when grading is deferred): the rolling measures every few events, and
 /// the window's reliability bins around each alert (which cannot be rebuilt afterwards from
 /// the output files).
 /// </summary>
@@ -56,6 +57,12 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
     public void OnPrediction(in Prediction prediction)
     {
         inner.OnPrediction(prediction);
+    }
+
+    /// <inheritdoc />
+    public void OnScored()
+    {
+        inner.OnScored();
         if (++_sinceSample >= _every)
         {
             _sinceSample = 0;
@@ -129,7 +136,8 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
     private void Sample()
     {
         var engine = Engine;
-        long labels = engine.Counters.Labels;
+        var at = engine.Position;
+        long labels = at.Labels;
         if (labels == _lastLabels || labels == 0)
         {
             return;
@@ -143,9 +151,9 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         {
             values[r] = _rules[r].LastValue;
         }
-        points.Add(new ReportPoint(labels, engine.Counters.Events, window.Count, window.LogLoss, prior.LogLoss,
-            window.CalibrationInTheLarge, window.Ece, engine.Counters.LateLabels, engine.Pending.Expired,
-            window.Brier, WindowAuc(engine, labels), engine.ClockTicks, values,
+        points.Add(new ReportPoint(labels, at.Events, window.Count, window.LogLoss, prior.LogLoss,
+            window.CalibrationInTheLarge, window.Ece, at.LateLabels, at.Expired,
+            window.Brier, WindowAuc(engine, labels), at.ClockTicks, values,
             engine.ClassNames is null ? null : engine.ClassMeasuresOf(total: false).Select(c => c.MeanP - c.ObservedRate).ToArray(),
             engine.ServedMeasures(total: false)?.CalibrationInTheLarge ?? double.NaN, engine.ServedMeasures(total: false)?.LogLoss ?? double.NaN));
         if (points.Count >= MaxPoints)
@@ -204,6 +212,6 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         var window = engine.TopLabelWindow ?? engine.Window;
         var bins = new ReliabilityBin[window.Bins];
         window.CopyBins(bins);
-        return new BinsCapture(engine.Counters.Labels, window.Count, bins, engine.Confusion);
+        return new BinsCapture(engine.Position.Labels, window.Count, bins, engine.Confusion);
     }
 }
