@@ -1,89 +1,89 @@
-using System.Diagnostics;
 using System.Runtime.CompilerServices;
 
 namespace Driftline.Core.Scoring;
 
 /// <summary>
-/// Finds the ring slot of a pending prediction by its id: an open-addressing table with
-/// linear probing (Knuth 1973, "The Art of Computer Programming" vol. 3, §6.4, algorithm L,
-/// with deletion by backward shift, algorithm R). Each entry is the id's hash and its slot,
-/// eight bytes, so a probe costs one cache line, and an eviction finds its entry by slot
-/// without comparing strings.
+/// Finds a record of a <see cref="RecordArena"/> by the id key it starts with: an
+/// open-addressing table with linear probing (Knuth 1973, "The Art of Computer Programming"
+/// vol. 3, §6.4, algorithm L, with deletion by backward shift, algorithm R). Each entry is the
+/// record's location plus one (0 marks an empty entry), four bytes; a probe compares the key
+/// with the record's own, and the home of an entry moved by a deletion is found by hashing
+/// that record's key again, so the table holds no copy of ids nor hashes.
 /// </summary>
 /// <remarks>
-/// Why not <see cref="Dictionary{TKey, TValue}"/>: with hundreds of thousands of ids held, its
-/// bucket array, entry array and key strings are three cache misses per operation, and the
-/// store makes three operations per late label (add, join, evict). The table is at least twice
-/// the ring, so it is never more than half full and every probe sequence ends at an empty entry.
+/// Why not <see cref="Dictionary{TKey, TValue}"/>: its bucket array, entry array and key strings
+/// are three cache misses per operation and some 40 bytes per id on top of the string, against
+/// a budget of 100 bytes for a whole waiting prediction. The table is at least twice the number
+/// of records it may hold, so it is never more than half full and every probe sequence ends at
+/// an empty entry.
 /// </remarks>
 internal sealed class PendingIndex
 {
-    private readonly Entry[] _entries;
-    private readonly int _mask;
-    private readonly PendingPrediction?[] _ring;
+    /// <summary>Returned when no record has the key.</summary>
+    public const uint None = uint.MaxValue;
 
-    /// <summary>Creates an empty index over <paramref name="ring"/>, whose slots hold the ids.</summary>
-    public PendingIndex(PendingPrediction?[] ring)
+    private readonly uint[] _entries;
+    private readonly int _mask;
+    private readonly RecordArena _arena;
+
+    /// <summary>Creates an empty index for at most <paramref name="capacity"/> records of <paramref name="arena"/>.</summary>
+    public PendingIndex(RecordArena arena, int capacity)
     {
-        _ring = ring;
-        int size = (int)Math.Max(16, System.Numerics.BitOperations.RoundUpToPowerOf2((uint)ring.Length * 2));
-        _entries = new Entry[size];
+        _arena = arena;
+        int size = (int)Math.Max(16, System.Numerics.BitOperations.RoundUpToPowerOf2((uint)capacity * 2));
+        _entries = new uint[size];
         _mask = size - 1;
     }
 
-    /// <summary>The hash the index files <paramref name="id"/> under.</summary>
-    public static int Hash(string id) => id.GetHashCode(StringComparison.Ordinal);
-
-    /// <summary>The slot holding <paramref name="id"/>, or −1.</summary>
+    /// <summary>The location of the record whose key is <paramref name="key"/>, or <see cref="None"/>.</summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    public int Find(string id, int hash)
+    public uint Find(ReadOnlySpan<byte> key, int hash)
     {
         for (int i = hash & _mask; ; i = (i + 1) & _mask)
         {
-            ref readonly Entry e = ref _entries[i];
-            if (e.Slot == 0)
+            uint e = _entries[i];
+            if (e == 0)
             {
-                return -1;
+                return None;
             }
-            if (e.Hash == hash && string.Equals(_ring[e.Slot - 1]!.Id, id, StringComparison.Ordinal))
+            if (KeyOf(e - 1).SequenceEqual(key))
             {
-                return e.Slot - 1;
+                return e - 1;
             }
         }
     }
 
-    /// <summary>Files <paramref name="id"/> under <paramref name="slot"/>; returns the slot it had before, or −1.</summary>
+    /// <summary>Files <paramref name="key"/> under <paramref name="location"/>; returns the location it had before, or <see cref="None"/>.</summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    public int Set(string id, int hash, int slot)
+    public uint Set(ReadOnlySpan<byte> key, int hash, uint location)
     {
         for (int i = hash & _mask; ; i = (i + 1) & _mask)
         {
-            ref Entry e = ref _entries[i];
-            if (e.Slot == 0)
+            uint e = _entries[i];
+            if (e == 0)
             {
-                e = new Entry(hash, slot + 1);
-                return -1;
+                _entries[i] = location + 1;
+                return None;
             }
-            if (e.Hash == hash && string.Equals(_ring[e.Slot - 1]!.Id, id, StringComparison.Ordinal))
+            if (KeyOf(e - 1).SequenceEqual(key))
             {
-                int previous = e.Slot - 1;
-                e = new Entry(hash, slot + 1);
-                return previous;
+                _entries[i] = location + 1;
+                return e - 1;
             }
         }
     }
 
     /// <summary>
-    /// Removes the entry that points at <paramref name="slot"/> (its id hashing to
-    /// <paramref name="hash"/>); nothing when the id has been filed under a later slot since.
+    /// Removes the entry that points at <paramref name="location"/> (its key hashing to
+    /// <paramref name="hash"/>); nothing when the key has been filed under a later record since.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    public void Remove(int hash, int slot)
+    public void Remove(int hash, uint location)
     {
         int i = hash & _mask;
-        while (_entries[i].Slot != slot + 1)
+        while (_entries[i] != location + 1)
         {
-            if (_entries[i].Slot == 0)
+            if (_entries[i] == 0)
             {
                 return;
             }
@@ -92,9 +92,9 @@ internal sealed class PendingIndex
         // Backward shift: pull up every later entry of the run that may sit at or before the
         // hole, so no probe sequence is cut by an empty entry.
         int hole = i;
-        for (int j = (i + 1) & _mask; _entries[j].Slot != 0; j = (j + 1) & _mask)
+        for (int j = (i + 1) & _mask; _entries[j] != 0; j = (j + 1) & _mask)
         {
-            int home = _entries[j].Hash & _mask;
+            int home = IdKey.Hash(KeyOf(_entries[j] - 1)) & _mask;
             bool movable = hole <= j ? home <= hole || home > j : home <= hole && home > j;
             if (movable)
             {
@@ -102,9 +102,13 @@ internal sealed class PendingIndex
                 hole = j;
             }
         }
-        _entries[hole] = default;
-        Debug.Assert(Find(_ring[slot]!.Id!, hash) != slot, "a removed slot is no longer found");
+        _entries[hole] = 0;
     }
 
-    private readonly record struct Entry(int Hash, int Slot);
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private ReadOnlySpan<byte> KeyOf(uint location)
+    {
+        ReadOnlySpan<byte> record = _arena.At(location);
+        return record[..IdKey.Length(record)];
+    }
 }

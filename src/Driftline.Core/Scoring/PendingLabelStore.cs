@@ -4,29 +4,24 @@ using System.Runtime.CompilerServices;
 namespace Driftline.Core.Scoring;
 
 /// <summary>
-/// Predictions waiting for late labels, bounded by count and by age. A ring of reusable
-/// slots in arrival order: when it is full the oldest slot is recycled, and a prediction
-/// older than the age limit (by event time) is dropped; either way an unlabelled prediction
-/// leaving the store counts as expired. Graded entries stay until recycled so a second label
-/// for the same id is recognised as a duplicate. O(1) per operation, no allocation once
-/// every slot has been used.
+/// Predictions waiting for late labels, bounded by count and by age. Each is one encoded
+/// record (<see cref="PendingRecord"/>) in a byte arena kept in arrival order
+/// (<see cref="RecordArena"/>), found by id through a table of four-byte locations
+/// (<see cref="PendingIndex"/>): no object per prediction, and on the wide stream about 90
+/// bytes each with eleven features. When the store is full the oldest record is freed, and a
+/// prediction older than the age limit (by event time) is dropped; either way an unlabelled
+/// prediction leaving the store counts as expired. Graded records stay until freed so a second
+/// label for the same id is recognised as a duplicate. O(1) per operation; the arena reuses its
+/// chunks, so memory follows the records held and stays flat on an endless stream.
 /// </summary>
 internal sealed class PendingLabelStore
 {
-    // Features of up to this many per event are kept in the store's shared arrays (the demo's
-    // events carry about a dozen); more spill into arrays of the entry's own.
-    private const int FeatureStride = 16;
-
-    // The shared arrays come in chunks of this many entries (12 MB), made when the ring first
-    // reaches them, so memory follows the entries in use rather than the configured maximum.
-    private const int ChunkEntries = 1 << 16;
-
-    private readonly PendingPrediction?[] _ring;
-    private readonly int[]?[] _featureSlots;
-    private readonly double[]?[] _featureValues;
+    private readonly RecordArena _arena = new();
     private readonly PendingIndex _byId;
+    private readonly PendingPrediction _joined = new();
+    private readonly int _capacity;
     private readonly long _maxAgeTicks;
-    private int _oldest;
+    private byte[] _key = new byte[64];
     private int _count;
 
     /// <summary>Creates a store holding at most <paramref name="capacity"/> predictions for at most <paramref name="maxAge"/> of event time.</summary>
@@ -34,11 +29,8 @@ internal sealed class PendingLabelStore
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(capacity, 1);
         ArgumentOutOfRangeException.ThrowIfLessThanOrEqual(maxAge, TimeSpan.Zero);
-        _ring = new PendingPrediction[capacity];
-        int chunks = (capacity + ChunkEntries - 1) / ChunkEntries;
-        _featureSlots = new int[chunks][];
-        _featureValues = new double[chunks][];
-        _byId = new PendingIndex(_ring);
+        _capacity = capacity;
+        _byId = new PendingIndex(_arena, capacity);
         _maxAgeTicks = maxAge.Ticks;
     }
 
@@ -52,62 +44,80 @@ internal sealed class PendingLabelStore
     public int Waiting { get; private set; }
 
     /// <summary>
-    /// Stores a prediction and returns its slot for the caller to fill (features and
-    /// probabilities). A second prediction with an id already held takes the id over.
+    /// Stores a prediction: the model that made it, its probabilities (one for a binary model,
+    /// K for a multiclass one) and the prior's, the served probabilities (none, one for a
+    /// binary model, K for a multiclass one), the segment and the features. A second prediction with an id already held takes
+    /// the id over.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    public PendingPrediction Add(string id, long timeTicks)
+    public void Add(string id, long timeTicks, int model, ReadOnlySpan<double> p, ReadOnlySpan<double> priorP, ReadOnlySpan<double> served, string? segment, ReadOnlySpan<int> slots, ReadOnlySpan<double> values)
     {
-        if (_count == _ring.Length)
+        Debug.Assert(p.Length == priorP.Length && slots.Length == values.Length, "matching lengths");
+        if (_count == _capacity)
         {
             Evict();
         }
-        int index = (_oldest + _count) % _ring.Length;
-        var slot = _ring[index] ??= NewEntry(index);
-        int hash = PendingIndex.Hash(id);
-        slot.Id = id;
-        slot.IdHash = hash;
-        int previous = _byId.Set(id, hash, index);
-        if (previous >= 0 && !_ring[previous]!.Labelled)
+        int keyLength = IdKey.Encode(id, ref _key);
+        int size = PendingRecord.Size(keyLength, timeTicks, model, p, served, segment, slots, values);
+        uint location;
+        Span<byte> bytes;
+        while ((location = _arena.TryReserve(size, out bytes)) == RecordArena.NoSpace)
         {
-            // The earlier prediction can no longer be graded: its id now names this one.
-            Waiting--;
-            Expired++;
-            _ring[previous]!.Labelled = true;
+            // Some 4 GB held: make room as a full store does, oldest first.
+            Evict();
         }
-        slot.TimeTicks = timeTicks;
-        slot.Labelled = false;
+        var key = _key.AsSpan(0, keyLength);
+        PendingRecord.Write(bytes, key, timeTicks, model, p, priorP, served, segment, slots, values);
+        uint previous = _byId.Set(key, IdKey.Hash(key), location);
+        if (previous != PendingIndex.None)
+        {
+            var earlier = _arena.At(previous);
+            if (!PendingRecord.IsLabelled(earlier))
+            {
+                // The earlier prediction can no longer be graded: its id now names this one.
+                Waiting--;
+                Expired++;
+                PendingRecord.MarkLabelled(earlier);
+            }
+        }
         _count++;
         Waiting++;
-        return slot;
     }
 
     /// <summary>True when a prediction with <paramref name="id"/> is held and not yet graded.</summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public bool IsWaiting(string id)
     {
-        int index = _byId.Find(id, PendingIndex.Hash(id));
-        return index >= 0 && !_ring[index]!.Labelled;
+        if (_count == 0)
+        {
+            return false;
+        }
+        uint location = Find(id);
+        return location != PendingIndex.None && !PendingRecord.IsLabelled(_arena.At(location));
     }
 
-    /// <summary>Finds the pending prediction for <paramref name="id"/> and marks it graded.</summary>
+    /// <summary>
+    /// Finds the pending prediction for <paramref name="id"/> and marks it graded. The
+    /// prediction handed back is the store's one decoding buffer: valid until the next call.
+    /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public LabelJoin TryJoin(string id, out PendingPrediction? prediction)
     {
         prediction = null;
-        int index = _byId.Find(id, PendingIndex.Hash(id));
-        if (index < 0)
+        uint location = _count == 0 ? PendingIndex.None : Find(id);
+        if (location == PendingIndex.None)
         {
             return LabelJoin.UnknownId;
         }
-        var slot = _ring[index]!;
-        if (slot.Labelled)
+        var record = _arena.At(location);
+        if (PendingRecord.IsLabelled(record))
         {
             return LabelJoin.Duplicate;
         }
-        slot.Labelled = true;
+        PendingRecord.MarkLabelled(record);
         Waiting--;
-        prediction = slot;
+        PendingRecord.Read(record, _joined, withId: false);
+        prediction = _joined;
         return LabelJoin.Joined;
     }
 
@@ -117,8 +127,8 @@ internal sealed class PendingLabelStore
     {
         while (_count > 0)
         {
-            var oldest = _ring[_oldest]!;
-            if (oldest.TimeTicks == Events.ParsedRecord.NoTime || nowTicks - oldest.TimeTicks <= _maxAgeTicks)
+            long time = PendingRecord.TimeOf(_arena.At(_arena.Tail));
+            if (time == Events.ParsedRecord.NoTime || nowTicks - time <= _maxAgeTicks)
             {
                 return;
             }
@@ -126,42 +136,47 @@ internal sealed class PendingLabelStore
         }
     }
 
-    /// <summary>Entries in arrival order, oldest first (for snapshots).</summary>
+    /// <summary>Entries in arrival order, oldest first, each decoded afresh with its id (for snapshots).</summary>
     public IEnumerable<PendingPrediction> Entries()
     {
+        if (_count == 0)
+        {
+            yield break;
+        }
+        uint location = _arena.Tail;
         for (int i = 0; i < _count; i++)
         {
-            yield return _ring[(_oldest + i) % _ring.Length]!;
+            var entry = new PendingPrediction();
+            int size = PendingRecord.Read(_arena.At(location), entry, withId: true);
+            yield return entry;
+            location = _arena.After(location, size);
         }
     }
 
     /// <summary>Restores the counters of a snapshot (entries are re-added with <see cref="Add"/>).</summary>
     public void RestoreCounters(long expired) => Expired = expired;
 
-    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
-    private PendingPrediction NewEntry(int index)
+    private uint Find(string id)
     {
-        int chunk = index / ChunkEntries;
-        // Uninitialised: an entry writes its features before they are read, and pages are
-        // touched only as entries are used.
-        var slots = _featureSlots[chunk] ??= GC.AllocateUninitializedArray<int>(ChunkEntries * FeatureStride);
-        var values = _featureValues[chunk] ??= GC.AllocateUninitializedArray<double>(ChunkEntries * FeatureStride);
-        return new PendingPrediction(slots, values, index % ChunkEntries * FeatureStride, FeatureStride);
+        int keyLength = IdKey.Encode(id, ref _key);
+        var key = _key.AsSpan(0, keyLength);
+        return _byId.Find(key, IdKey.Hash(key));
     }
 
     private void Evict()
     {
         Debug.Assert(_count > 0, "evicting from an empty store");
-        var slot = _ring[_oldest]!;
-        if (!slot.Labelled)
+        uint location = _arena.Tail;
+        var record = _arena.At(location);
+        if (!PendingRecord.IsLabelled(record))
         {
             Waiting--;
             Expired++;
         }
-        // The id leaves with its slot, unless a later prediction has taken the id over.
-        _byId.Remove(slot.IdHash, _oldest);
-        slot.Id = null;
-        _oldest = (_oldest + 1) % _ring.Length;
+        // The id leaves with its record, unless a later prediction has taken the id over.
+        var key = record[..IdKey.Length(record)];
+        _byId.Remove(IdKey.Hash(key), location);
+        _arena.FreeTail(PendingRecord.Length(record));
         _count--;
     }
 }

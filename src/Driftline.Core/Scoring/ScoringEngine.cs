@@ -396,12 +396,7 @@ internal sealed class ScoringEngine
             InlineLabelled.Add(record.Id);
             return StepOutcome.ScoredAndLearned;
         }
-        var pending = Pending.Add(record.Id, time);
-        pending.Model = index;
-        pending.SetProbabilities(p, priorP);
-        KeepServed(pending, served);
-        pending.Segment = record.Segment;
-        pending.SetFeatures(_x.Slots, _x.Values);
+        Pending.Add(record.Id, time, index, p, priorP, served, record.Segment, _x.Slots, _x.Values);
         return StepOutcome.Scored;
     }
 
@@ -479,12 +474,7 @@ internal sealed class ScoringEngine
             InlineLabelled.Add(record.Id);
             return StepOutcome.ProbabilityRecorded;
         }
-        var pending = Pending.Add(record.Id, time);
-        pending.Model = index;
-        pending.SetProbabilities(new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP));
-        KeepServed(pending, served);
-        pending.Segment = record.Segment;
-        pending.SetFeatures([], []);
+        Pending.Add(record.Id, time, index, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), served, record.Segment, [], []);
         return StepOutcome.ProbabilityRecorded;
     }
 
@@ -513,12 +503,7 @@ internal sealed class ScoringEngine
             InlineLabelled.Add(record.Id);
             return StepOutcome.ProbabilityRecorded;
         }
-        var pending = Pending.Add(record.Id, time);
-        pending.Model = index;
-        pending.SetProbabilities(p, _priorP);
-        KeepServed(pending, served);
-        pending.Segment = record.Segment;
-        pending.SetFeatures([], []);
+        Pending.Add(record.Id, time, index, p, _priorP, served, record.Segment, [], []);
         return StepOutcome.ProbabilityRecorded;
     }
 
@@ -660,17 +645,6 @@ internal sealed class ScoringEngine
         return _served;
     }
 
-    private static void KeepServed(PendingPrediction pending, ReadOnlySpan<double> served)
-    {
-        if (served.Length > 1)
-        {
-            pending.SetServed(served);
-        }
-        else
-        {
-            pending.Served = served.IsEmpty ? double.NaN : served[0];
-        }
-    }
 
     // Only at a raise (rare), so a scan of the rules is fine.
     private bool AnyRaisedBesides(AlertRule rule)
@@ -799,24 +773,17 @@ internal sealed class ScoringEngine
         LoadModels(snapshot);
         foreach (var e in snapshot.Pending)
         {
-            var slot = Pending.Add(e.Id, e.TimeTicks);
-            slot.Model = e.Model;
             if (e.ClassP is { } classP && e.ClassPriorP is { } classPriorP)
             {
-                slot.SetProbabilities(classP, classPriorP);
-                if (e.ServedClassP is { } servedClassP && servedClassP.Length == classP.Length)
-                {
-                    slot.SetServed(servedClassP);
-                }
+                Pending.Add(e.Id, e.TimeTicks, e.Model, classP, classPriorP, e.ServedClassP is { } servedClassP && servedClassP.Length == classP.Length ? servedClassP : [], e.Segment, e.Slots ?? [], e.Values ?? []);
             }
             else
             {
-                slot.P = e.P;
-                slot.PriorP = e.PriorP;
-                slot.Served = e.Served ?? double.NaN;
+                double p = e.P;
+                double priorP = e.PriorP;
+                double served = e.Served ?? double.NaN;
+                Pending.Add(e.Id, e.TimeTicks, e.Model, new ReadOnlySpan<double>(in p), new ReadOnlySpan<double>(in priorP), new ReadOnlySpan<double>(in served), e.Segment, e.Slots ?? [], e.Values ?? []);
             }
-            slot.SetFeatures(e.Slots ?? [], e.Values ?? []);
-            slot.Segment = e.Segment;
             if (e.Labelled)
             {
                 Pending.TryJoin(e.Id, out _);
