@@ -16,6 +16,7 @@ return args.FirstOrDefault() switch
     "startup" => StartupBenchmark.Run(args.Skip(1).ToArray()),
     // The start-up benchmark's baseline: a .NET process that does nothing.
     "noop" => 0,
+    "peak" => PeakMemory.Run(args.Skip(1).ToArray()),
     _ => Usage(),
 };
 
@@ -34,6 +35,6 @@ static int PrintCount(long events)
 
 static int Usage()
 {
-    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K] | pending [EVENTS] | startup [--app DIR] [--repeats K]");
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K] | pending [EVENTS] | startup [--app DIR] [--repeats K] | peak [EVENTS...] [--repeats K] [--driftline EXE]");
     return 2;
 }
