@@ -13,8 +13,8 @@ namespace Driftline.Core.Scoring;
 /// <remarks>
 /// Why not <see cref="Dictionary{TKey, TValue}"/>: its bucket array, entry array and key strings
 /// are three cache misses per operation and some 40 bytes per id on top of the string, against
-/// a budget of 100 bytes for a whole waiting prediction. The table is at least twice the number
-/// of records it may hold, so it is never more than half full and every probe sequence ends at
+/// a budget of 100 bytes for a whole waiting prediction. The table is twice the number of records
+/// it may hold, so it is never more than half full and every probe sequence ends at
 /// an empty entry.
 /// </remarks>
 internal sealed class PendingIndex
@@ -23,23 +23,25 @@ internal sealed class PendingIndex
     public const uint None = uint.MaxValue;
 
     private readonly uint[] _entries;
-    private readonly int _mask;
+    private readonly int _size;
     private readonly RecordArena _arena;
 
     /// <summary>Creates an empty index for at most <paramref name="capacity"/> records of <paramref name="arena"/>.</summary>
     public PendingIndex(RecordArena arena, int capacity)
     {
         _arena = arena;
-        int size = (int)Math.Max(16, System.Numerics.BitOperations.RoundUpToPowerOf2((uint)capacity * 2));
-        _entries = new uint[size];
-        _mask = size - 1;
+        // Exactly twice the records, not the next power of two (up to four times): an entry's
+        // home is the hash scaled to the table (Lemire 2019, "Fast Random Integer Generation in
+        // an Interval"), a multiply where a mask would need a power-of-two size.
+        _size = (int)Math.Min(Array.MaxLength, Math.Max(16L, 2L * capacity));
+        _entries = new uint[_size];
     }
 
     /// <summary>The location of the record whose key is <paramref name="key"/>, or <see cref="None"/>.</summary>
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public uint Find(ReadOnlySpan<byte> key, int hash)
     {
-        for (int i = hash & _mask; ; i = (i + 1) & _mask)
+        for (int i = Home(hash); ; i = Next(i))
         {
             uint e = _entries[i];
             if (e == 0)
@@ -57,7 +59,7 @@ internal sealed class PendingIndex
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public uint Set(ReadOnlySpan<byte> key, int hash, uint location)
     {
-        for (int i = hash & _mask; ; i = (i + 1) & _mask)
+        for (int i = Home(hash); ; i = Next(i))
         {
             uint e = _entries[i];
             if (e == 0)
@@ -80,21 +82,21 @@ internal sealed class PendingIndex
     [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void Remove(int hash, uint location)
     {
-        int i = hash & _mask;
+        int i = Home(hash);
         while (_entries[i] != location + 1)
         {
             if (_entries[i] == 0)
             {
                 return;
             }
-            i = (i + 1) & _mask;
+            i = Next(i);
         }
         // Backward shift: pull up every later entry of the run that may sit at or before the
         // hole, so no probe sequence is cut by an empty entry.
         int hole = i;
-        for (int j = (i + 1) & _mask; _entries[j] != 0; j = (j + 1) & _mask)
+        for (int j = Next(i); _entries[j] != 0; j = Next(j))
         {
-            int home = IdKey.Hash(KeyOf(_entries[j] - 1)) & _mask;
+            int home = Home(IdKey.Hash(KeyOf(_entries[j] - 1)));
             bool movable = hole <= j ? home <= hole || home > j : home <= hole && home > j;
             if (movable)
             {
@@ -104,6 +106,12 @@ internal sealed class PendingIndex
         }
         _entries[hole] = 0;
     }
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private int Home(int hash) => (int)(((ulong)(uint)hash * (uint)_size) >> 32);
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private int Next(int i) => i + 1 == _size ? 0 : i + 1;
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private ReadOnlySpan<byte> KeyOf(uint location)
