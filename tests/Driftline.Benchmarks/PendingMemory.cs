@@ -32,10 +32,20 @@ internal static class PendingMemory
         int events = args.Length > 0 ? int.Parse(args[0], System.Globalization.CultureInfo.InvariantCulture) : 1_000_000;
         string dir = Path.Combine(Path.GetTempPath(), "driftline-bench");
         Directory.CreateDirectory(dir);
-        string file = Path.Combine(dir, $"wide-{events}.jsonl");
+        // The demo stream (event times, late labels, fewer features) for the figure its users see.
+        bool demo = args.Contains("demo");
+        string file = Path.Combine(dir, demo ? $"demo-orders-{events}.jsonl" : $"wide-{events}.jsonl");
         if (!File.Exists(file))
         {
-            new WideStream(7).Write(file + ".part", events);
+            if (demo)
+            {
+                using var output = File.Create(file + ".part");
+                new DemoScenario(7) { Orders = events }.Write(output);
+            }
+            else
+            {
+                new WideStream(7).Write(file + ".part", events);
+            }
             File.Move(file + ".part", file, overwrite: true);
         }
         long s0 = GC.GetTotalMemory(forceFullCollection: true);
@@ -48,6 +58,8 @@ internal static class PendingMemory
         GC.KeepAlive(emptyIds);
         var options = new DriftlineOptions();
         options.Labels.MaxPending = events;
+        // Nothing ages out while the store fills (the demo's events span weeks).
+        options.Labels.MaxAge = TimeSpan.FromDays(100_000);
         var engine = new ScoringEngine(options, new NullSink());
         var parser = new EventParser();
         var record = new ParsedRecord();
@@ -56,7 +68,7 @@ internal static class PendingMemory
         long features = 0;
         foreach (string line in File.ReadLines(file))
         {
-            if (parser.TryParse(Encoding.UTF8.GetBytes(line), record, out _))
+            if (parser.TryParse(Encoding.UTF8.GetBytes(line), record, out _) && record.Kind == RecordKind.Event)
             {
                 record.Label = -1;
                 engine.Process(record);
