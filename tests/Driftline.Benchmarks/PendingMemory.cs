@@ -3,6 +3,7 @@ using Driftline.Core.Alerts;
 using Driftline.Core.Events;
 using Driftline.Core.Options;
 using Driftline.Core.Scoring;
+using Driftline.Demo;
 
 namespace Driftline.Benchmarks;
 
