@@ -1,4 +1,6 @@
 using Driftline.Kafka.Tests.Support;
+using Driftline.Core.Options;
+using Driftline.Kafka.Worker;
 using Xunit;
 
 namespace Driftline.Kafka.Tests;
@@ -83,5 +85,76 @@ public sealed class WorkerRestartTests
         Assert.All(actual, c => Assert.Equal(3, c.Snapshot.Classes!.Count));
         var prediction = Topics.ReadAll(cluster.Bootstrap, resumed.PredictionsTopic, v => v.Count >= 1, TimeSpan.FromSeconds(30))[0];
         Assert.Contains("\"p\":{\"on-time\":", prediction, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Run_ChallengersStoppedMidStreamAndRestarted_ChallengersAndEvidenceEqualAnUninterruptedRun()
+    {
+        // Two challengers in the shadow: one forgets faster, one holds fewer waiting
+        // predictions (so it grades fewer labels and the judge pairs by id). Their engines and
+        // evidence come back from the checkpoint and continue exactly.
+        using var cluster = new MockCluster();
+        ChallengerConfig[] challengers =
+        [
+            new("fast", new DriftlineOptions { Model = { HalfLifeLabels = 300 } }),
+            new("small", new DriftlineOptions { Labels = { MaxPending = 20 } }),
+        ];
+        var stream = new StreamHalves(5_000, keys: 8, seed: 7, challengers: challengers);
+        int events = stream.Events;
+        Topics.ProduceStream(cluster.Bootstrap, "ch-events", "ch-labels", stream.First);
+
+        using var resumedDir = new TempDir();
+        var resumed = WorkerHost.OptionsFor(cluster.Bootstrap, "ch", resumedDir.Path, group: "resumed");
+        resumed.PredictionsTopic = "ch-predictions-resumed";
+        resumed.ChallengerTopic = "ch-challengers-resumed";
+        using (var first = new WorkerHost(resumed, challengers: challengers))
+        {
+            first.WaitFor(s => s.Predictions >= stream.FirstEvents && s.LabelsJoined >= stream.FirstJoined, TimeSpan.FromSeconds(60));
+            first.Stop();
+        }
+        var middle = CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic);
+        Assert.All(middle, c => Assert.Equal(["fast", "small"], c.Challengers!.Select(x => x.Name)));
+        Topics.ProduceStream(cluster.Bootstrap, "ch-events", "ch-labels", stream.Second);
+        using (var second = new WorkerHost(resumed, challengers: challengers))
+        {
+            second.WaitFor(s => s.Partitions > 0 && CheckpointFiles.Done(resumedDir.Path, resumed.EventsTopic, events, second.Worker.Stats), TimeSpan.FromSeconds(60));
+            // The figures /metrics shows, per challenger and partition.
+            Assert.Equal(2 * MockCluster.Partitions, second.Worker.Stats.Challengers.Count);
+            second.Stop();
+        }
+
+        using var straightDir = new TempDir();
+        var expected = stream.Uninterrupted(cluster, "ch", straightDir.Path);
+        var actual = CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic);
+        CheckpointFiles.AssertSame(expected, actual);
+        for (int p = 0; p < actual.Count; p++)
+        {
+            for (int c = 0; c < challengers.Length; c++)
+            {
+                var want = expected[p].Challengers![c];
+                var got = actual[p].Challengers![c];
+                Assert.Equal(want.Name, got.Name);
+                Assert.Equal(SnapshotJson(want.Snapshot), SnapshotJson(got.Snapshot));
+                Assert.Equal(System.Text.Json.JsonSerializer.Serialize(want.Judge), System.Text.Json.JsonSerializer.Serialize(got.Judge));
+            }
+        }
+        var fast = actual.Select(c => c.Challengers![0].Judge!).ToList();
+        var small = actual.Select(c => c.Challengers![1].Judge!).ToList();
+        // Every label is graded by the champion and the fast challenger; the small one misses the latest.
+        Assert.Equal(events, fast.Sum(j => j.Paired));
+        Assert.InRange(small.Sum(j => j.Paired), 1, events - 1);
+
+        // Challenger probabilities go to their own topic, named in a header, never to the predictions topic.
+        var published = Topics.ReadAll(cluster.Bootstrap, resumed.ChallengerTopic, v => v.Count >= 2 * events, TimeSpan.FromSeconds(30));
+        Assert.Equal(2 * events, published.Select(CheckpointFiles.Id).Count());
+        var predictions = Topics.ReadAll(cluster.Bootstrap, resumed.PredictionsTopic, v => v.Count >= events, TimeSpan.FromSeconds(30));
+        Assert.Equal(events, predictions.Count);
+    }
+
+    private static string SnapshotJson(Driftline.Core.Snapshots.EngineSnapshot snapshot)
+    {
+        using var stream = new MemoryStream();
+        Driftline.Core.Snapshots.SnapshotCodec.Write(snapshot, stream);
+        return System.Text.Encoding.UTF8.GetString(stream.ToArray());
     }
 }

@@ -37,6 +37,13 @@ internal sealed class PartitionCheckpoint
     /// <summary>The engine's whole state.</summary>
     public EngineSnapshot Snapshot { get; set; } = new();
 
+    /// <summary>
+    /// The challengers' engines and evidence at the same offsets (<c>run --challenger</c>), or
+    /// null when none ran. A challenger is restored by name; one no longer configured is dropped.
+    /// </summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public List<ChallengerCheckpoint>? Challengers { get; set; }
+
     /// <summary>Value of <see cref="Format"/>.</summary>
     public const string FormatName = "driftline-partition-checkpoint";
 

@@ -35,6 +35,13 @@ internal sealed class KafkaOptions
     /// <summary>Topic rejected records go to, with reason and source position. Default <c>dead-letters</c>.</summary>
     public string DeadLetterTopic { get; set; } = "dead-letters";
 
+    /// <summary>
+    /// Topic the challengers' probabilities go to (<c>run --challenger</c>), keyed by model key
+    /// like the predictions, with a <c>challenger</c> header naming the configuration. Default
+    /// null: challengers score in the shadow and publish nothing but their evidence.
+    /// </summary>
+    public string? ChallengerTopic { get; set; }
+
     /// <summary>Folder of the per-partition checkpoints (model state plus offsets). Default <c>checkpoints</c>.</summary>
     public string CheckpointDir { get; set; } = "checkpoints";
 
@@ -113,7 +120,19 @@ internal sealed class KafkaOptions
         {
             errors.Add(new("Kafka:CheckpointTopic", $"'{CheckpointTopic}' is also used for events, labels or outputs", "Give the checkpoints a compacted topic of their own, e.g. driftline-checkpoints"));
         }
-        foreach (var topic in new[] { PredictionsTopic, AlertsTopic, DeadLetterTopic })
+        if (string.IsNullOrWhiteSpace(ChallengerTopic))
+        {
+            ChallengerTopic = null;
+        }
+        else if (!IsTopicName(ChallengerTopic))
+        {
+            errors.Add(new("Kafka:ChallengerTopic", $"'{ChallengerTopic}' is not a valid topic name", "Use up to 249 letters, digits, '.', '_' or '-', e.g. driftline-challengers"));
+        }
+        else if (ChallengerTopic == PredictionsTopic || ChallengerTopic == CheckpointTopic)
+        {
+            errors.Add(new("Kafka:ChallengerTopic", $"'{ChallengerTopic}' is also the predictions or checkpoint topic", "Give the challengers' probabilities a topic of their own, e.g. driftline-challengers"));
+        }
+        foreach (var topic in new[] { PredictionsTopic, AlertsTopic, DeadLetterTopic, ChallengerTopic })
         {
             if (topic == EventsTopic || (topic is not null && topic == LabelsTopic))
             {

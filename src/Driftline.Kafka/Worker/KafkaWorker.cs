@@ -1,4 +1,5 @@
 using Driftline.Core.Alerts;
+using Driftline.Core.Challengers;
 using System.Collections.Concurrent;
 using System.Diagnostics;
 using System.Runtime.ExceptionServices;
@@ -68,6 +69,13 @@ internal sealed class KafkaWorker
     /// failed container; zero (the default) retries for ever, as librdkafka does.
     /// </summary>
     public TimeSpan ExitAfterBrokerDown { get; init; }
+
+    /// <summary>
+    /// Configurations scored in the shadow on every partition and judged against the champion
+    /// (<c>run --challenger</c>); they must parse records as the champion does (the same
+    /// <c>Monitor:SegmentBy</c> and <c>Model:Classes</c>). Default none.
+    /// </summary>
+    public IReadOnlyList<ChallengerConfig> Challengers { get; init; } = [];
 
     /// <summary>Creates a worker (nothing connects until <c>Run</c>).</summary>
     public KafkaWorker(KafkaOptions options, DriftlineOptions core, WorkerStats? stats = null)
@@ -271,7 +279,16 @@ internal sealed class KafkaWorker
             {
                 continue; // given up while it drained: its counts and keys went with it
             }
+            if (state.Counts.LastMetrics is { } row)
+            {
+                state.LastMetrics = row;
+            }
             state.Counts.MoveTo(Stats);
+            foreach (var c in state.Challengers)
+            {
+                Stats.Challengers[(c.Name, state.Partition)] = new ChallengerFigures(c.Judge.ChampionLogLoss, c.Judge.ChallengerLogLoss,
+                    Ece(state.LastMetrics), Ece(c.Sink.LastMetrics), c.Judge.Evidence, c.Judge.Threshold, c.Judge.Paired, c.Judge.DecidedAt.Count);
+            }
             foreach (var model in state.Engine.Models.Skip(state.KnownModels))
             {
                 ModelKeys[model.Key] = state.Partition;
@@ -281,6 +298,8 @@ internal sealed class KafkaWorker
             _intake.Resume(_labels, state, fromLabels: true);
         }
     }
+
+    private static double Ece(MetricsRow? row) => row is { } r && r.Window.IsReady ? r.Window.Ece : double.NaN;
 
     private List<TopicPartitionOffset> OnAssigned(IConsumer<byte[]?, byte[]> events, List<TopicPartition> assigned)
     {
@@ -310,9 +329,11 @@ internal sealed class KafkaWorker
             var counts = new OutputCounts();
             var outputs = new KafkaOutputs(_producer!, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, counts, _delivery, AlertObserver);
             var engine = checkpoint is null ? new ScoringEngine(_core, outputs) : ScoringEngine.Restore(checkpoint.Snapshot, outputs);
+            var challengers = Challengers.Select(c => Challenger(c, checkpoint, engine, counts, tp.Partition.Value)).ToList();
             var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels)
             {
-                Processor = new RecordProcessor(outputs, counts, _core.Input),
+                Processor = new RecordProcessor(outputs, counts, _core.Input) { Challengers = challengers },
+                Challengers = challengers,
                 Counts = counts,
                 KnownModels = engine.Models.Count,
             };
@@ -345,6 +366,35 @@ internal sealed class KafkaWorker
             Log.Information("Assignment of {Count} partitions ready in {Elapsed:0} ms", assigned.Count, clock.Elapsed.TotalMilliseconds);
         }
         return start;
+    }
+
+    /// <summary>
+    /// A challenger's lane on a partition: restored by name from the checkpoint when it holds
+    /// one (engine and evidence at the checkpoint's offsets), fresh otherwise. A fresh one
+    /// beside a restored champion has none of the predictions waiting for labels: those labels
+    /// are graded by the champion alone and left unpaired.
+    /// </summary>
+    private ChallengerLane Challenger(ChallengerConfig config, PartitionCheckpoint? checkpoint, ScoringEngine champion, OutputCounts counts, int partition)
+    {
+        var sink = new ChallengerSink(config.Name, _producer, _options.ChallengerTopic, _delivery, counts);
+        var saved = checkpoint?.Challengers?.FirstOrDefault(c => string.Equals(c.Name, config.Name, StringComparison.Ordinal));
+        var engine = saved is null ? new ScoringEngine(config.Options, sink) : ScoringEngine.Restore(saved.Snapshot, sink);
+        var judge = new ChallengerJudge(config.Name, champion.Options.Challengers, alert =>
+        {
+            counts.ChallengerDecisions++;
+            champion.Emit(alert);
+        });
+        if (saved?.Judge is { } evidence)
+        {
+            judge.Import(evidence);
+        }
+        champion.LabelGraded += judge.Champion;
+        engine.LabelGraded = judge.Challenger;
+        if (saved is null && checkpoint is not null)
+        {
+            Log.Information("Partition {Partition}: challenger {Challenger} is not in the checkpoint and starts fresh", partition, config.Name);
+        }
+        return new ChallengerLane(config.Name, engine, sink, judge);
     }
 
     private void OnRevoked(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> revoked)
@@ -393,6 +443,10 @@ internal sealed class KafkaWorker
             foreach (var key in ModelKeys.Where(kv => kv.Value == p).Select(kv => kv.Key).ToList())
             {
                 ModelKeys.TryRemove(key, out _);
+            }
+            foreach (var key in Stats.Challengers.Keys.Where(k => k.Partition == p).ToList())
+            {
+                Stats.Challengers.TryRemove(key, out _);
             }
         }
         if (_labels is not null && !_failed)

@@ -27,6 +27,9 @@ internal sealed class OutputCounts
     /// <summary>Labels that graded a prediction.</summary>
     public long LabelsJoined;
 
+    /// <summary>Times a challenger was declared better.</summary>
+    public long ChallengerDecisions;
+
     /// <summary>The latest metrics row, or null when none came.</summary>
     public MetricsRow? LastMetrics;
 
@@ -39,11 +42,12 @@ internal sealed class OutputCounts
         stats.AlertsActive += AlertsActive;
         stats.ProduceWaits += ProduceWaits;
         stats.LabelsJoined += LabelsJoined;
+        stats.ChallengerDecisions += ChallengerDecisions;
         if (LastMetrics is not null)
         {
             stats.LastMetrics = LastMetrics;
         }
-        Predictions = DeadLetters = Alerts = AlertsActive = ProduceWaits = LabelsJoined = 0;
+        Predictions = DeadLetters = Alerts = AlertsActive = ProduceWaits = LabelsJoined = ChallengerDecisions = 0;
         LastMetrics = null;
     }
 }

@@ -45,6 +45,12 @@ internal sealed class PartitionState
     /// <summary>Parses and runs the partition's records (set at assignment).</summary>
     public RecordProcessor? Processor { get; init; }
 
+    /// <summary>The challengers scored in the shadow on this partition (set at assignment).</summary>
+    public IReadOnlyList<ChallengerLane> Challengers { get; init; } = [];
+
+    /// <summary>The champion's latest metrics row on this partition (kept by the loop for the challenger figures).</summary>
+    public Driftline.Core.Scoring.MetricsRow? LastMetrics { get; set; }
+
     /// <summary>The partition's counts since the loop last collected them (set at assignment).</summary>
     public OutputCounts Counts { get; init; } = new();
 
@@ -150,5 +156,7 @@ internal sealed class PartitionState
         LabelsOffset = LabelsNext,
         WrittenAt = now,
         Snapshot = Engine.Snapshot(),
+        Challengers = Challengers.Count == 0 ? null
+            : [.. Challengers.Select(c => new ChallengerCheckpoint { Name = c.Name, Snapshot = c.Engine.Snapshot(), Judge = c.Judge.Export() })],
     };
 }

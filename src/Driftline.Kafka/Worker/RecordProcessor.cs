@@ -13,6 +13,9 @@ namespace Driftline.Kafka.Worker;
 /// </summary>
 internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats, InputOptions input)
 {
+    /// <summary>Challengers that see every parsed record after the champion (their outcomes are theirs: only the champion's dead-letters a record).</summary>
+    public IReadOnlyList<ChallengerLane> Challengers { get; init; } = [];
+
     private readonly EventParser _parser = new() { MaxTextBytes = input.MaxTextBytes };
     private readonly ParsedRecord _record = new();
 
@@ -46,7 +49,12 @@ internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats, 
             outputs.DeadLetter(error!, topic, partition, record.Offset, record.Key, value);
             return false;
         }
-        switch (engine.Process(_record))
+        var outcome = engine.Process(_record);
+        foreach (var challenger in Challengers)
+        {
+            challenger.Engine.Process(_record);
+        }
+        switch (outcome)
         {
             case StepOutcome.ScoredAndLearned:
             case StepOutcome.LateLabelJoined:

@@ -59,6 +59,12 @@ internal sealed class WorkerStats
     /// <summary>Events behind the high watermark, summed over owned partitions, at the last look.</summary>
     public long Lag { get; set; }
 
+    /// <summary>Times a challenger was declared better (<c>challenger-better</c> lines), over every partition.</summary>
+    public long ChallengerDecisions { get; set; }
+
+    /// <summary>Each challenger against the champion on each owned partition, refreshed after every drain.</summary>
+    public System.Collections.Concurrent.ConcurrentDictionary<(string Challenger, int Partition), ChallengerFigures> Challengers { get; } = new();
+
     /// <summary>The latest metrics row any engine reported.</summary>
     public MetricsRow? LastMetrics { get; set; }
 

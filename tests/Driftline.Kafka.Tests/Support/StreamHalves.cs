@@ -8,9 +8,10 @@ namespace Driftline.Kafka.Tests.Support;
 /// </summary>
 internal sealed class StreamHalves
 {
-    public StreamHalves(int events, int keys, int seed, DriftlineOptions? core = null)
+    public StreamHalves(int events, int keys, int seed, DriftlineOptions? core = null, IReadOnlyList<Driftline.Kafka.Worker.ChallengerConfig>? challengers = null)
     {
         Core = core;
+        Challengers = challengers;
         All = TestStream.Generate(events, keys, seed).OrderBy(r => r.TimestampMs).ToList();
         if (core?.Model.Classes is { } classes)
         {
@@ -32,6 +33,9 @@ internal sealed class StreamHalves
     /// <summary>The engine configuration the workers run with (null: the defaults).</summary>
     public DriftlineOptions? Core { get; }
 
+    /// <summary>The challengers the workers run with (null: none).</summary>
+    public IReadOnlyList<Driftline.Kafka.Worker.ChallengerConfig>? Challengers { get; }
+
     public List<TestRecord> First { get; }
 
     public List<TestRecord> Second { get; }
@@ -51,7 +55,7 @@ internal sealed class StreamHalves
     {
         var options = WorkerHost.OptionsFor(cluster.Bootstrap, prefix, directory, group: "straight");
         options.PredictionsTopic = prefix + "-predictions-straight";
-        using (var host = new WorkerHost(options, Core))
+        using (var host = new WorkerHost(options, Core, challengers: Challengers))
         {
             host.WaitFor(s => s.Predictions >= Events && s.LabelsJoined >= Events, TimeSpan.FromSeconds(60));
             host.Stop();

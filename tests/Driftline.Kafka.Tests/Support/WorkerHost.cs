@@ -20,10 +20,10 @@ internal sealed class WorkerHost : IDisposable
         }
     }
 
-    public WorkerHost(KafkaOptions options, DriftlineOptions? core = null, TimeSpan exitAfterBrokerDown = default)
+    public WorkerHost(KafkaOptions options, DriftlineOptions? core = null, TimeSpan exitAfterBrokerDown = default, IReadOnlyList<ChallengerConfig>? challengers = null)
     {
         Options = options;
-        Worker = new KafkaWorker(options, core ?? new DriftlineOptions()) { ExitAfterBrokerDown = exitAfterBrokerDown };
+        Worker = new KafkaWorker(options, core ?? new DriftlineOptions()) { ExitAfterBrokerDown = exitAfterBrokerDown, Challengers = challengers ?? [] };
         _thread = new Thread(() =>
         {
             try
