@@ -89,6 +89,40 @@ public sealed class RunStdinTests
     }
 
     [Fact]
+    public async Task Run_NoBootstrapWithChallenger_VerdictAmongTheAlertsAndOnlyTheChampionsPredictionsOut()
+    {
+        // The champion barely learns (a millionth of the default step); the challenger has the
+        // defaults, so it is declared better on the demo's labels. Its probabilities are not written.
+        using var dir = new TempDir();
+        string champion = Path.Combine(dir.Path, "slow.json");
+        File.WriteAllText(champion, """{"Model":{"LearningRate":0.000001}}""");
+        string challenger = Path.Combine(dir.Path, "usual.json");
+        File.WriteAllText(challenger, "{}");
+        string file = Path.Combine(dir.Path, "alerts.jsonl");
+        string demo = Demo();
+        var (code, output, error) = await RunAsync(["run", "--config", champion, "--challenger", challenger, "--alerts-file", file], demo);
+        Assert.True(code == ExitCode.Ok, error);
+        var verdicts = File.ReadAllLines(file).Select(l => JsonDocument.Parse(l).RootElement).Where(a => a.GetProperty("rule").GetString() == "challenger-better").ToList();
+        Assert.NotEmpty(verdicts);
+        Assert.Contains("'usual'", verdicts[0].GetRawText(), StringComparison.Ordinal);
+        // The champion's predictions are those of a run without the challenger, byte for byte.
+        var (alone, championOnly, aloneError) = await RunAsync(["run", "--config", champion, "--alerts-file", Path.Combine(dir.Path, "alone.jsonl")], demo);
+        Assert.True(alone == ExitCode.Ok, aloneError);
+        Assert.Equal(championOnly, output);
+    }
+
+    [Fact]
+    public async Task Run_ChallengerWithOtherClasses_RefusedNamingTheOption()
+    {
+        using var dir = new TempDir();
+        string challenger = Path.Combine(dir.Path, "three.json");
+        File.WriteAllText(challenger, """{"Model":{"Classes":["on-time","late","failed"]}}""");
+        var (code, _, error) = await RunAsync(["run", "--challenger", challenger], "");
+        Assert.True(code == ExitCode.Config, error);
+        Assert.Contains("Model:Classes", error, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task Run_AlertsFileIsAFolder_ExitsFourWithOneLine()
     {
         using var dir = new TempDir();

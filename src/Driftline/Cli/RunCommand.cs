@@ -1,5 +1,6 @@
 using System.CommandLine;
 using Driftline.Configuration;
+using Driftline.Core.Challengers;
 using Driftline.Core.Options;
 using Driftline.Kafka.Options;
 using Driftline.Kafka.Worker;
@@ -33,9 +34,15 @@ internal sealed class RunCommand(CommandContext context)
         var checkpoints = new Option<string?>("--checkpoint-dir") { Description = "Folder of the per-partition checkpoints (default checkpoints)" };
         var config = new Option<string?>("--config") { Description = "JSON configuration file; the Kafka section holds the topics and client settings" };
         var alertsFile = new Option<string?>("--alerts-file") { Description = "Without Kafka: write alerts as JSON lines to this file (replaced at start) instead of as 'alert: ' lines on standard error" };
+        var challenger = new Option<string[]>("--challenger")
+        {
+            Description = "A configuration scored and trained in the shadow on the same events and judged against the champion (--config) by a sequential test on their per-label log-loss; its probabilities are published only to Kafka:ChallengerTopic; repeat for several",
+            Arity = ArgumentArity.ZeroOrMore,
+            HelpName = "FILE",
+        };
         var command = new Command("run", "Run the live worker: score every event, learn from labels, publish predictions and alerts")
         {
-            bootstrap, group, events, labels, predictions, alerts, deadLetters, checkpoints, config, alertsFile,
+            bootstrap, group, events, labels, predictions, alerts, deadLetters, checkpoints, config, alertsFile, challenger,
         };
         command.SetAction((result, token) =>
         {
@@ -50,7 +57,7 @@ internal sealed class RunCommand(CommandContext context)
                 ["DeadLetterTopic"] = result.GetValue(deadLetters),
                 ["CheckpointDir"] = result.GetValue(checkpoints),
             };
-            return RunAsync(result.GetValue(config), overrides, token, result.GetValue(alertsFile));
+            return RunAsync(result.GetValue(config), overrides, token, result.GetValue(alertsFile), result.GetValue(challenger));
         });
         return command;
     }
@@ -75,7 +82,8 @@ internal sealed class RunCommand(CommandContext context)
     /// Runs the worker; returns the exit code. <paramref name="overrides"/> are Kafka options from
     /// the command line (null = not given); <paramref name="alertsFile"/> is where alerts go without Kafka (null = standard error).
     /// </summary>
-    public async Task<int> RunAsync(string? configPath, IReadOnlyDictionary<string, string?> overrides, CancellationToken cancellation, string? alertsFile = null)
+    public async Task<int> RunAsync(string? configPath, IReadOnlyDictionary<string, string?> overrides, CancellationToken cancellation, string? alertsFile = null,
+        IReadOnlyList<string>? challengerPaths = null)
     {
         var settings = RunSettings.Load(configPath, context.Environment, overrides, out var errors);
         if (settings is null)
@@ -83,6 +91,34 @@ internal sealed class RunCommand(CommandContext context)
             return ConfigErrors.Report(context.Error, configPath, errors);
         }
         var (core, kafka, worker) = settings;
+        var challengers = new List<ChallengerConfig>();
+        foreach (var path in challengerPaths ?? [])
+        {
+            var options = ConfigLoader.Load(path, context.Environment, out var challengerErrors);
+            if (options is null)
+            {
+                return ConfigErrors.Report(context.Error, path, challengerErrors);
+            }
+            string name = Path.GetFileNameWithoutExtension(path);
+            if (challengers.Any(c => string.Equals(c.Name, name, StringComparison.Ordinal)))
+            {
+                await context.Error.WriteLineAsync($"driftline: two challengers are named '{name}'; the checkpoint keeps each challenger's state under its file name, so rename one of the files").ConfigureAwait(false);
+                return ExitCode.Usage;
+            }
+            // One parse serves the champion and its challengers, as in replay.
+            if (!string.Equals(options.Monitor.SegmentBy, core.Monitor.SegmentBy, StringComparison.Ordinal))
+            {
+                return ConfigErrors.Report(context.Error, path,
+                    [new("Monitor:SegmentBy", $"'{options.Monitor.SegmentBy ?? "(none)"}' here but '{core.Monitor.SegmentBy ?? "(none)"}' for the champion; a challenger reads each record through the champion's parse", "Give the challenger the champion's Monitor:SegmentBy")]);
+            }
+            static string ClassesOf(DriftlineOptions o) => o.Model.Classes is { } c ? string.Join(", ", c) : "(binary)";
+            if (ClassesOf(options) != ClassesOf(core))
+            {
+                return ConfigErrors.Report(context.Error, path,
+                    [new("Model:Classes", $"'{ClassesOf(options)}' here but '{ClassesOf(core)}' for the champion; a challenger reads each record through the champion's parse", "Give the challenger the champion's Model:Classes, in the same order")]);
+            }
+            challengers.Add(new ChallengerConfig(name, options));
+        }
         if (!kafka.UsesKafka)
         {
             // Without a broker these would be ignored and the worker would read standard input instead.
@@ -110,11 +146,11 @@ internal sealed class RunCommand(CommandContext context)
 
         // SIGINT and SIGTERM (docker stop, Kubernetes) are the host's (StopSignals): both cancel the token.
         return kafka.UsesKafka
-            ? await RunKafkaAsync(kafka, core, worker, cancellation).ConfigureAwait(false)
-            : await RunStdioAsync(core, alertsFile, cancellation).ConfigureAwait(false);
+            ? await RunKafkaAsync(kafka, core, worker, challengers, cancellation).ConfigureAwait(false)
+            : await RunStdioAsync(core, challengers, alertsFile, cancellation).ConfigureAwait(false);
     }
 
-    private async Task<int> RunKafkaAsync(KafkaOptions kafka, DriftlineOptions core, WorkerOptions host, CancellationToken stop)
+    private async Task<int> RunKafkaAsync(KafkaOptions kafka, DriftlineOptions core, WorkerOptions host, IReadOnlyList<ChallengerConfig> challengers, CancellationToken stop)
     {
         if (core.Webhook.Address() is { Scheme: "http" } plain)
         {
@@ -127,6 +163,7 @@ internal sealed class RunCommand(CommandContext context)
         {
             AlertObserver = webhook is null ? null : a => webhook.Enqueue(a),
             ExitAfterBrokerDown = host.ExitAfterBrokerDown,
+            Challengers = challengers,
         };
         MetricsEndpoint? endpoint = null;
         if (host.MetricsPort > 0)
@@ -158,7 +195,7 @@ internal sealed class RunCommand(CommandContext context)
         }
     }
 
-    private async Task<int> RunStdioAsync(DriftlineOptions core, string? alertsFile, CancellationToken stop)
+    private async Task<int> RunStdioAsync(DriftlineOptions core, IReadOnlyList<ChallengerConfig> challengers, string? alertsFile, CancellationToken stop)
     {
         StreamWriter? alertsOut = null;
         if (alertsFile is not null)
@@ -177,7 +214,18 @@ internal sealed class RunCommand(CommandContext context)
         Log.Information("No Kafka bootstrap configured: reading events on standard input, writing predictions to standard output, alerts to {Alerts}",
             alertsFile ?? "standard error (lines starting 'alert: ')");
         using var input = context.StandardInput();
-        var pipeline = new ReplayPipeline(core);
+        // Challengers are further lanes of the same pipeline, as in replay: only the champion's
+        // lane is written; each challenger's decision is a line among the champion's alerts.
+        var lanes = new List<ReplayLane> { new(core) };
+        foreach (var challenger in challengers)
+        {
+            var lane = new ReplayLane(challenger.Options);
+            var judge = new ChallengerJudge(challenger.Name, core.Challengers, lanes[0].Engine.Emit);
+            lanes[0].Engine.LabelGraded += judge.Champion;
+            lane.Engine.LabelGraded = judge.Challenger;
+            lanes.Add(lane);
+        }
+        var pipeline = new ReplayPipeline(lanes);
         var outputs = alertsOut is null ? new StdioOutputs(context.Out, context.Error, AlertPrefix) : new StdioOutputs(context.Out, alertsOut, "");
         try
         {
