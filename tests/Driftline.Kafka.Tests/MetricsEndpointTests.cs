@@ -51,6 +51,27 @@ public sealed class MetricsEndpointTests
         Assert.Contains("\"partitions\":3", await running.Content.ReadAsStringAsync(token), StringComparison.Ordinal);
     }
 
+    [Fact]
+    public async Task Start_Challengers_EachServedWithItsNameAndPartitionAsLabels()
+    {
+        using var dir = new TempDir();
+        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        worker.Stats.Challengers[("fast", 2)] = new ChallengerFigures(0.52, 0.47, 0.031, 0.012, 2.5, 4.605, 1_200, 1);
+        worker.Stats.Challengers[("wide", 0)] = new ChallengerFigures(0.5, 0.55, 0.02, 0.04, 0, 4.605, 900, 0);
+        worker.Stats.ChallengerDecisions = 1;
+        int port = FreePort();
+        using var endpoint = MetricsEndpoint.Start(new WorkerOptions { MetricsPort = port }, worker);
+        using var http = new HttpClient { BaseAddress = new Uri($"http://127.0.0.1:{port}") };
+
+        string metrics = await http.GetStringAsync(new Uri("/metrics", UriKind.Relative), TestContext.Current.CancellationToken);
+        Assert.Contains("driftline_challenger_log_loss{challenger=\"fast\",partition=\"2\"} 0.47", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_challenger_champion_log_loss{challenger=\"fast\",partition=\"2\"} 0.52", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_challenger_ece{challenger=\"wide\",partition=\"0\"} 0.04", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_challenger_champion_ece{challenger=\"fast\",partition=\"2\"} 0.031", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_challenger_evidence{challenger=\"fast\",partition=\"2\"} 2.5", metrics, StringComparison.Ordinal);
+        Assert.Contains("driftline_challenger_decisions_total 1", metrics, StringComparison.Ordinal);
+    }
+
     [Theory]
     [InlineData("*")]
     [InlineData("0.0.0.0")]

@@ -1,4 +1,5 @@
 using System.Diagnostics.Metrics;
+using Driftline.Kafka.Worker;
 using Prometheus;
 
 namespace Driftline.Cli;
@@ -18,37 +19,47 @@ internal sealed class MeterScrape : IDisposable
 {
     private readonly MeterListener _listener = new();
     private readonly Dictionary<Instrument, Action<double>> _sinks = [];
+    private readonly Dictionary<Instrument, Action<double, string[]>> _labelled = [];
     private readonly Lock _gate = new();
+    private readonly MetricFactory _factory;
 
     /// <summary>Publishes <paramref name="meter"/>'s observable instruments in <paramref name="registry"/>.</summary>
     public MeterScrape(Meter meter, CollectorRegistry registry)
     {
         ArgumentNullException.ThrowIfNull(meter);
         ArgumentNullException.ThrowIfNull(registry);
-        var factory = Metrics.WithCustomRegistry(registry);
+        _factory = Metrics.WithCustomRegistry(registry);
         _listener.InstrumentPublished = (instrument, listener) =>
         {
             if (!ReferenceEquals(instrument.Meter, meter))
             {
                 return;
             }
-            string name = PrometheusName(instrument);
-            string help = instrument.Description ?? instrument.Name;
-            Action<double> sink = instrument is ObservableCounter<long> or ObservableCounter<double>
-                ? factory.CreateCounter(name, help).IncTo
-                : factory.CreateGauge(name, help).Set;
-            lock (_gate)
+            // An instrument observed with tags (one series per challenger) gets its labels at
+            // its first measurement; the others are served from the start, zero until observed.
+            if (!IsTagged(instrument))
             {
-                _sinks[instrument] = sink;
+                string name = PrometheusName(instrument);
+                string help = instrument.Description ?? instrument.Name;
+                Action<double> sink = IsCounter(instrument) ? _factory.CreateCounter(name, help).IncTo : _factory.CreateGauge(name, help).Set;
+                lock (_gate)
+                {
+                    _sinks[instrument] = sink;
+                }
             }
             listener.EnableMeasurementEvents(instrument);
         };
-        _listener.SetMeasurementEventCallback<long>((instrument, value, _, _) => Record(instrument, value));
-        _listener.SetMeasurementEventCallback<int>((instrument, value, _, _) => Record(instrument, value));
-        _listener.SetMeasurementEventCallback<double>((instrument, value, _, _) => Record(instrument, value));
+        _listener.SetMeasurementEventCallback<long>((instrument, value, tags, _) => Record(instrument, value, tags));
+        _listener.SetMeasurementEventCallback<int>((instrument, value, tags, _) => Record(instrument, value, tags));
+        _listener.SetMeasurementEventCallback<double>((instrument, value, tags, _) => Record(instrument, value, tags));
         _listener.Start();
         registry.AddBeforeCollectCallback(_listener.RecordObservableInstruments);
     }
+
+    // Such an instrument says so with an instrument-level tag (WorkerMeter.LabelsTag).
+    private static bool IsTagged(Instrument instrument) => instrument.Tags?.Any(t => t.Key == WorkerMeter.LabelsTag) == true;
+
+    private static bool IsCounter(Instrument instrument) => instrument is ObservableCounter<long> or ObservableCounter<double>;
 
     /// <summary>The Prometheus name of <paramref name="instrument"/>.</summary>
     internal static string PrometheusName(Instrument instrument)
@@ -61,8 +72,40 @@ internal sealed class MeterScrape : IDisposable
         return instrument is ObservableCounter<long> or ObservableCounter<double> ? name + "_total" : name;
     }
 
-    private void Record(Instrument instrument, double value)
+    private void Record(Instrument instrument, double value, ReadOnlySpan<KeyValuePair<string, object?>> tags)
     {
+        if (tags.Length > 0)
+        {
+            var names = new string[tags.Length];
+            var values = new string[tags.Length];
+            for (int i = 0; i < tags.Length; i++)
+            {
+                names[i] = tags[i].Key;
+                values[i] = Convert.ToString(tags[i].Value, System.Globalization.CultureInfo.InvariantCulture) ?? "";
+            }
+            Action<double, string[]>? labelled;
+            lock (_gate)
+            {
+                if (!_labelled.TryGetValue(instrument, out labelled))
+                {
+                    string name = PrometheusName(instrument);
+                    string help = instrument.Description ?? instrument.Name;
+                    if (IsCounter(instrument))
+                    {
+                        var counter = _factory.CreateCounter(name, help, names);
+                        labelled = (v, l) => counter.WithLabels(l).IncTo(v);
+                    }
+                    else
+                    {
+                        var gauge = _factory.CreateGauge(name, help, names);
+                        labelled = (v, l) => gauge.WithLabels(l).Set(v);
+                    }
+                    _labelled[instrument] = labelled;
+                }
+            }
+            labelled(value, values);
+            return;
+        }
         Action<double>? sink;
         lock (_gate)
         {
