@@ -6,6 +6,7 @@ using Driftline.Core.Challengers;
 using Driftline.Core.Events;
 using Driftline.Core.Features;
 using Driftline.Core.Options;
+using Driftline.Core.Scoring;
 using Driftline.Core.Snapshots;
 using Driftline.Output;
 using Driftline.Pipeline;
@@ -176,13 +177,22 @@ internal sealed class ReplayCommand(CommandContext context)
             recorders[i].Attach(lanes[i].Engine);
         }
         // Every configuration after the first is judged against it on the same labels; a
-        // decision is a challenger-better line in the champion's alerts.
-        for (int i = 1; i < lanes.Count; i++)
+        // decision is a challenger-better line in the champion's alerts. With
+        // Challengers:AutoPromote the winner's state is restored into the champion's lane.
+        ChallengerPanel? panel = null;
+        if (lanes.Count > 1)
         {
-            var judge = new ChallengerJudge(configs[i].Name, configs[0].Options.Challengers, lanes[0].Engine.Emit);
-            lanes[0].Engine.LabelGraded += judge.Champion;
-            lanes[i].Engine.LabelGraded = judge.Challenger;
-            recorders[i].Data.Challenger = judge;
+            panel = new ChallengerPanel(lanes[0].Engine, configs[0].Options.Challengers, snapshot =>
+            {
+                var engine = ScoringEngine.Restore(snapshot, lanes[0].Output);
+                lanes[0].Engine = engine;
+                recorders[0].Attach(engine);
+                return engine;
+            });
+            for (int i = 1; i < lanes.Count; i++)
+            {
+                recorders[i].Data.Challenger = panel.Add(configs[i].Name, lanes[i].Engine).Judge;
+            }
         }
         var names = new FeatureNames();
         var progress = new ReplayProgress(context.Error, context.ErrorIsTerminal, input.CanSeek ? input.Length : null);
@@ -191,6 +201,7 @@ internal sealed class ReplayCommand(CommandContext context)
         {
             ProbabilitiesOnly = MonitorOnly,
             Names = names,
+            Panel = panel,
             AfterBatch = engine => Report(progress, pipeline!, done: false),
         };
 
@@ -247,7 +258,7 @@ internal sealed class ReplayCommand(CommandContext context)
         await warmUp.ConfigureAwait(false);
         try
         {
-            await WriteEndFilesAsync(file, outDir, configs.Select(c => c.Name).ToList(), folders, lanes, recorders, names, webhooks, clock.Elapsed).ConfigureAwait(false);
+            await WriteEndFilesAsync(file, outDir, configs.Select(c => c.Name).ToList(), folders, lanes, recorders, names, webhooks, clock.Elapsed, panel?.Promotions).ConfigureAwait(false);
         }
         catch (OutputException ex)
         {
@@ -286,7 +297,8 @@ internal sealed class ReplayCommand(CommandContext context)
     /// summary: a model that learned nothing and charts without points would mislead.
     /// </summary>
     private async Task WriteEndFilesAsync(string file, string outDir, IReadOnlyList<string> names, string[] folders,
-        IReadOnlyList<ReplayLane> lanes, IReadOnlyList<ReportRecorder> recorders, FeatureNames featureNames, WebhookAlertSink?[] webhooks, TimeSpan elapsed)
+        IReadOnlyList<ReplayLane> lanes, IReadOnlyList<ReportRecorder> recorders, FeatureNames featureNames, WebhookAlertSink?[] webhooks, TimeSpan elapsed,
+        IReadOnlyList<ChallengerPromotion>? promotions)
     {
         bool empty = IsEmpty(lanes[0]);
         for (int i = 0; i < lanes.Count && !empty; i++)
@@ -321,7 +333,8 @@ internal sealed class ReplayCommand(CommandContext context)
         }
         for (int i = 0; i < lanes.Count; i++)
         {
-            SummaryWriter.Write(Path.Combine(folders[i], SummaryFile), lanes[i].Engine, lanes[i].DeadLetters, elapsed, webhooks[i], context.CreateOutput, recorders[i].Data.Challenger);
+            SummaryWriter.Write(Path.Combine(folders[i], SummaryFile), lanes[i].Engine, lanes[i].DeadLetters, elapsed, webhooks[i], context.CreateOutput, recorders[i].Data.Challenger,
+                i == 0 ? promotions : null);
         }
     }
 

@@ -2,6 +2,7 @@ using System.CommandLine;
 using Driftline.Configuration;
 using Driftline.Core.Challengers;
 using Driftline.Core.Options;
+using Driftline.Core.Scoring;
 using Driftline.Kafka.Options;
 using Driftline.Kafka.Worker;
 using Driftline.Output;
@@ -217,15 +218,17 @@ internal sealed class RunCommand(CommandContext context)
         // Challengers are further lanes of the same pipeline, as in replay: only the champion's
         // lane is written; each challenger's decision is a line among the champion's alerts.
         var lanes = new List<ReplayLane> { new(core) };
+        var panel = new ChallengerPanel(lanes[0].Engine, core.Challengers, snapshot => lanes[0].Engine = ScoringEngine.Restore(snapshot, lanes[0].Output))
+        {
+            Promoted = (p, _) => Log.Warning("Challenger {Challenger} promoted to champion at label {Labels} (Challengers:AutoPromote)", p.Challenger, p.Labels),
+        };
         foreach (var challenger in challengers)
         {
             var lane = new ReplayLane(challenger.Options);
-            var judge = new ChallengerJudge(challenger.Name, core.Challengers, lanes[0].Engine.Emit);
-            lanes[0].Engine.LabelGraded += judge.Champion;
-            lane.Engine.LabelGraded = judge.Challenger;
+            panel.Add(challenger.Name, lane.Engine);
             lanes.Add(lane);
         }
-        var pipeline = new ReplayPipeline(lanes);
+        var pipeline = new ReplayPipeline(lanes) { Panel = challengers.Count > 0 ? panel : null };
         var outputs = alertsOut is null ? new StdioOutputs(context.Out, context.Error, AlertPrefix) : new StdioOutputs(context.Out, alertsOut, "");
         try
         {

@@ -17,10 +17,11 @@ internal static class SummaryWriter
     /// </summary>
     /// <exception cref="OutputException">The file cannot be written.</exception>
     public static void Write(string path, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook = null, Func<string, Stream>? create = null,
-        Core.Challengers.ChallengerJudge? challenger = null) =>
-        OutputFile.Write(path, file => Write(file, engine, deadLetters, elapsed, webhook, challenger), create);
+        Core.Challengers.ChallengerJudge? challenger = null, IReadOnlyList<Core.Challengers.ChallengerPromotion>? promotions = null) =>
+        OutputFile.Write(path, file => Write(file, engine, deadLetters, elapsed, webhook, challenger, promotions), create);
 
-    private static void Write(Stream file, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook, Core.Challengers.ChallengerJudge? challenger)
+    private static void Write(Stream file, ScoringEngine engine, long deadLetters, TimeSpan elapsed, WebhookAlertSink? webhook, Core.Challengers.ChallengerJudge? challenger,
+        IReadOnlyList<Core.Challengers.ChallengerPromotion>? promotions)
     {
         using var w = new Utf8JsonWriter(file, new JsonWriterOptions { Indented = true });
         var c = engine.Counters;
@@ -112,6 +113,7 @@ internal static class SummaryWriter
             // This configuration ran as a challenger: its paired test against the champion.
             w.WriteStartObject("against_champion");
             w.WriteNumber("paired_labels", challenger.Paired);
+            w.WriteNumber("unpaired_labels", challenger.Unpaired);
             Number(w, "champion_log_loss", challenger.ChampionLogLoss);
             Number(w, "log_loss", challenger.ChallengerLogLoss);
             Number(w, "evidence", challenger.Evidence);
@@ -123,6 +125,22 @@ internal static class SummaryWriter
             }
             w.WriteEndArray();
             w.WriteEndObject();
+        }
+        if (promotions is { Count: > 0 })
+        {
+            // Challengers:AutoPromote: who replaced the champion, when. The figures above are
+            // then those of the engine serving at the end, which carries the promoted
+            // challenger's whole history.
+            w.WriteStartArray("promotions");
+            foreach (var p in promotions)
+            {
+                w.WriteStartObject();
+                w.WriteString("challenger", p.Challenger);
+                w.WriteNumber("at_label", p.Labels);
+                w.WriteString("event_id", p.EventId);
+                w.WriteEndObject();
+            }
+            w.WriteEndArray();
         }
         w.WriteNumber("alerts_raised", c.AlertsRaised);
         w.WriteNumber("incidents", c.Incidents);

@@ -15,14 +15,18 @@ internal sealed class ReplayLane
     public ReplayLane(DriftlineOptions options, Func<IScoringSink, IScoringSink>? decorate = null)
     {
         Sink = new BatchSink();
-        Engine = new ScoringEngine(options, decorate?.Invoke(Sink) ?? Sink);
+        Output = decorate?.Invoke(Sink) ?? Sink;
+        Engine = new ScoringEngine(options, Output);
     }
+
+    /// <summary>What the lane's engine writes into (the batch sink, decorated); a promoted challenger's engine is restored behind it.</summary>
+    public IScoringSink Output { get; }
 
     /// <summary>Collects the engine's results into the current output batch.</summary>
     public BatchSink Sink { get; }
 
-    /// <summary>The lane's engine.</summary>
-    public ScoringEngine Engine { get; }
+    /// <summary>The lane's engine; replaced when a challenger is promoted into the lane (<c>Challengers:AutoPromote</c>).</summary>
+    public ScoringEngine Engine { get; set; }
 
     /// <summary>Records rejected in this lane (malformed for every lane, or refused by this engine).</summary>
     public long DeadLetters { get; set; }

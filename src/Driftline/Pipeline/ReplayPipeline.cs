@@ -77,6 +77,9 @@ internal sealed class ReplayPipeline
     /// <summary>Called on the scoring thread after each batch (progress reporting); may be null.</summary>
     public Action<ScoringEngine>? AfterBatch { get; init; }
 
+    /// <summary>The champion (the first lane) and its challengers, settled after each record (a promotion happens there); null without challengers.</summary>
+    public Core.Challengers.ChallengerPanel? Panel { get; init; }
+
     /// <summary>
     /// Monitor mode: only external probabilities (<c>{"id","p","label"}</c>) and label-only
     /// records are taken; an event without <c>p</c> is dead-lettered, and features are ignored.
@@ -293,6 +296,8 @@ internal sealed class ReplayPipeline
                     break;
             }
         }
+        // Every lane has taken the record: a challenger declared better on it may now serve.
+        Panel?.Settle();
     }
 
     private static void Reject(ReplayLane lane, long lineNumber, string reason, ReadOnlySpan<byte> line, OutputBatch result)
