@@ -39,4 +39,54 @@ public sealed class WorkerChallengerTests
         // Only the champion's probabilities are published without a challenger topic.
         Assert.Equal(events, Topics.ReadAll(cluster.Bootstrap, options.PredictionsTopic, v => v.Count >= events, TimeSpan.FromSeconds(30)).Count);
     }
+
+    [Fact]
+    public void Run_AutoPromoteThenStoppedAndRestarted_PromotedChampionKeptAndEqualsAnUninterruptedRun()
+    {
+        // The champion barely learns and promotes: after the first half the checkpoints record
+        // the promotion and hold the challenger's engine as the champion's; the restarted worker
+        // keeps it (the challenger is not started again) and ends where a run without a stop ends.
+        using var cluster = new MockCluster();
+        var champion = new DriftlineOptions { Model = { LearningRate = 1e-6 }, Challengers = { AutoPromote = true } };
+        ChallengerConfig[] challengers = [new("learns", new DriftlineOptions())];
+        var stream = new StreamHalves(12_000, keys: 4, seed: 11, champion, challengers);
+        int events = stream.Events;
+        Topics.ProduceStream(cluster.Bootstrap, "ap-events", "ap-labels", stream.First);
+
+        using var resumedDir = new TempDir();
+        var resumed = WorkerHost.OptionsFor(cluster.Bootstrap, "ap", resumedDir.Path, group: "resumed");
+        resumed.PredictionsTopic = "ap-predictions-resumed";
+        using (var first = new WorkerHost(resumed, champion, challengers: challengers))
+        {
+            first.WaitFor(s => s.Predictions >= stream.FirstEvents && s.LabelsJoined >= stream.FirstJoined, TimeSpan.FromSeconds(60));
+            first.Stop();
+        }
+        var middle = CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic);
+        var promoted = middle.Where(c => c.Promotions is { Count: > 0 }).ToList();
+        Assert.NotEmpty(promoted);
+        Assert.All(promoted, c =>
+        {
+            Assert.Equal("learns", Assert.Single(c.Promotions!).Challenger);
+            Assert.Equal(0.1, c.Snapshot.Options.Model.LearningRate);
+            Assert.Empty(c.Challengers!);
+        });
+        Topics.ProduceStream(cluster.Bootstrap, "ap-events", "ap-labels", stream.Second);
+        using (var second = new WorkerHost(resumed, champion, challengers: challengers))
+        {
+            second.WaitFor(s => s.Partitions > 0 && CheckpointFiles.Done(resumedDir.Path, resumed.EventsTopic, events, second.Worker.Stats), TimeSpan.FromSeconds(60));
+            second.Stop();
+        }
+
+        using var straightDir = new TempDir();
+        var expected = stream.Uninterrupted(cluster, "ap", straightDir.Path);
+        var actual = CheckpointFiles.All(resumedDir.Path, resumed.EventsTopic);
+        CheckpointFiles.AssertSame(expected, actual);
+        for (int p = 0; p < actual.Count; p++)
+        {
+            Assert.Equal(System.Text.Json.JsonSerializer.Serialize(expected[p].Promotions), System.Text.Json.JsonSerializer.Serialize(actual[p].Promotions));
+        }
+        Assert.All(promoted, c => Assert.Equal(c.Promotions, actual.Single(a => a.Partition == c.Partition).Promotions));
+        var alerts = Topics.ReadAll(cluster.Bootstrap, resumed.AlertsTopic!, v => v.Count(a => a.Contains(ChallengerPanel.PromotedRule, StringComparison.Ordinal)) >= promoted.Count, TimeSpan.FromSeconds(30));
+        Assert.Contains(alerts, a => a.Contains(ChallengerPanel.PromotedRule, StringComparison.Ordinal));
+    }
 }

@@ -44,6 +44,14 @@ internal sealed class PartitionCheckpoint
     [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
     public List<ChallengerCheckpoint>? Challengers { get; set; }
 
+    /// <summary>
+    /// Challengers that replaced the champion on this partition (<c>Challengers:AutoPromote</c>),
+    /// in order, or null when none did. <see cref="Snapshot"/> is then the promoted engine, and a
+    /// challenger named here is not started again as a challenger after a restart.
+    /// </summary>
+    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
+    public List<Driftline.Core.Challengers.ChallengerPromotion>? Promotions { get; set; }
+
     /// <summary>Value of <see cref="Format"/>.</summary>
     public const string FormatName = "driftline-partition-checkpoint";
 

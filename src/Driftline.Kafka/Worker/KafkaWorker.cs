@@ -284,10 +284,17 @@ internal sealed class KafkaWorker
                 state.LastMetrics = row;
             }
             state.Counts.MoveTo(Stats);
-            foreach (var c in state.Challengers)
+            if (state.Panel is { } panel)
             {
-                Stats.Challengers[(c.Name, state.Partition)] = new ChallengerFigures(c.Judge.ChampionLogLoss, c.Judge.ChallengerLogLoss,
-                    Ece(state.LastMetrics), Ece(c.Sink.LastMetrics), c.Judge.Evidence, c.Judge.Threshold, c.Judge.Paired, c.Judge.DecidedAt.Count);
+                foreach (var promoted in panel.Promotions)
+                {
+                    Stats.Challengers.TryRemove((promoted.Challenger, state.Partition), out _);
+                }
+                foreach (var c in panel.Challengers)
+                {
+                    Stats.Challengers[(c.Name, state.Partition)] = new ChallengerFigures(c.Judge.ChampionLogLoss, c.Judge.ChallengerLogLoss,
+                        Ece(state.LastMetrics), Ece(state.ChallengerSinks[c.Name].LastMetrics), c.Judge.Evidence, c.Judge.Threshold, c.Judge.Paired, c.Judge.DecidedAt.Count);
+                }
             }
             foreach (var model in state.Engine.Models.Skip(state.KnownModels))
             {
@@ -329,14 +336,17 @@ internal sealed class KafkaWorker
             var counts = new OutputCounts();
             var outputs = new KafkaOutputs(_producer!, _options.PredictionsTopic, _options.AlertsTopic, _options.DeadLetterTopic, counts, _delivery, AlertObserver);
             var engine = checkpoint is null ? new ScoringEngine(_core, outputs) : ScoringEngine.Restore(checkpoint.Snapshot, outputs);
-            var challengers = Challengers.Select(c => Challenger(c, checkpoint, engine, counts, tp.Partition.Value)).ToList();
+            var processor = new RecordProcessor(outputs, counts, _core.Input);
             var state = new PartitionState(tp.Partition.Value, engine, checkpoint, HasLabels)
             {
-                Processor = new RecordProcessor(outputs, counts, _core.Input) { Challengers = challengers },
-                Challengers = challengers,
+                Processor = processor,
                 Counts = counts,
                 KnownModels = engine.Models.Count,
             };
+            if (Challengers.Count > 0)
+            {
+                state.Panel = processor.Panel = Panel(state, checkpoint, outputs, counts);
+            }
             _partitions[state.Partition] = state;
             Owned[state.Partition] = true;
             foreach (var model in engine.Models)
@@ -369,32 +379,39 @@ internal sealed class KafkaWorker
     }
 
     /// <summary>
-    /// A challenger's lane on a partition: restored by name from the checkpoint when it holds
-    /// one (engine and evidence at the checkpoint's offsets), fresh otherwise. A fresh one
+    /// The partition's challengers: each restored by name from the checkpoint when it holds one
+    /// (engine and evidence at the checkpoint's offsets), fresh otherwise; one the checkpoint
+    /// records as promoted is the champion now and is not started again. A fresh challenger
     /// beside a restored champion has none of the predictions waiting for labels: those labels
-    /// are graded by the champion alone and left unpaired.
+    /// are graded by the champion alone and left unpaired. The judging policy is the run's
+    /// (<c>Challengers</c> of the champion's configuration), also after a promotion.
     /// </summary>
-    private ChallengerLane Challenger(ChallengerConfig config, PartitionCheckpoint? checkpoint, ScoringEngine champion, OutputCounts counts, int partition)
+    private ChallengerPanel Panel(PartitionState state, PartitionCheckpoint? checkpoint, KafkaOutputs outputs, OutputCounts counts)
     {
-        var sink = new ChallengerSink(config.Name, _producer, _options.ChallengerTopic, _delivery, counts);
-        var saved = checkpoint?.Challengers?.FirstOrDefault(c => string.Equals(c.Name, config.Name, StringComparison.Ordinal));
-        var engine = saved is null ? new ScoringEngine(config.Options, sink) : ScoringEngine.Restore(saved.Snapshot, sink);
-        var judge = new ChallengerJudge(config.Name, champion.Options.Challengers, alert =>
+        int partition = state.Partition;
+        var panel = new ChallengerPanel(state.Engine, _core.Challengers, snapshot => state.Engine = ScoringEngine.Restore(snapshot, outputs))
         {
-            counts.ChallengerDecisions++;
-            champion.Emit(alert);
-        });
-        if (saved?.Judge is { } evidence)
+            Decided = _ => counts.ChallengerDecisions++,
+            Promoted = (p, _) => Log.Warning("Partition {Partition}: challenger {Challenger} promoted to champion at label {Labels} (Challengers:AutoPromote); the previous champion is dropped", partition, p.Challenger, p.Labels),
+        };
+        panel.Promotions.AddRange(checkpoint?.Promotions ?? []);
+        foreach (var config in Challengers.Where(c => !panel.Promotions.Any(p => p.Challenger == c.Name)))
         {
-            judge.Import(evidence);
+            var sink = new ChallengerSink(config.Name, _producer, _options.ChallengerTopic, _delivery, counts);
+            var saved = checkpoint?.Challengers?.FirstOrDefault(c => string.Equals(c.Name, config.Name, StringComparison.Ordinal));
+            var engine = saved is null ? new ScoringEngine(config.Options, sink) : ScoringEngine.Restore(saved.Snapshot, sink);
+            var entry = panel.Add(config.Name, engine);
+            if (saved?.Judge is { } evidence)
+            {
+                entry.Judge.Import(evidence);
+            }
+            state.ChallengerSinks[config.Name] = sink;
+            if (saved is null && checkpoint is not null)
+            {
+                Log.Information("Partition {Partition}: challenger {Challenger} is not in the checkpoint and starts fresh", partition, config.Name);
+            }
         }
-        champion.LabelGraded += judge.Champion;
-        engine.LabelGraded = judge.Challenger;
-        if (saved is null && checkpoint is not null)
-        {
-            Log.Information("Partition {Partition}: challenger {Challenger} is not in the checkpoint and starts fresh", partition, config.Name);
-        }
-        return new ChallengerLane(config.Name, engine, sink, judge);
+        return panel;
     }
 
     private void OnRevoked(IConsumer<byte[]?, byte[]> events, List<TopicPartitionOffset> revoked)

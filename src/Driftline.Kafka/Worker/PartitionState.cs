@@ -39,14 +39,17 @@ internal sealed class PartitionState
     /// <summary>The partition number.</summary>
     public int Partition { get; }
 
-    /// <summary>The partition's engine.</summary>
-    public ScoringEngine Engine { get; }
+    /// <summary>The partition's engine (the champion); replaced when a challenger is promoted (<c>Challengers:AutoPromote</c>).</summary>
+    public ScoringEngine Engine { get; set; }
 
     /// <summary>Parses and runs the partition's records (set at assignment).</summary>
     public RecordProcessor? Processor { get; init; }
 
-    /// <summary>The challengers scored in the shadow on this partition (set at assignment).</summary>
-    public IReadOnlyList<ChallengerLane> Challengers { get; init; } = [];
+    /// <summary>The champion's challengers on this partition (set at assignment; null without challengers).</summary>
+    public Driftline.Core.Challengers.ChallengerPanel? Panel { get; set; }
+
+    /// <summary>Each challenger's outputs on this partition, by name.</summary>
+    public Dictionary<string, ChallengerSink> ChallengerSinks { get; } = new(StringComparer.Ordinal);
 
     /// <summary>The champion's latest metrics row on this partition (kept by the loop for the challenger figures).</summary>
     public Driftline.Core.Scoring.MetricsRow? LastMetrics { get; set; }
@@ -156,7 +159,8 @@ internal sealed class PartitionState
         LabelsOffset = LabelsNext,
         WrittenAt = now,
         Snapshot = Engine.Snapshot(),
-        Challengers = Challengers.Count == 0 ? null
-            : [.. Challengers.Select(c => new ChallengerCheckpoint { Name = c.Name, Snapshot = c.Engine.Snapshot(), Judge = c.Judge.Export() })],
+        Challengers = Panel is null ? null
+            : [.. Panel.Challengers.Select(c => new ChallengerCheckpoint { Name = c.Name, Snapshot = c.Engine.Snapshot(), Judge = c.Judge.Export() })],
+        Promotions = Panel is { Promotions.Count: > 0 } ? [.. Panel.Promotions] : null,
     };
 }

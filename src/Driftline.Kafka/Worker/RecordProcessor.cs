@@ -13,8 +13,8 @@ namespace Driftline.Kafka.Worker;
 /// </summary>
 internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats, InputOptions input)
 {
-    /// <summary>Challengers that see every parsed record after the champion (their outcomes are theirs: only the champion's dead-letters a record).</summary>
-    public IReadOnlyList<ChallengerLane> Challengers { get; init; } = [];
+    /// <summary>The champion's challengers, which see every parsed record after it (their outcomes are theirs: only the champion's dead-letters a record); null without.</summary>
+    public Driftline.Core.Challengers.ChallengerPanel? Panel { get; set; }
 
     private readonly EventParser _parser = new() { MaxTextBytes = input.MaxTextBytes };
     private readonly ParsedRecord _record = new();
@@ -50,9 +50,14 @@ internal sealed class RecordProcessor(KafkaOutputs outputs, OutputCounts stats, 
             return false;
         }
         var outcome = engine.Process(_record);
-        foreach (var challenger in Challengers)
+        if (Panel is { } panel)
         {
-            challenger.Engine.Process(_record);
+            foreach (var challenger in panel.Challengers)
+            {
+                challenger.Engine.Process(_record);
+            }
+            // Every engine has taken the record: a challenger declared better on it may now serve.
+            panel.Settle();
         }
         switch (outcome)
         {
