@@ -65,8 +65,8 @@ internal sealed class ChallengerJudge
     /// <summary>Paired labels at which the challenger was declared better, in order.</summary>
     public List<long> DecidedAt { get; private set; } = [];
 
-    /// <summary>Called after each pair (the champion's loss, the challenger's), e.g. to record the run over time; may be null.</summary>
-    public Action<ChallengerJudge>? AfterPair { get; set; }
+    /// <summary>Called after each pair with the champion's loss and the challenger's, e.g. to record the run over time; may be null.</summary>
+    public Action<double, double>? AfterPair { get; set; }
 
     private double _championSum;
     private double _challengerSum;
@@ -139,7 +139,7 @@ internal sealed class ChallengerJudge
         _challengerSum += challengerLoss;
         double evidence = _test.LogWealth;
         bool decided = _test.Add(championLoss, challengerLoss);
-        AfterPair?.Invoke(this);
+        AfterPair?.Invoke(championLoss, challengerLoss);
         if (decided)
         {
             DecidedAt.Add(Paired);

@@ -191,7 +191,10 @@ internal sealed class ReplayCommand(CommandContext context)
             });
             for (int i = 1; i < lanes.Count; i++)
             {
-                recorders[i].Data.Challenger = panel.Add(configs[i].Name, lanes[i].Engine).Judge;
+                var judge = panel.Add(configs[i].Name, lanes[i].Engine).Judge;
+                recorders[i].Data.Challenger = judge;
+                recorders[i].Data.ChallengerCurve = new ChallengerCurve();
+                recorders[i].Data.ChallengerCurve!.Follow(judge);
             }
         }
         var names = new FeatureNames();

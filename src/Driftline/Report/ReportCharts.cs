@@ -61,6 +61,49 @@ internal static class ReportCharts
         return Export(plot, "log-loss");
     }
 
+    /// <summary>
+    /// Each challenger's mean log-loss minus the champion's over the same paired labels, stretch
+    /// by stretch (below zero: the challenger did better there), with a zero line.
+    /// </summary>
+    public static string ChallengerLoss(IReadOnlyList<ReportData> runs)
+    {
+        using var plot = NewPlot("Challengers against the champion", "challenger − champion log-loss per stretch (below 0: challenger better)");
+        plot.XLabel("labels paired");
+        var zero = plot.Add.HorizontalLine(0, 1, Faint, LinePattern.Solid);
+        zero.ExcludeFromLegend = true;
+        for (int r = 1; r < runs.Count; r++)
+        {
+            if (runs[r].ChallengerCurve is not { } curve || curve.Points.Count == 0)
+            {
+                continue;
+            }
+            var points = curve.Points;
+            var line = plot.Add.ScatterLine(points.Select(p => (double)p.Paired).ToArray(), points.Select(p => p.Challenger - p.Champion).ToArray(), Palette[r % Palette.Length]);
+            line.LineWidth = 2;
+            line.MarkerSize = 0;
+            line.LegendText = runs[r].Name;
+        }
+        plot.ShowLegend(Alignment.UpperLeft);
+        return Export(plot, "challengers");
+    }
+
+    /// <summary>Rolling expected calibration error of each run.</summary>
+    public static string Ece(IReadOnlyList<ReportData> runs)
+    {
+        using var plot = NewPlot("Expected calibration error", "ECE over the window (lower is better)");
+        for (int r = 0; r < runs.Count; r++)
+        {
+            var line = Line(plot, runs[r].Points, p => p.Ece, Palette[r % Palette.Length]);
+            line.LegendText = runs[r].Name;
+        }
+        if (runs.Count > 0)
+        {
+            EventTimeAxis(plot, runs[0].Points);
+        }
+        plot.ShowLegend(Alignment.UpperLeft);
+        return Export(plot, "ece");
+    }
+
     /// <summary>Rolling calibration-in-the-large (mean p − mean y) of each run, with a zero line.</summary>
     public static string CalibrationInTheLarge(IReadOnlyList<ReportData> runs, bool alertMarks)
     {

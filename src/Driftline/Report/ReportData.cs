@@ -56,6 +56,9 @@ internal sealed class ReportData
     /// <summary>For a configuration after the first: its test against the champion; null otherwise.</summary>
     public Core.Challengers.ChallengerJudge? Challenger { get; set; }
 
+    /// <summary>This configuration as a challenger: its paired log-loss and the champion's across the run; null otherwise.</summary>
+    public ChallengerCurve? ChallengerCurve { get; set; }
+
     /// <summary>Whole-run counts.</summary>
     public ScoringCounters Counters { get; set; } = new();
 

@@ -171,6 +171,10 @@ internal static class ReportWriter
                         Num(r.Challenger.Evidence), Num(r.Challenger.Threshold),
                         r.Challenger.DecidedAt.Count == 0 ? "never" : string.Join(", ", r.Challenger.DecidedAt.Take(10).Select(d => d.ToString("N0", C))),
                     ]));
+            page.Raw(HtmlPage.Figure(ReportCharts.ChallengerLoss(runs),
+                    $"Over time: each challenger's mean log-loss minus '{runs[0].Name}''s on the same labels, over stretches of at least {ChallengerCurve.FirstStretch:N0} paired labels. A line that settles below zero after a change is a challenger that copes with it better; one that wanders around zero is not separated, as the test says."))
+                .Raw(HtmlPage.Figure(ReportCharts.Ece(runs),
+                    "Rolling expected calibration error of the champion and each challenger over their own windows."));
         }
 
         // The key doubles as the way into each configuration's own report (relative links work offline).

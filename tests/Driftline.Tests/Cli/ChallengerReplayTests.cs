@@ -24,6 +24,9 @@ public sealed class ChallengerReplayTests(DemoReplay demo) : IClassFixture<DemoR
         Assert.True(File.Exists(Path.Combine(folder.File("out"), "default", "summary.json")));
         string comparison = File.ReadAllText(Path.Combine(folder.File("out"), "report.html"));
         Assert.Contains("id=\"challengers\"", comparison, StringComparison.Ordinal);
+        // Beside the table, the challenger's log-loss against the champion's over time.
+        Assert.Contains("challenger − champion log-loss per stretch", comparison, StringComparison.Ordinal);
+        Assert.Contains("Expected calibration error", comparison, StringComparison.Ordinal);
     }
 
     [Fact]
