@@ -87,7 +87,7 @@ internal sealed class CheckCommand(CommandContext context)
             Core.Recalibration.RecalibrationMode.OnAlert => $"Recalibration: served as {form} from a calibration rule's raise until the rules have been clear for {recal.ClearLabels:N0} labels (half-life {recal.HalfLife:N0} labels, b within {recal.MinSlope}–{recal.MaxSlope}); p_raw keeps the model's own.",
             _ => "Recalibration: off (predictions carry the model's own p).",
         });
-        o.WriteLine($"As champion: a challenger (replay --challenger) is declared better at error rate {options.Challengers.ErrorRate}, per-label log-loss differences clipped at {options.Challengers.LossClip} nats.");
+        o.WriteLine($"As champion: a challenger (replay or run --challenger) is declared better at error rate {options.Challengers.ErrorRate}, per-label log-loss differences clipped at {options.Challengers.LossClip} nats{(options.Challengers.AutoPromote ? ", and then replaces the champion (Challengers:AutoPromote)" : "; the champion stays (Challengers:AutoPromote off)")}.");
         // Only scheme, host and port: the path and query of a webhook address often hold a secret,
         // and this text goes into report.html.
         var w = options.Webhook;

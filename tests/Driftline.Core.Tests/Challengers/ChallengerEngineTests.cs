@@ -9,7 +9,7 @@ namespace Driftline.Core.Tests.Challengers;
 
 /// <summary>
 /// Challengers judged on engines, as replay wires them: the same events through a champion and
-/// a challenger, their per-label log-losses paired. The streams are generated from a known
+/// a challenger, their per-label log-losses paired by event id. The streams are generated from a known
 /// logistic model (<see cref="KnownModelStream"/>) whose relationship changes at a stated label.
 /// </summary>
 public sealed class ChallengerEngineTests
@@ -57,7 +57,7 @@ public sealed class ChallengerEngineTests
     }
 
     [Fact]
-    public void LateLabels_PairedInGradingOrder()
+    public void LateLabels_PairedWhenBothSidesGradedThem()
     {
         var (champion, challenger, judge, _) = Wire(new DriftlineOptions(), new DriftlineOptions { Model = { LearningRate = 0.3 } });
         EngineDriver.Feed(champion, ["""{"id":"a","features":{"x":1}}""", """{"id":"b","features":{"x":2},"label":1}"""]);
