@@ -22,17 +22,22 @@ internal sealed class CheckpointCut(PartitionState state, string eventsTopic, st
     /// <summary>How long taking the snapshot took (ms), once taken.</summary>
     public double SnapshotMs { get; private set; }
 
-    /// <summary>Takes the snapshot now; the partition must not have moved since the cut.</summary>
+    /// <summary>
+    /// Takes the snapshot now, at the cut's positions; no record of the partition may have been
+    /// processed since the cut. A position still unknown at the cut may have become known
+    /// meanwhile: the loop thread learns it from an end of partition without touching the
+    /// engine, and the checkpoint keeps it unknown, as it was at the cut.
+    /// </summary>
     public void Take()
     {
         try
         {
-            if (state.EventsNext != _events || state.LabelsNext != _labels)
+            if (Moved(_events, state.EventsNext) || Moved(_labels, state.LabelsNext))
             {
                 throw new InvalidOperationException($"partition {state.Partition} moved past its checkpoint cut before the snapshot was taken");
             }
             var clock = Stopwatch.StartNew();
-            var checkpoint = state.ToCheckpoint(eventsTopic, labelsTopic, at);
+            var checkpoint = state.ToCheckpoint(eventsTopic, labelsTopic, at, _events, _labels);
             SnapshotMs = clock.Elapsed.TotalMilliseconds;
             _taken.TrySetResult(checkpoint);
         }
@@ -42,6 +47,8 @@ internal sealed class CheckpointCut(PartitionState state, string eventsTopic, st
             throw;
         }
     }
+
+    private static bool Moved(long atCut, long now) => atCut != PartitionState.Unknown && now != atCut;
 
     /// <summary>Gives the cut up (its batch failed): the writer waiting for it fails and nothing is committed.</summary>
     public void Abandon() => _taken.TrySetException(new KafkaWorkerException($"the checkpoint of partition {state.Partition} was abandoned: its batch failed"));

@@ -149,14 +149,14 @@ internal sealed class PartitionState
     /// </summary>
     public CheckpointCut? DueCut { get; set; }
 
-    /// <summary>A checkpoint of the state now (the engine's snapshot and the positions it reflects).</summary>
-    public PartitionCheckpoint ToCheckpoint(string eventsTopic, string? labelsTopic, DateTime now) => new()
+    /// <summary>A checkpoint of the engine as it is now, recorded at the next offsets of the cut it belongs to.</summary>
+    public PartitionCheckpoint ToCheckpoint(string eventsTopic, string? labelsTopic, DateTime now, long eventsNext, long labelsNext) => new()
     {
         EventsTopic = eventsTopic,
         Partition = Partition,
-        EventsOffset = EventsNext,
+        EventsOffset = eventsNext,
         LabelsTopic = labelsTopic,
-        LabelsOffset = LabelsNext,
+        LabelsOffset = labelsNext,
         WrittenAt = now,
         Snapshot = Engine.Snapshot(),
         Challengers = Panel is null ? null
