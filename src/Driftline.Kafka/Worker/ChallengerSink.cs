@@ -62,28 +62,8 @@ internal sealed class ChallengerSink : IScoringSink
             Value = _buffer.WrittenSpan[..^1].ToArray(),
             Headers = [new Header(HeaderName, _header)],
         };
-        // The same delivery accounting as the champion's outputs: counted before it is handed over.
-        var epoch = _failure.Current;
-        epoch.Sending();
-        while (true)
-        {
-            try
-            {
-                _producer.Produce(_topic, message, epoch.Handler);
-                return;
-            }
-            catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
-            {
-                // Backpressure, as for the champion's predictions.
-                _counts.ProduceWaits++;
-                Thread.Sleep(5);
-            }
-            catch
-            {
-                epoch.NotSent();
-                throw;
-            }
-        }
+        // The same delivery accounting and backpressure as the champion's outputs.
+        _failure.Produce(_producer, _topic, message, _counts);
     }
 
     /// <inheritdoc />

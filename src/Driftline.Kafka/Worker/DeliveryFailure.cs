@@ -34,6 +34,35 @@ internal sealed class DeliveryFailure
         return sealedEpoch;
     }
 
+    /// <summary>
+    /// Produces <paramref name="message"/> in the current epoch, counted before it is handed
+    /// over so the epoch never looks acknowledged while it is in flight. A full send queue is
+    /// backpressure: wait for the broker to take some (counted in <c>ProduceWaits</c>) and retry.
+    /// </summary>
+    public void Produce(IProducer<byte[]?, byte[]> producer, string topic, Message<byte[]?, byte[]> message, OutputCounts counts)
+    {
+        var epoch = Current;
+        epoch.Sending();
+        while (true)
+        {
+            try
+            {
+                producer.Produce(topic, message, epoch.Handler);
+                return;
+            }
+            catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
+            {
+                counts.ProduceWaits++;
+                Thread.Sleep(5);
+            }
+            catch
+            {
+                epoch.NotSent();
+                throw;
+            }
+        }
+    }
+
     /// <summary>Keeps the first failure.</summary>
     public void Record(DeliveryReport<byte[]?, byte[]> report) =>
         Interlocked.CompareExchange(ref _error, $"delivery to {report.Topic} failed: {report.Error.Reason} ({report.Error.Code})", null);

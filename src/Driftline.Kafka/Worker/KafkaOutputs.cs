@@ -141,32 +141,8 @@ internal sealed class KafkaOutputs : IScoringSink
         Produce(topic, key, _buffer.WrittenSpan.ToArray());
     }
 
-    private void Produce(string topic, byte[]? key, byte[] value)
-    {
-        var message = new Message<byte[]?, byte[]> { Key = key, Value = value };
-        // Counted before it is handed over, so the epoch never looks acknowledged while it is in flight.
-        var epoch = _failure.Current;
-        epoch.Sending();
-        while (true)
-        {
-            try
-            {
-                _producer.Produce(topic, message, epoch.Handler);
-                return;
-            }
-            catch (ProduceException<byte[]?, byte[]> ex) when (ex.Error.Code == ErrorCode.Local_QueueFull)
-            {
-                // Backpressure: the send queue is full, so wait for the broker to take some.
-                _stats.ProduceWaits++;
-                Thread.Sleep(5);
-            }
-            catch
-            {
-                epoch.NotSent();
-                throw;
-            }
-        }
-    }
+    private void Produce(string topic, byte[]? key, byte[] value) =>
+        _failure.Produce(_producer, topic, new Message<byte[]?, byte[]> { Key = key, Value = value }, _stats);
 
     private byte[] KeyBytes(string key)
     {
