@@ -22,7 +22,8 @@ try
 }
 catch (Exception ex)
 {
-    Log.Fatal(ex, "Driftline stopped on an unexpected error");
+    // Outside a command (signal set-up, say): the same one line and trace file as inside.
+    await InternalError.ReportAsync(ex, args, Console.Error);
     return ExitCode.Failure;
 }
 finally

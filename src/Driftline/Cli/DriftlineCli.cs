@@ -39,8 +39,28 @@ internal static class DriftlineCli
         }
         // Signals are the host's (StopSignals): the library's own handler would end a replay
         // after two seconds with its files half written.
-        var invocation = new InvocationConfiguration { Output = context.Out, Error = context.Error, ProcessTerminationTimeout = null };
-        int code = await parsed.InvokeAsync(invocation, cancellation).ConfigureAwait(false);
+        // Exceptions are ours to report (InternalError): the library's handler prints the stack.
+        var invocation = new InvocationConfiguration
+        {
+            Output = context.Out,
+            Error = context.Error,
+            ProcessTerminationTimeout = null,
+            EnableDefaultExceptionHandler = false,
+        };
+        int code;
+        try
+        {
+            code = await parsed.InvokeAsync(invocation, cancellation).ConfigureAwait(false);
+        }
+        catch (OperationCanceledException) when (cancellation.IsCancellationRequested)
+        {
+            return context.StoppedExitCode();
+        }
+        catch (Exception ex)
+        {
+            await InternalError.ReportAsync(ex, args, context.Error).ConfigureAwait(false);
+            return ExitCode.Failure;
+        }
         return noCommand ? ExitCode.Usage : code;
     }
 
