@@ -72,6 +72,28 @@ public sealed class MetricsEndpointTests
         Assert.Contains("driftline_challenger_decisions_total 1", metrics, StringComparison.Ordinal);
     }
 
+    [Fact]
+    public async Task Start_ChallengerPartitionGivenUp_ItsSeriesLeaveTheNextScrape()
+    {
+        using var dir = new TempDir();
+        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        worker.Stats.Challengers[("fast", 2)] = new ChallengerFigures(0.52, 0.47, 0.031, 0.012, 2.5, 4.605, 1_200, 1);
+        worker.Stats.Challengers[("fast", 5)] = new ChallengerFigures(0.5, 0.55, 0.02, 0.04, 0, 4.605, 900, 0);
+        int port = FreePort();
+        using var endpoint = MetricsEndpoint.Start(new WorkerOptions { MetricsPort = port }, worker);
+        using var http = new HttpClient { BaseAddress = new Uri($"http://127.0.0.1:{port}") };
+        var token = TestContext.Current.CancellationToken;
+        string before = await http.GetStringAsync(new Uri("/metrics", UriKind.Relative), token);
+        Assert.Contains("driftline_challenger_log_loss{challenger=\"fast\",partition=\"5\"} 0.55", before, StringComparison.Ordinal);
+
+        // Partition 5 moved to another member (the worker drops its figures): a series still
+        // served here would show two owners' values for one partition, the old one frozen.
+        worker.Stats.Challengers.TryRemove(("fast", 5), out _);
+        string after = await http.GetStringAsync(new Uri("/metrics", UriKind.Relative), token);
+        Assert.DoesNotContain("partition=\"5\"", after, StringComparison.Ordinal);
+        Assert.Contains("driftline_challenger_log_loss{challenger=\"fast\",partition=\"2\"} 0.47", after, StringComparison.Ordinal);
+    }
+
     [Theory]
     [InlineData("*")]
     [InlineData("0.0.0.0")]

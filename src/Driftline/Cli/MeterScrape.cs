@@ -19,8 +19,9 @@ internal sealed class MeterScrape : IDisposable
 {
     private readonly MeterListener _listener = new();
     private readonly Dictionary<Instrument, Action<double>> _sinks = [];
-    private readonly Dictionary<Instrument, Action<double, string[]>> _labelled = [];
+    private readonly Dictionary<Instrument, LabelledSeries> _labelled = [];
     private readonly Lock _gate = new();
+    private readonly Lock _scrape = new(); // two scrapes at once must not clear each other's marks
     private readonly MetricFactory _factory;
 
     /// <summary>Publishes <paramref name="meter"/>'s observable instruments in <paramref name="registry"/>.</summary>
@@ -53,7 +54,40 @@ internal sealed class MeterScrape : IDisposable
         _listener.SetMeasurementEventCallback<int>((instrument, value, tags, _) => Record(instrument, value, tags));
         _listener.SetMeasurementEventCallback<double>((instrument, value, tags, _) => Record(instrument, value, tags));
         _listener.Start();
-        registry.AddBeforeCollectCallback(_listener.RecordObservableInstruments);
+        registry.AddBeforeCollectCallback(Observe);
+    }
+
+    // A labelled series not observed in this scrape (a partition given up, a challenger
+    // promoted) is removed, so /metrics never serves a frozen value for something gone.
+    private void Observe()
+    {
+        lock (_scrape)
+        {
+            ObserveOnce();
+        }
+    }
+
+    private void ObserveOnce()
+    {
+        lock (_gate)
+        {
+            foreach (var series in _labelled.Values)
+            {
+                series.Seen.Clear();
+            }
+        }
+        _listener.RecordObservableInstruments();
+        lock (_gate)
+        {
+            foreach (var series in _labelled.Values)
+            {
+                foreach (var gone in series.Served.Keys.Where(k => !series.Seen.Contains(k)).ToList())
+                {
+                    series.Remove(series.Served[gone]);
+                    series.Served.Remove(gone);
+                }
+            }
+        }
     }
 
     // Such an instrument says so with an instrument-level tag (WorkerMeter.LabelsTag).
@@ -83,27 +117,29 @@ internal sealed class MeterScrape : IDisposable
                 names[i] = tags[i].Key;
                 values[i] = Convert.ToString(tags[i].Value, System.Globalization.CultureInfo.InvariantCulture) ?? "";
             }
-            Action<double, string[]>? labelled;
             lock (_gate)
             {
-                if (!_labelled.TryGetValue(instrument, out labelled))
+                if (!_labelled.TryGetValue(instrument, out var series))
                 {
                     string name = PrometheusName(instrument);
                     string help = instrument.Description ?? instrument.Name;
                     if (IsCounter(instrument))
                     {
                         var counter = _factory.CreateCounter(name, help, names);
-                        labelled = (v, l) => counter.WithLabels(l).IncTo(v);
+                        series = new LabelledSeries((v, l) => counter.WithLabels(l).IncTo(v), l => counter.RemoveLabelled(l));
                     }
                     else
                     {
                         var gauge = _factory.CreateGauge(name, help, names);
-                        labelled = (v, l) => gauge.WithLabels(l).Set(v);
+                        series = new LabelledSeries((v, l) => gauge.WithLabels(l).Set(v), l => gauge.RemoveLabelled(l));
                     }
-                    _labelled[instrument] = labelled;
+                    _labelled[instrument] = series;
                 }
+                string key = string.Join('\u001f', values);
+                series.Served[key] = values;
+                series.Seen.Add(key);
+                series.Set(value, values);
             }
-            labelled(value, values);
             return;
         }
         Action<double>? sink;
@@ -116,4 +152,12 @@ internal sealed class MeterScrape : IDisposable
 
     /// <inheritdoc />
     public void Dispose() => _listener.Dispose();
+
+    /// <summary>One labelled instrument's Prometheus series: every label set served, and those observed in the scrape under way.</summary>
+    private sealed record LabelledSeries(Action<double, string[]> Set, Action<string[]> Remove)
+    {
+        public Dictionary<string, string[]> Served { get; } = [];
+
+        public HashSet<string> Seen { get; } = [];
+    }
 }
