@@ -54,10 +54,15 @@ public sealed class WorkerRestartTests
     [Fact]
     public void Run_MulticlassStoppedMidStreamAndRestarted_ModelsEqualAnUninterruptedRun()
     {
-        // The same restart with Model:Classes: the softmax weights, the per-class windows and
-        // rules and the pending class probabilities all come back from the checkpoint.
+        // The same restart with Model:Classes and the live recalibration on: the softmax
+        // weights, the per-class windows and rules, the pending class probabilities and the
+        // vector-scaling fit all come back from the checkpoint.
         using var cluster = new MockCluster();
-        var core = new Driftline.Core.Options.DriftlineOptions { Model = new Driftline.Core.Options.ModelOptions { Classes = ["on-time", "late", "failed"] } };
+        var core = new Driftline.Core.Options.DriftlineOptions
+        {
+            Model = new Driftline.Core.Options.ModelOptions { Classes = ["on-time", "late", "failed"] },
+            Recalibration = { Mode = Driftline.Core.Recalibration.RecalibrationMode.Always, MinLabels = 20 },
+        };
         var stream = new StreamHalves(4_000, keys: 4, seed: 9, core);
         int events = stream.Events;
         Topics.ProduceStream(cluster.Bootstrap, "mc-events", "mc-labels", stream.First);
@@ -83,8 +88,16 @@ public sealed class WorkerRestartTests
         CheckpointFiles.AssertSame(expected, actual);
         Assert.Equal(events, actual.Sum(c => c.Snapshot.Counters.Labels));
         Assert.All(actual, c => Assert.Equal(3, c.Snapshot.Classes!.Count));
-        var prediction = Topics.ReadAll(cluster.Bootstrap, resumed.PredictionsTopic, v => v.Count >= 1, TimeSpan.FromSeconds(30))[0];
-        Assert.Contains("\"p\":{\"on-time\":", prediction, StringComparison.Ordinal);
+        Assert.All(actual, c => Assert.All(c.Snapshot.Models, m => Assert.NotNull(m.Recalibration)));
+        var predictions = Topics.ReadAll(cluster.Bootstrap, resumed.PredictionsTopic, v => v.Count >= events, TimeSpan.FromSeconds(30));
+        Assert.All(predictions, line => Assert.Contains("\"p\":{\"on-time\":", line, StringComparison.Ordinal));
+        Assert.All(predictions, line => Assert.Contains("\"p_raw\":{\"on-time\":", line, StringComparison.Ordinal));
+        // Once a key's fit has MinLabels labels the served probabilities differ from the raw ones somewhere.
+        Assert.Contains(predictions, line =>
+        {
+            using var doc = System.Text.Json.JsonDocument.Parse(line);
+            return doc.RootElement.GetProperty("p").GetProperty("late").GetDouble() != doc.RootElement.GetProperty("p_raw").GetProperty("late").GetDouble();
+        });
     }
 
     [Fact]
