@@ -9,12 +9,12 @@ namespace Driftline.Kafka.Tests;
 
 public sealed class CheckpointStoreTests
 {
-    private static PartitionCheckpoint Checkpoint(int partition) => new()
+    private static PartitionCheckpoint Checkpoint(int partition, long events = 10, long labels = 4) => new()
     {
         EventsTopic = "cs-events",
         Partition = partition,
-        EventsOffset = 10,
-        LabelsOffset = 4,
+        EventsOffset = events,
+        LabelsOffset = labels,
         WrittenAt = DateTime.UtcNow,
         Snapshot = new ScoringEngine(new DriftlineOptions(), new NullSink()).Snapshot(),
     };
@@ -37,6 +37,126 @@ public sealed class CheckpointStoreTests
         Assert.Equal("another writer's checkpoint, half written", File.ReadAllText(other));
         Assert.Equal(10, store.Read(checkpoint.EventsTopic, checkpoint.Partition)!.EventsOffset);
         Assert.DoesNotContain(Directory.GetFiles(dir.Path), f => f.EndsWith($".{Environment.ProcessId}.tmp", StringComparison.Ordinal));
+    }
+
+    [Fact]
+    public void Write_OlderCheckpointAfterANewerOneOfAnotherOwner_KeepsTheNewerOne()
+    {
+        // Two owners of one partition (the mock cluster assigns a partition to a member while
+        // its old owner still holds it) write the same shared file; the one that lags must not
+        // put the partition back in time. Common practice: a checkpoint only moves forward.
+        using var dir = new TempDir();
+        var ahead = new CheckpointStore(dir.Path);
+        var behind = new CheckpointStore(dir.Path);
+        var newer = Checkpoint(5, events: 20, labels: 8);
+        var older = Checkpoint(5, events: 10, labels: 4);
+
+        ahead.Write(newer, CheckpointStore.Serialize(newer));
+        behind.Write(older, CheckpointStore.Serialize(older));
+
+        var kept = ahead.Read("cs-events", 5)!;
+        Assert.Equal((20L, 8L), (kept.EventsOffset, kept.LabelsOffset));
+        Assert.DoesNotContain(Directory.GetFiles(dir.Path), f => f.EndsWith(".tmp", StringComparison.Ordinal));
+    }
+
+    [Fact]
+    public void Write_Refused_ReturnsTheKeptPositionsAndSkipsTheTopicCopy()
+    {
+        // The checkpoint topic's copy runs under the same lock and only after the file was
+        // written, so a lagging owner cannot put the topic back either (with a shared folder).
+        using var dir = new TempDir();
+        var store = new CheckpointStore(dir.Path);
+        var newer = Checkpoint(8, events: 30, labels: 12);
+        var older = Checkpoint(8, events: 29, labels: 40);
+        int copies = 0;
+
+        var first = store.Write(newer, CheckpointStore.Serialize(newer), () => copies++);
+        var second = store.Write(older, CheckpointStore.Serialize(older), () => copies++);
+
+        Assert.Null(first);
+        Assert.Equal((30L, 12L), second);
+        Assert.Equal(1, copies);
+    }
+
+    [Fact]
+    public void Write_SameEventsOffsetButFewerLabels_KeepsTheOneWithMoreLabels()
+    {
+        // Positions compare by events offset, then labels offset, as CheckpointLoader orders them.
+        using var dir = new TempDir();
+        var store = new CheckpointStore(dir.Path);
+        var newer = Checkpoint(6, events: 20, labels: 9);
+        var older = Checkpoint(6, events: 20, labels: 8);
+
+        store.Write(newer, CheckpointStore.Serialize(newer));
+        store.Write(older, CheckpointStore.Serialize(older));
+
+        Assert.Equal(9, store.Read("cs-events", 6)!.LabelsOffset);
+    }
+
+    [Fact]
+    public async Task Write_AnotherProcessHoldsThePartitionsLock_WaitsForItThenWrites()
+    {
+        // Read, compare and rename must be one step across processes, or a lagging owner can
+        // read an old file, lose the race and rename its older checkpoint over a newer one.
+        // The lock is NAME.lock opened exclusively (an flock on Linux); here the test holds it,
+        // as another worker in the middle of its write would.
+        using var dir = new TempDir();
+        var store = new CheckpointStore(dir.Path);
+        var checkpoint = Checkpoint(7);
+        string path = store.PathOf(checkpoint.EventsTopic, checkpoint.Partition);
+        using var held = new FileStream(path + ".lock", FileMode.OpenOrCreate, FileAccess.ReadWrite, FileShare.None);
+
+        var writing = Task.Run(() => store.Write(checkpoint, CheckpointStore.Serialize(checkpoint)), TestContext.Current.CancellationToken);
+        await Task.Delay(500, TestContext.Current.CancellationToken);
+        Assert.False(writing.IsCompleted);
+        Assert.False(File.Exists(path));
+
+        held.Dispose();
+        await writing.WaitAsync(TimeSpan.FromSeconds(30), TestContext.Current.CancellationToken);
+        Assert.Equal(10, store.Read(checkpoint.EventsTopic, checkpoint.Partition)!.EventsOffset);
+    }
+
+    [Fact]
+    public void RemoveLeftovers_TemporaryFilesOfEndedAndLiveProcesses_RemovesOnlyTheEndedOnes()
+    {
+        // A killed worker leaves NAME.PID.tmp behind; two workers share the folder, so a live
+        // process's file is never touched, nor one whose partition is locked (a writer in
+        // another PID namespace, a container on the same volume, is inside its write).
+        using var dir = new TempDir();
+        var store = new CheckpointStore(dir.Path);
+        int ended = EndedProcessId();
+        using var live = System.Diagnostics.Process.Start(new System.Diagnostics.ProcessStartInfo("sleep", "60") { UseShellExecute = false })!;
+        try
+        {
+            string deadLeftover = store.PathOf("cs-events", 1) + $".{ended}.tmp";
+            string liveFile = store.PathOf("cs-events", 2) + $".{live.Id}.tmp";
+            string ownFile = store.PathOf("cs-events", 3) + $".{Environment.ProcessId}.tmp";
+            string lockedLeftover = store.PathOf("cs-events", 4) + $".{ended}.tmp";
+            foreach (var file in new[] { deadLeftover, liveFile, ownFile, lockedLeftover })
+            {
+                File.WriteAllText(file, "half a checkpoint");
+            }
+            using var held = new FileStream(store.PathOf("cs-events", 4) + ".lock", FileMode.OpenOrCreate, FileAccess.ReadWrite, FileShare.None);
+
+            int removed = store.RemoveLeftovers();
+
+            Assert.Equal(1, removed);
+            Assert.False(File.Exists(deadLeftover));
+            Assert.True(File.Exists(liveFile));
+            Assert.True(File.Exists(ownFile));
+            Assert.True(File.Exists(lockedLeftover));
+        }
+        finally
+        {
+            live.Kill();
+        }
+    }
+
+    private static int EndedProcessId()
+    {
+        using var process = System.Diagnostics.Process.Start(new System.Diagnostics.ProcessStartInfo("true") { UseShellExecute = false })!;
+        process.WaitForExit();
+        return process.Id;
     }
 
     [Fact]

@@ -121,6 +121,7 @@ internal sealed class KafkaWorker
             var topicWriter = _options.CheckpointTopic is { } checkpointTopic
                 ? new TopicCheckpointWriter(producer, checkpointTopic, TopicChecks.RequireCheckpointTopic(producer, checkpointTopic))
                 : null;
+            RemoveLeftovers();
             _committer = new CheckpointCommitter(_options, _store, topicWriter, Stats, _delivery, ThrowIfFatal);
             _loader = new CheckpointLoader(_options, _store, topicWriter);
             using var labels = HasLabels ? Build(new ConsumerBuilder<byte[]?, byte[]>(ClientSettings.LabelsConsumer(_options))
@@ -321,6 +322,11 @@ internal sealed class KafkaWorker
         var start = new List<TopicPartitionOffset>();
         var labels = new List<TopicPartitionOffset>();
         Dictionary<int, PartitionCheckpoint?> checkpoints;
+        if (assigned.Count > 0)
+        {
+            // A partition that moves here may come from a member killed in the middle of a write.
+            RemoveLeftovers();
+        }
         try
         {
             checkpoints = _loader!.Load(assigned.Select(tp => tp.Partition.Value).ToList());
@@ -445,6 +451,16 @@ internal sealed class KafkaWorker
         var partitions = lost.Select(tp => tp.Partition.Value).Where(_partitions.ContainsKey).ToList();
         Drop(partitions);
         Log.Warning("Partitions {Partitions} lost (fell out of the group): dropped without committing", partitions.ToArray());
+    }
+
+    /// <summary>Removes the temporary checkpoint files of ended processes (never a live worker's) from the folder.</summary>
+    private void RemoveLeftovers()
+    {
+        int removed = _store.RemoveLeftovers();
+        if (removed > 0)
+        {
+            Log.Information("Removed {Count} temporary checkpoint files that ended workers left in {CheckpointDir}", removed, _store.Directory);
+        }
     }
 
     private void Drop(List<int> partitions)
