@@ -66,12 +66,14 @@ public sealed class WorkerGroupProcessTests
     {
         using var cluster = new MockCluster();
         using var group = new WorkerGroup(cluster, "gm", Partitions, Detect);
-        var records = TestStream.Generate(20_000, Keys, seed: 61);
+        // 14 s of feed: each change below waits for the one before, so on a loaded machine the kill
+        // due at 8 s comes seconds late, and it needs feed after it for its pause to show.
+        var records = TestStream.Generate(28_000, Keys, seed: 61);
         int events = records.Count(r => !r.IsLabel);
         var a = group.Start();
         group.WaitForSplit(s => true, TimeSpan.FromSeconds(30), TimeSpan.Zero);
 
-        // A live feed of 10 s; a member joins at 2 s and at 4 s, one leaves cleanly at 6 s and one is killed at 8 s.
+        // A live feed of 14 s; a member joins at 2 s and at 4 s, one leaves cleanly at 6 s and one is killed at 8 s.
         var feed = new Thread(() => Topics.ProducePaced(cluster.Bootstrap, group.EventsTopic, group.LabelsTopic, records, eventsPerSecond: 2_000));
         var feedStart = DateTime.UtcNow;
         feed.Start();
@@ -90,6 +92,7 @@ public sealed class WorkerGroupProcessTests
         var killedAt = DateTime.UtcNow;
         c.Kill();
         feed.Join();
+        var feedAfterKill = DateTime.UtcNow - killedAt;
 
         var predictions = Topics.ReadTimed(cluster.Bootstrap, group.PredictionsTopic, events, TimeSpan.FromSeconds(60));
         int predicted = predictions.Select(p => p.Id).Distinct().Count();
@@ -110,7 +113,7 @@ public sealed class WorkerGroupProcessTests
         var unowned = moves.Where(m => m.At < killedAt && !m.Overlap).Select(m => m.Unowned.TotalSeconds).Order().ToList();
         string load = File.ReadAllText("/proc/loadavg").Split(' ')[0];
         TestContext.Current.TestOutputHelper?.WriteLine(group.TimedTimeline(feedStart, DateTime.MaxValue));
-        TestContext.Current.TestOutputHelper?.WriteLine($"[measured] joins and a clean leave under load: longest gap in one key's predictions {gap.TotalSeconds:0.00} s (key {key}, until {at:HH:mm:ss.fff}); moved partitions' keys {movedGap.TotalSeconds:0.00} s, never-moved partitions' keys {keptGap.TotalSeconds:0.00} s; {unowned.Count} moves, a partition without owner {(unowned.Count > 0 ? unowned[unowned.Count / 2] : 0):0.00} s median, {(unowned.Count > 0 ? unowned[^1] : 0):0.00} s longest; {moves.Count(m => m.Overlap)} assigned while another member held them; after a SIGKILL: {(killKey.Length == 0 ? "none measured (the feed had ended)" : $"{killGap.TotalSeconds:0.00} s (key {killKey}; session timeout 1.5 s)")}; load average {load}");
+        TestContext.Current.TestOutputHelper?.WriteLine($"[measured] joins and a clean leave under load: longest gap in one key's predictions {gap.TotalSeconds:0.00} s (key {key}, until {at:HH:mm:ss.fff}); moved partitions' keys {movedGap.TotalSeconds:0.00} s, never-moved partitions' keys {keptGap.TotalSeconds:0.00} s; {unowned.Count} moves, a partition without owner {(unowned.Count > 0 ? unowned[unowned.Count / 2] : 0):0.00} s median, {(unowned.Count > 0 ? unowned[^1] : 0):0.00} s longest; {moves.Count(m => m.Overlap)} assigned while another member held them; after a SIGKILL: {(killKey.Length == 0 ? "none measured (the feed had ended)" : $"{killGap.TotalSeconds:0.00} s (key {killKey}; session timeout 1.5 s; the feed ran on {feedAfterKill.TotalSeconds:0.0} s after the kill)")}; load average {load}");
         Assert.True(group.WaitForCheckpointedLabels(events, TimeSpan.FromSeconds(30)), "not every label was joined and checkpointed\n" + group.Timeline());
         foreach (var m in group.Members.Where(m => !m.Killed && !m.HasExited))
         {
