@@ -93,7 +93,9 @@ internal sealed class PipelineBenchmark : IDisposable
         options.CheckpointEvery = checkpointEvery ?? TimeSpan.FromHours(1);
         options.CheckpointEveryLabels = checkpointEvery is null ? int.MaxValue : options.CheckpointEveryLabels;
         using var stop = new CancellationTokenSource();
-        var kafka = new KafkaWorker(options, new DriftlineOptions());
+        // Warm-up events have indexes past the timed ones, so the probe leaves them out.
+        var probe = new LatencyProbe(events);
+        var kafka = new KafkaWorker(options, new DriftlineOptions()) { Probe = probe };
         var thread = new Thread(() => kafka.Run(stop.Token)) { IsBackground = true };
         // Warm up on the same keys first, so the timed stream meets a running, allocated, jitted worker.
         int warm = Produce(topic, 20_000, 0, firstIndex: 1_000_000);
@@ -102,22 +104,35 @@ internal sealed class PipelineBenchmark : IDisposable
         {
             Thread.Sleep(5);
         }
-        var sent = new long[events + 1];
-        var latencies = new List<double>(events);
-        var reader = new Thread(() => ReadLatencies(options.PredictionsTopic, sent, events, latencies)) { IsBackground = true };
+        var reader = new Thread(() => ReadLatencies(options.PredictionsTopic, probe, events)) { IsBackground = true };
         reader.Start();
         Thread.Sleep(500); // the reader joins its group
         long checkpointsBefore = kafka.Stats.Checkpoints;
-        Produce(topic, events, rate, sent, firstIndex: 1);
+        var pauseBefore = GC.GetTotalPauseDuration();
+        int[] collectionsBefore = [GC.CollectionCount(0), GC.CollectionCount(1), GC.CollectionCount(2)];
+        Produce(topic, events, rate, probe.Sent, firstIndex: 1, acked: probe.Acked);
         reader.Join(TimeSpan.FromSeconds(60));
+        var pause = GC.GetTotalPauseDuration() - pauseBefore;
+        int[] collections = [GC.CollectionCount(0) - collectionsBefore[0], GC.CollectionCount(1) - collectionsBefore[1], GC.CollectionCount(2) - collectionsBefore[2]];
         long partitionCheckpoints = kafka.Stats.Checkpoints - checkpointsBefore;
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"{partitionCheckpoints} partition checkpoints in the window; the last one held the loop {kafka.Stats.LastCheckpointMs:0.00} ms; off the loop: acknowledgements {kafka.Stats.LastFlushMs:0.0} ms, snapshots {kafka.Stats.LastSnapshotMs:0.0} ms (summed over partitions), cut to last file {kafka.Stats.LastWriteMs:0.0} ms"));
         stop.Cancel();
         thread.Join();
+        var latencies = new List<double>(events);
+        for (int i = 1; i <= events; i++)
+        {
+            if (probe.Read[i] != 0)
+            {
+                latencies.Add(Stopwatch.GetElapsedTime(probe.Sent[i], probe.Read[i]).TotalMilliseconds);
+            }
+        }
         latencies.Sort();
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"latency at {rate:N0} ev/s for {duration.TotalSeconds:0} s, {(checkpointEvery is { } every ? $"checkpoints every {every.TotalSeconds:0.0} s" : "no checkpoint")} ({latencies.Count:N0} of {events:N0} predictions read): p50 {Pct(latencies, 0.50):0.0} ms, p99 {Pct(latencies, 0.99):0.0} ms, max {latencies[^1]:0.0} ms (event produced → prediction consumed)"));
+        Console.WriteLine(probe.Breakdown());
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"  garbage collections in the window (the whole process): {collections[0]} gen0, {collections[1]} gen1, {collections[2]} gen2, paused {pause.TotalMilliseconds:0.0} ms in all"));
     }
 
     private KafkaOptions Options(string topic) => new()
@@ -209,7 +224,7 @@ internal sealed class PipelineBenchmark : IDisposable
     /// Produces <paramref name="events"/> events keyed over 64 models; even ones carry their
     /// label, odd ones get a label-only record 50 events later. Returns the records produced.
     /// </summary>
-    private int Produce(string topic, int events, int ratePerSecond, long[]? sent = null, int firstIndex = 0)
+    private int Produce(string topic, int events, int ratePerSecond, long[]? sent = null, int firstIndex = 0, long[]? acked = null)
     {
         int produced = 0;
         using var producer = new ProducerBuilder<byte[]?, byte[]>(new ProducerConfig { BootstrapServers = _bootstrap, LingerMs = 1 }).SetLogHandler((_, _) => { }).Build();
@@ -236,7 +251,8 @@ internal sealed class PipelineBenchmark : IDisposable
             {
                 sent[index] = Stopwatch.GetTimestamp();
             }
-            Send(producer, topic, key, value);
+            Action<DeliveryReport<byte[]?, byte[]>>? onAck = acked is null ? null : _ => acked[index] = Stopwatch.GetTimestamp();
+            Send(producer, topic, Encoding.UTF8.GetBytes(key), Encoding.UTF8.GetBytes(value), onAck);
             produced++;
             int labelled = index - 50;
             if (labelled >= firstIndex && labelled % 2 == 1)
@@ -269,14 +285,15 @@ internal sealed class PipelineBenchmark : IDisposable
         }
     }
 
-    private void ReadLatencies(string topic, long[] sent, int events, List<double> latencies)
+    private void ReadLatencies(string topic, LatencyProbe probe, int events)
     {
         var config = new ConsumerConfig { BootstrapServers = _bootstrap, GroupId = "bench-lat-" + _run++, AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false, FetchWaitMaxMs = 5 };
         config.Set("group.protocol", "consumer");
         using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
         consumer.Subscribe(topic);
         var deadline = DateTime.UtcNow + TimeSpan.FromSeconds(60);
-        while (latencies.Count < events && DateTime.UtcNow < deadline)
+        int read = 0;
+        while (read < events && DateTime.UtcNow < deadline)
         {
             var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
             if (r is null || r.IsPartitionEOF)
@@ -284,13 +301,11 @@ internal sealed class PipelineBenchmark : IDisposable
                 continue;
             }
             long now = Stopwatch.GetTimestamp();
-            var value = r.Message.Value.AsSpan();
-            int start = value.IndexOf("\"id\":\""u8) + 6;
-            int end = value[start..].IndexOf((byte)'"');
-            int index = int.Parse(value.Slice(start, end), CultureInfo.InvariantCulture);
-            if (index >= 1 && index < sent.Length && sent[index] != 0)
+            int index = LatencyProbe.EventIndex(r.Message.Value);
+            if (index >= 1 && index <= events && probe.Sent[index] != 0 && probe.Read[index] == 0)
             {
-                latencies.Add(Stopwatch.GetElapsedTime(sent[index], now).TotalMilliseconds);
+                probe.ReadBack(index, r.Partition.Value, r.Offset.Value, now);
+                read++;
             }
         }
         consumer.Close();

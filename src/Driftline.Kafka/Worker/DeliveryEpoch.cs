@@ -24,6 +24,7 @@ internal sealed class DeliveryEpoch
             {
                 failure.Record(report);
             }
+            failure.Probe?.Delivered(report);
             // Interlocked.Decrement is a full fence, as is the Exchange in Seal: one of the two sees the other.
             if (Interlocked.Decrement(ref _outstanding) == 0 && Volatile.Read(ref _sealed) == 1)
             {

@@ -17,6 +17,9 @@ internal sealed class DeliveryFailure
     /// <summary>Creates the holder and its first epoch.</summary>
     public DeliveryFailure() => _current = new DeliveryEpoch(this);
 
+    /// <summary>Sees every delivery report (the latency benchmark), or null.</summary>
+    public IRecordProbe? Probe { get; set; }
+
     /// <summary>The first failure, or null.</summary>
     public string? Error => Volatile.Read(ref _error);
 

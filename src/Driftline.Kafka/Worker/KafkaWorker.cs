@@ -94,6 +94,13 @@ internal sealed class KafkaWorker
     /// <summary>Running counts.</summary>
     public WorkerStats Stats { get; }
 
+    /// <summary>Sees every record at the worker's stage boundaries (the latency benchmark's breakdown); none by default.</summary>
+    public IRecordProbe? Probe
+    {
+        get => _intake.Probe;
+        init => _intake.Probe = _drainer.Probe = _delivery.Probe = value;
+    }
+
     /// <summary>The model keys of the partitions owned now, each with its partition (for tests and operators).</summary>
     public ConcurrentDictionary<string, int> ModelKeys { get; } = new(StringComparer.Ordinal);
 

@@ -17,6 +17,9 @@ internal sealed class PartitionDrainer(KafkaOptions options)
 {
     private Batch? _inFlight;
 
+    /// <summary>Sees each record before and after its engine (the latency benchmark), or null.</summary>
+    public IRecordProbe? Probe { get; set; }
+
     /// <summary>True while a batch started by <see cref="Start"/> has not been collected by <see cref="Finish"/>.</summary>
     public bool InFlight => _inFlight is not null;
 
@@ -127,10 +130,12 @@ internal sealed class PartitionDrainer(KafkaOptions options)
         while (state.TryTakeNext(now, hold, out var record, out bool fromLabels))
         {
             string topic = fromLabels ? options.LabelsTopic! : options.EventsTopic;
+            Probe?.Draining(fromLabels, state.Partition, record);
             if (state.Processor!.Process(state.Engine, record, topic, state.Partition))
             {
                 state.LabelsSinceCheckpoint++;
             }
+            Probe?.Drained(fromLabels, state.Partition, record);
             if (fromLabels)
             {
                 state.LabelsNext = record.Offset + 1;

@@ -18,6 +18,9 @@ internal sealed class RecordIntake(KafkaOptions options, Dictionary<int, Partiti
     private readonly List<ConsumeResult<byte[]?, byte[]>> _stagedEvents = [];
     private readonly List<ConsumeResult<byte[]?, byte[]>> _stagedLabels = [];
 
+    /// <summary>Sees each record as it is consumed (the latency benchmark), or null.</summary>
+    public IRecordProbe? Probe { get; set; }
+
     /// <summary>
     /// Consumes up to <see cref="MaxPull"/> records into the staging list without touching the
     /// partitions (a batch may be draining them): <see cref="ApplyStaged"/> queues them later,
@@ -38,6 +41,7 @@ internal sealed class RecordIntake(KafkaOptions options, Dictionary<int, Partiti
             if (!result.IsPartitionEOF)
             {
                 got++;
+                Probe?.Consumed(fromLabels, result.Partition.Value, result.Offset.Value, result.Message.Value);
             }
         }
         return got;
