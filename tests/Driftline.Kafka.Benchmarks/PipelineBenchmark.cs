@@ -14,10 +14,13 @@ internal sealed class PipelineBenchmark : IDisposable
     private readonly IProducer<byte[]?, byte[]> _host;
     private readonly string _bootstrap;
     private readonly string _checkpoints = Path.Combine(Path.GetTempPath(), "driftline-bench-" + Guid.NewGuid().ToString("N"));
+    private readonly IReadOnlyDictionary<string, string> _client;
     private int _run;
 
-    public PipelineBenchmark()
+    /// <summary>Starts the mock cluster; <paramref name="client"/> are librdkafka settings for the worker and the pass-through client alike.</summary>
+    public PipelineBenchmark(IReadOnlyDictionary<string, string> client)
     {
+        _client = client;
         var config = new ProducerConfig();
         config.Set("test.mock.num.brokers", "3");
         _host = new ProducerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
@@ -89,7 +92,7 @@ internal sealed class PipelineBenchmark : IDisposable
         var options = Options(topic);
         // The mock broker answers a fetch only when fetch.wait.max.ms (default 500) runs out, not
         // when data arrives as a real broker does; a short wait keeps that out of the figure.
-        options.Client["fetch.wait.max.ms"] = "10";
+        options.Client.TryAdd("fetch.wait.max.ms", "10");
         options.CheckpointEvery = checkpointEvery ?? TimeSpan.FromHours(1);
         options.CheckpointEveryLabels = checkpointEvery is null ? int.MaxValue : options.CheckpointEveryLabels;
         using var stop = new CancellationTokenSource();
@@ -144,7 +147,7 @@ internal sealed class PipelineBenchmark : IDisposable
         AlertsTopic = topic + "-alerts",
         DeadLetterTopic = topic + "-dead",
         CheckpointDir = _checkpoints + "-" + _run,
-        Client = new() { ["group.protocol"] = "consumer" },
+        Client = new(_client) { ["group.protocol"] = "consumer" },
     };
 
     private Window RunWorker(string topic, int events, int records)
@@ -190,6 +193,10 @@ internal sealed class PipelineBenchmark : IDisposable
             // The worker's consumer setting too (src/Driftline.Kafka/Options/ClientSettings.cs): the
             // pass-through does no more Kafka work per record than the worker does.
             config.Set("dotnet.consumer.consume.result.fields", "timestamp");
+            foreach (var (name, value) in _client)
+            {
+                config.Set(name, value);
+            }
         }
         using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
         consumer.Subscribe(topic);
@@ -344,6 +351,10 @@ internal sealed class PipelineBenchmark : IDisposable
     {
         var config = new ProducerConfig { BootstrapServers = _bootstrap, LingerMs = 5, EnableIdempotence = true };
         config.Set("dotnet.producer.delivery.report.fields", "status");
+        foreach (var (name, value) in _client)
+        {
+            config.Set(name, value);
+        }
         return config;
     }
 

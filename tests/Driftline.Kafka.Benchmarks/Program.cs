@@ -6,7 +6,8 @@ using Driftline.Kafka.Benchmarks;
 // BenchmarkDotNet micro-benchmark (a broker round trip is the unit), so each figure is a
 // median over repeated runs, next to a raw consume-only client in the same process and run.
 // part: all (default), engine, throughput (7 repeats instead of 3), latency, or group
-// (1-4 real driftline processes in one group; not part of all).
+// (1-4 real driftline processes in one group; not part of all). Arguments after the part,
+// name=value, are librdkafka settings for the worker and the pass-through client alike (A/B runs).
 int events = args.Length > 0 ? int.Parse(args[0], CultureInfo.InvariantCulture) : 60_000;
 int rate = args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 50_000;
 string part = args.Length > 2 ? args[2] : "all";
@@ -36,7 +37,9 @@ if (part is "engine")
 {
     return 0;
 }
-using var bench = new PipelineBenchmark();
+var client = args.Skip(3).Select(a => a.Split('=', 2)).ToDictionary(kv => kv[0], kv => kv.Length > 1 ? kv[1] : "", StringComparer.Ordinal);
+Console.WriteLine($"garbage collector: {(System.Runtime.GCSettings.IsServerGC ? "server" : "workstation")}, latency mode {System.Runtime.GCSettings.LatencyMode}; client settings: {(client.Count == 0 ? "the worker's defaults" : string.Join(", ", client.Select(kv => kv.Key + "=" + kv.Value)))}");
+using var bench = new PipelineBenchmark(client);
 try
 {
     if (part is "all" or "throughput")
