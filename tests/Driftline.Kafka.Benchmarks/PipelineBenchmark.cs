@@ -15,6 +15,7 @@ internal sealed class PipelineBenchmark : IDisposable
     private readonly string _bootstrap;
     private readonly string _checkpoints = Path.Combine(Path.GetTempPath(), "driftline-bench-" + Guid.NewGuid().ToString("N"));
     private readonly IReadOnlyDictionary<string, string> _client;
+    private readonly GcPauses _gcPauses = new();
     private int _run;
 
     /// <summary>Starts the mock cluster; <paramref name="client"/> are librdkafka settings for the worker and the pass-through client alike.</summary>
@@ -112,10 +113,14 @@ internal sealed class PipelineBenchmark : IDisposable
         Thread.Sleep(500); // the reader joins its group
         long checkpointsBefore = kafka.Stats.Checkpoints;
         var pauseBefore = GC.GetTotalPauseDuration();
+        long allocatedBefore = GC.GetTotalAllocatedBytes(precise: false);
+        _gcPauses.Take();
         int[] collectionsBefore = [GC.CollectionCount(0), GC.CollectionCount(1), GC.CollectionCount(2)];
         Produce(topic, events, rate, probe.Sent, firstIndex: 1, acked: probe.Acked);
         reader.Join(TimeSpan.FromSeconds(60));
         var pause = GC.GetTotalPauseDuration() - pauseBefore;
+        long allocated = GC.GetTotalAllocatedBytes(precise: false) - allocatedBefore;
+        var pauses = _gcPauses.Take();
         int[] collections = [GC.CollectionCount(0) - collectionsBefore[0], GC.CollectionCount(1) - collectionsBefore[1], GC.CollectionCount(2) - collectionsBefore[2]];
         long partitionCheckpoints = kafka.Stats.Checkpoints - checkpointsBefore;
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
@@ -135,7 +140,7 @@ internal sealed class PipelineBenchmark : IDisposable
             $"latency at {rate:N0} ev/s for {duration.TotalSeconds:0} s, {(checkpointEvery is { } every ? $"checkpoints every {every.TotalSeconds:0.0} s" : "no checkpoint")} ({latencies.Count:N0} of {events:N0} predictions read): p50 {Pct(latencies, 0.50):0.0} ms, p99 {Pct(latencies, 0.99):0.0} ms, max {latencies[^1]:0.0} ms (event produced → prediction consumed)"));
         Console.WriteLine(probe.Breakdown());
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-            $"  garbage collections in the window (the whole process): {collections[0]} gen0, {collections[1]} gen1, {collections[2]} gen2, paused {pause.TotalMilliseconds:0.0} ms in all"));
+            $"  garbage collections in the window (the whole process): {collections[0]} gen0, {collections[1]} gen1, {collections[2]} gen2, paused {pause.TotalMilliseconds:0.0} ms in all, longest {(pauses.Count == 0 ? 0 : pauses.Max()):0.0} ms (events: {pauses.Count}); {allocated / 1e6:0} MB allocated"));
     }
 
     private KafkaOptions Options(string topic) => new()
@@ -368,6 +373,7 @@ internal sealed class PipelineBenchmark : IDisposable
 
     public void Dispose()
     {
+        _gcPauses.Dispose();
         _host.Dispose();
         foreach (var dir in Directory.GetDirectories(Path.GetTempPath(), Path.GetFileName(_checkpoints) + "*"))
         {
