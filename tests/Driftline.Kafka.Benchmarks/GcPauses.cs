@@ -1,4 +1,3 @@
-using System.Diagnostics;
 using System.Diagnostics.Tracing;
 
 namespace Driftline.Kafka.Benchmarks;
@@ -13,7 +12,7 @@ internal sealed class GcPauses : EventListener
 {
     private readonly object _gate = new();
     private readonly List<double> _pauses = [];
-    private long _suspended;
+    private DateTime _suspended;
 
     /// <summary>The pauses (ms) since the last call, and clears them.</summary>
     public List<double> Take()
@@ -36,16 +35,23 @@ internal sealed class GcPauses : EventListener
 
     protected override void OnEventWritten(EventWrittenEventArgs e)
     {
+        // The events reach the listener later, on a thread of its own: their own time stamps tell the pause.
         if (e.EventId == 9)
         {
-            Volatile.Write(ref _suspended, Stopwatch.GetTimestamp());
-        }
-        else if (e.EventId == 3 && Volatile.Read(ref _suspended) is long from and not 0)
-        {
-            double ms = Stopwatch.GetElapsedTime(from).TotalMilliseconds;
             lock (_gate)
             {
-                _pauses.Add(ms);
+                _suspended = e.TimeStamp;
+            }
+        }
+        else if (e.EventId == 3)
+        {
+            lock (_gate)
+            {
+                if (_suspended != default)
+                {
+                    _pauses.Add((e.TimeStamp - _suspended).TotalMilliseconds);
+                    _suspended = default;
+                }
             }
         }
     }
