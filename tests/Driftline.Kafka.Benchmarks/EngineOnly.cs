@@ -55,7 +55,7 @@ internal static class EngineOnly
             $"engine only (parse + score/learn, {Partitions} engines, one per partition), median of rounds 4-6: {last[1]:N0} records/s (rounds {string.Join(", ", rates.Select(r => r.ToString("N0", CultureInfo.InvariantCulture)))})"));
     }
 
-    private sealed class NullSink : IScoringSink
+    internal sealed class NullSink : IScoringSink
     {
         public void OnPrediction(in Prediction prediction)
         {

@@ -5,16 +5,23 @@ using Driftline.Kafka.Benchmarks;
 // Whole-pipeline figures through librdkafka's mock cluster on this machine: not a
 // BenchmarkDotNet micro-benchmark (a broker round trip is the unit), so each figure is a
 // median over repeated runs, next to a raw consume-only client in the same process and run.
-// part: all (default), engine, throughput (7 repeats instead of 3), latency, or group
+// part: all (default), engine, throughput (7 repeats instead of 3), latency, checkpoint (one
+// partition's snapshot and JSON, no Kafka), or group
 // (1-4 real driftline processes in one group; not part of all). Arguments after the part,
 // name=value, are librdkafka settings for the worker and the pass-through client alike (A/B runs).
 int events = args.Length > 0 ? int.Parse(args[0], CultureInfo.InvariantCulture) : 60_000;
 int rate = args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 50_000;
 string part = args.Length > 2 ? args[2] : "all";
-if (part is not ("all" or "engine" or "throughput" or "latency" or "group"))
+if (part is not ("all" or "engine" or "throughput" or "latency" or "group" or "checkpoint"))
 {
-    Console.Error.WriteLine($"unknown part '{part}': use all, engine, throughput, latency or group");
+    Console.Error.WriteLine($"unknown part '{part}': use all, engine, throughput, latency, checkpoint or group");
     return 2;
+}
+if (part is "checkpoint")
+{
+    // One partition's checkpoint cost with no Kafka: events is that partition's share.
+    CheckpointCost.Run(events);
+    return 0;
 }
 if (part is "group")
 {

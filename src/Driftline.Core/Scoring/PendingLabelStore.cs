@@ -136,8 +136,12 @@ internal sealed class PendingLabelStore
         }
     }
 
-    /// <summary>Entries in arrival order, oldest first, each decoded afresh with its id (for snapshots).</summary>
-    public IEnumerable<PendingPrediction> Entries()
+    /// <summary>
+    /// Entries in arrival order, oldest first, each decoded afresh with its id (for snapshots);
+    /// with <paramref name="into"/>, each is decoded into that one instance instead, valid only
+    /// until the next one is taken (for a caller that copies every entry out at once).
+    /// </summary>
+    public IEnumerable<PendingPrediction> Entries(PendingPrediction? into = null)
     {
         if (_count == 0)
         {
@@ -146,7 +150,7 @@ internal sealed class PendingLabelStore
         uint location = _arena.Tail;
         for (int i = 0; i < _count; i++)
         {
-            var entry = new PendingPrediction();
+            var entry = into ?? new PendingPrediction();
             int size = PendingRecord.Read(_arena.At(location), entry, withId: true);
             yield return entry;
             location = _arena.After(location, size);

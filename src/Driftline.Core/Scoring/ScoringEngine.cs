@@ -674,6 +674,40 @@ internal sealed class ScoringEngine
         return snapshot;
     }
 
+    /// <summary>
+    /// The waiting predictions, oldest first. Each is decoded into one scratch instance and
+    /// copied out at once into a list of values sized up front: a checkpoint of a partition with
+    /// tens of thousands of waiting or graded entries then allocates one array and the ids, not
+    /// three objects an entry that all live until the checkpoint is written (the live worker's
+    /// garbage collections at checkpoints, tests/Driftline.Kafka.Benchmarks README).
+    /// </summary>
+    private List<PendingSnapshot> PendingSnapshots()
+    {
+        var list = new List<PendingSnapshot>(Pending.Count);
+        foreach (var e in Pending.Entries(new PendingPrediction()))
+        {
+            list.Add(new PendingSnapshot
+            {
+                Id = e.Id!,
+                Model = e.Model,
+                TimeTicks = e.TimeTicks,
+                // A graded entry is kept only to recognise a duplicate label: its probabilities and
+                // features are spent, so the snapshot keeps just the id, its place and the flag.
+                P = e.Labelled || _outputs != 1 ? 0 : e.P,
+                PriorP = e.Labelled || _outputs != 1 ? 0 : e.PriorP,
+                ClassP = e.Labelled || _outputs == 1 ? null : e.ClassP.ToArray(),
+                ClassPriorP = e.Labelled || _outputs == 1 ? null : e.ClassPriorP.ToArray(),
+                ServedClassP = e.Labelled || e.ServedClassP.IsEmpty ? null : e.ServedClassP.ToArray(),
+                Served = e.Labelled || !double.IsFinite(e.Served) ? null : e.Served,
+                Labelled = e.Labelled,
+                Slots = e.Labelled ? null : e.Slots.ToArray(),
+                Values = e.Labelled ? null : e.Values.ToArray(),
+                Segment = e.Labelled ? null : e.Segment,
+            });
+        }
+        return list;
+    }
+
     private EngineSnapshot Capture() => new()
     {
         Options = _options,
@@ -688,24 +722,7 @@ internal sealed class ScoringEngine
             Scored = m.Scored,
             Recalibration = m.Recalibration?.Export(),
         }).ToList(),
-        Pending = Pending.Entries().Select(e => new PendingSnapshot
-        {
-            Id = e.Id!,
-            Model = e.Model,
-            TimeTicks = e.TimeTicks,
-            // A graded entry is kept only to recognise a duplicate label: its probabilities and
-            // features are spent, so the snapshot keeps just the id, its place and the flag.
-            P = e.Labelled || _outputs != 1 ? 0 : e.P,
-            PriorP = e.Labelled || _outputs != 1 ? 0 : e.PriorP,
-            ClassP = e.Labelled || _outputs == 1 ? null : e.ClassP.ToArray(),
-            ClassPriorP = e.Labelled || _outputs == 1 ? null : e.ClassPriorP.ToArray(),
-            ServedClassP = e.Labelled || e.ServedClassP.IsEmpty ? null : e.ServedClassP.ToArray(),
-            Served = e.Labelled || !double.IsFinite(e.Served) ? null : e.Served,
-            Labelled = e.Labelled,
-            Slots = e.Labelled ? null : e.Slots.ToArray(),
-            Values = e.Labelled ? null : e.Values.ToArray(),
-            Segment = e.Labelled ? null : e.Segment,
-        }).ToList(),
+        Pending = PendingSnapshots(),
         Segments = _segments?.Export(),
         InlineLabelled = InlineLabelled.Entries().ToList(),
         ExpiredLabels = Pending.Expired,

@@ -149,9 +149,17 @@ internal sealed class ModelSnapshot
     public Recalibration.RecalibrationState? Recalibration { get; set; }
 }
 
-/// <summary>A prediction waiting for its label.</summary>
-internal sealed class PendingSnapshot
+/// <summary>
+/// A prediction waiting for its label. A value, not an object: a snapshot holds one per waiting
+/// or graded entry (tens of thousands a partition), in one array.
+/// </summary>
+internal struct PendingSnapshot
 {
+    /// <summary>An entry with an empty id (what the JSON reader starts from).</summary>
+    public PendingSnapshot()
+    {
+    }
+
     /// <summary>Event id.</summary>
     public string Id { get; set; } = "";
 

@@ -182,7 +182,8 @@ internal static class SnapshotValidator
         for (int i = 0; i < pending.Count; i++)
         {
             string at = $"pending[{i}]";
-            var p = pending[i] ?? throw Damage(at, "is null");
+            // A null entry in the file is refused by the JSON reader itself (an entry is a value).
+            var p = pending[i];
             if (p.Id is null || p.Model < 0 || p.Model >= models)
             {
                 throw Damage(at, $"has no id or names model {p.Model}, and the file holds {models}");

@@ -31,6 +31,7 @@ public sealed class DamagedModelTests
         { "weight-absurd", "beyond ±1e9" },
         { "negative-squares", "negative or non-finite accumulated gradient" },
         { "pending-model-index", "names model 7" },
+        { "null-pending-entry", "pending[0]" },
         { "prior-impossible", "counts are impossible" },
     };
 
@@ -69,6 +70,7 @@ public sealed class DamagedModelTests
             case "pending-model-index":
                 root["pending"]!.AsArray().Add(new JsonObject { ["id"] = "x", ["model"] = 7, ["time_ticks"] = 0, ["labelled"] = false });
                 break;
+            case "null-pending-entry": root["pending"]!.AsArray().Insert(0, null); break;
             case "prior-impossible": model["prior_positives"] = model["prior_count"]!.GetValue<long>() + 1; break;
             default: throw new ArgumentOutOfRangeException(nameof(shape), shape, null);
         }

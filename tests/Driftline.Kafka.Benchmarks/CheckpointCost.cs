@@ -1,0 +1,73 @@
+using System.Diagnostics;
+using System.Globalization;
+using System.Text;
+using Driftline.Core.Options;
+using Driftline.Core.Scoring;
+using Driftline.Kafka.Checkpoints;
+
+namespace Driftline.Kafka.Benchmarks;
+
+/// <summary>
+/// What one partition's checkpoint costs, with no Kafka and nothing else running on the
+/// thread: the snapshot the draining thread takes at the cut (time and bytes allocated) and
+/// the JSON the writer thread makes of it. One partition of the latency run's stream: 16 of the
+/// 64 keys, <c>events</c> events and their labels (half inline, half 50 events later), so the
+/// pending store holds the graded ids a real partition keeps. Bytes allocated are the
+/// thread's own count, which the machine's load does not move; times are medians of 7.
+/// </summary>
+internal static class CheckpointCost
+{
+    public static void Run(int events)
+    {
+        var engine = new ScoringEngine(new DriftlineOptions(), new EngineOnly.NullSink());
+        var parser = new Driftline.Core.Events.EventParser();
+        var record = new Driftline.Core.Events.ParsedRecord();
+        var zones = new[] { "north", "south", "east", "west" };
+        for (int index = 0; index < events; index++)
+        {
+            int key = index % 16 * 4;
+            Feed(string.Create(CultureInfo.InvariantCulture, $"{{\"id\":\"{index}\",\"key\":\"k{key}\",\"features\":{{\"zone\":\"{zones[index % 4]}\",\"distance_km\":{index % 97 / 10.0},\"items\":{index % 7},\"raining\":{(index % 3 == 0 ? "true" : "false")},\"tags\":[\"t{index % 5}\"]}}{(index % 2 == 0 ? ",\"label\":" + (index % 5 == 0 ? 1 : 0) : "")}}}"));
+            int labelled = index - 50;
+            if (labelled >= 0 && labelled % 2 == 1)
+            {
+                Feed($"{{\"id\":\"{labelled}\",\"label\":{(labelled % 5 == 0 ? 1 : 0)}}}");
+            }
+        }
+        var snapshotMs = new List<double>();
+        var jsonMs = new List<double>();
+        long snapshotBytes = 0, jsonBytes = 0, size = 0;
+        for (int round = 0; round < 8; round++)
+        {
+            long before = GC.GetAllocatedBytesForCurrentThread();
+            var clock = Stopwatch.StartNew();
+            var checkpoint = new PartitionCheckpoint { EventsTopic = "events", Partition = 0, EventsOffset = events, LabelsOffset = -1, WrittenAt = DateTime.UtcNow, Snapshot = engine.Snapshot() };
+            double taken = clock.Elapsed.TotalMilliseconds;
+            long afterSnapshot = GC.GetAllocatedBytesForCurrentThread();
+            clock.Restart();
+            byte[] json = CheckpointStore.Serialize(checkpoint);
+            double serialised = clock.Elapsed.TotalMilliseconds;
+            long afterJson = GC.GetAllocatedBytesForCurrentThread();
+            if (round > 0)
+            {
+                // The first round also pays for the serializer's metadata and JIT.
+                snapshotMs.Add(taken);
+                jsonMs.Add(serialised);
+            }
+            snapshotBytes = afterSnapshot - before;
+            jsonBytes = afterJson - afterSnapshot;
+            size = json.Length;
+        }
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"one partition's checkpoint after {events:N0} events ({engine.Pending.Count:N0} waiting or graded predictions kept): snapshot {Median(snapshotMs):0.00} ms, {snapshotBytes / 1e6:0.00} MB allocated; JSON {Median(jsonMs):0.00} ms, {jsonBytes / 1e6:0.00} MB allocated, {size / 1e6:0.00} MB written"));
+
+        void Feed(string line)
+        {
+            if (parser.TryParse(Encoding.UTF8.GetBytes(line), record, out _))
+            {
+                engine.Process(record);
+            }
+        }
+    }
+
+    private static double Median(List<double> values) => values.Order().ElementAt(values.Count / 2);
+}
