@@ -205,7 +205,7 @@ public sealed class MulticlassEngineTests
         Assert.StartsWith("models[0].prior_class_counts", Assert.Throws<InvalidDataException>(() => SnapshotValidator.Check(badPrior)).Message, StringComparison.Ordinal);
 
         var badPending = engine.Snapshot();
-        badPending.Pending[0].ClassP = [0.5, 0.5, 1.5, 0];
+        badPending.Pending[0] = badPending.Pending[0] with { ClassP = [0.5, 0.5, 1.5, 0] };
         Assert.StartsWith("pending[0] class_p", Assert.Throws<InvalidDataException>(() => SnapshotValidator.Check(badPending)).Message, StringComparison.Ordinal);
     }
 }
