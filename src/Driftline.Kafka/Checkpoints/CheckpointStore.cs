@@ -1,3 +1,4 @@
+using System.Buffers;
 using System.Text.Json;
 using System.Text.Json.Serialization;
 using Driftline.Core.Snapshots;
@@ -90,11 +91,27 @@ internal sealed partial class CheckpointStore
     /// <summary>The checkpoint as the UTF-8 JSON a file holds (the bytes the checkpoint topic carries too).</summary>
     public static byte[] Serialize(PartitionCheckpoint checkpoint)
     {
+        var json = new ArrayBufferWriter<byte>();
+        Serialize(checkpoint, json);
+        return json.WrittenSpan.ToArray();
+    }
+
+    /// <summary>
+    /// The same bytes as <see cref="Serialize(PartitionCheckpoint)"/>, written into
+    /// <paramref name="into"/> after clearing it: the worker's checkpoint writer keeps one buffer
+    /// for all its checkpoints rather than a new array of megabytes for each partition, which
+    /// went to the large-object heap and brought blocking gen2 collections nearer.
+    /// </summary>
+    public static void Serialize(PartitionCheckpoint checkpoint, ArrayBufferWriter<byte> into)
+    {
         ArgumentNullException.ThrowIfNull(checkpoint);
+        ArgumentNullException.ThrowIfNull(into);
         // The snapshot's own marker is stamped by its writer; this layout embeds it directly.
         checkpoint.Snapshot.Format = EngineSnapshot.FormatName;
         checkpoint.Snapshot.FormatVersion = EngineSnapshot.CurrentVersion;
-        return JsonSerializer.SerializeToUtf8Bytes(checkpoint, Json);
+        into.ResetWrittenCount();
+        using var writer = new Utf8JsonWriter(into, new JsonWriterOptions { Encoder = Json.Encoder, Indented = Json.WriteIndented });
+        JsonSerializer.Serialize(writer, checkpoint, Json);
     }
 
     /// <summary>
@@ -105,7 +122,7 @@ internal sealed partial class CheckpointStore
     /// Read, compare and rename run under the partition's <see cref="CheckpointLock"/>, held
     /// across processes, and so does <paramref name="alongside"/> (the checkpoint topic's copy),
     /// which runs only when the file was written. <paramref name="json"/> is the
-    /// <see cref="Serialize"/> form, made once for the file and the topic. Returns null when
+    /// <see cref="Serialize(PartitionCheckpoint)"/> form, made once for the file and the topic. Returns null when
     /// written, or the positions of the newer checkpoint that was kept.
     /// </summary>
     /// <remarks>
@@ -115,10 +132,9 @@ internal sealed partial class CheckpointStore
     /// containers on one volume). Throws <see cref="IOException"/> when the lock stays held
     /// elsewhere for <see cref="LockLimit"/>.
     /// </remarks>
-    public (long EventsOffset, long LabelsOffset)? Write(PartitionCheckpoint checkpoint, byte[] json, Action? alongside = null)
+    public (long EventsOffset, long LabelsOffset)? Write(PartitionCheckpoint checkpoint, ReadOnlyMemory<byte> json, Action? alongside = null)
     {
         ArgumentNullException.ThrowIfNull(checkpoint);
-        ArgumentNullException.ThrowIfNull(json);
         string path = PathOf(checkpoint.EventsTopic, checkpoint.Partition);
         using var held = CheckpointLock.Take(path, LockLimit);
         if (Positions(path) is { } kept && kept.CompareTo((checkpoint.EventsOffset, checkpoint.LabelsOffset)) > 0)
@@ -133,7 +149,7 @@ internal sealed partial class CheckpointStore
         {
             using (var file = new FileStream(temporary, FileMode.CreateNew, FileAccess.Write, FileShare.None, 1 << 16))
             {
-                file.Write(json);
+                file.Write(json.Span);
                 file.Flush(flushToDisk: true);
             }
             File.Move(temporary, path, overwrite: true);

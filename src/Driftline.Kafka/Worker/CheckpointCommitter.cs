@@ -18,6 +18,9 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
     private static readonly TimeSpan FlushLimit = TimeSpan.FromSeconds(60);
 
     private Task? _writing;
+
+    /// <summary>The JSON of the checkpoint being written; one write at a time uses it, on the writer thread or (waiting) the loop.</summary>
+    private readonly System.Buffers.ArrayBufferWriter<byte> _json = new(1 << 16);
     private List<TopicPartitionOffset>? _toCommit;
     // Partitions of the write in flight whose checkpoint another owner's newer one kept out (writer thread, then FinishWrite).
     private readonly HashSet<int> _refused = [];
@@ -105,10 +108,11 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
         {
             var checkpoint = cut.Wait();
             snapshots += cut.SnapshotMs;
-            // Serialised once: the file and the topic carry the same bytes.
-            byte[] json = CheckpointStore.Serialize(checkpoint);
+            // Serialised once, into the buffer every checkpoint reuses: the file and the topic carry the same bytes.
+            CheckpointStore.Serialize(checkpoint, _json);
+            var json = _json.WrittenMemory;
             // The topic's copy is written under the file's lock, so with a shared folder it never goes back either.
-            var kept = store.Write(checkpoint, json, topic is null ? null : () => WriteTopic(topic, checkpoint, json));
+            var kept = store.Write(checkpoint, json, topic is null ? null : () => WriteTopic(topic, checkpoint, json.ToArray()));
             if (kept is { } newer)
             {
                 // Two owners at once: this member, or the other, has not yet noticed the group moved on.
