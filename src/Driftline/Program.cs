@@ -3,6 +3,7 @@ using Driftline.Configuration;
 using System.Runtime.InteropServices;
 using Serilog;
 
+PhaseMarks.Mark("main");
 // The console sink is built on the first log event: a replay that logs nothing never pays for it.
 Log.Logger = new LoggerConfiguration()
     .WriteTo.Sink(new DeferredSink(() => new LoggerConfiguration().WriteTo.Console(standardErrorFromLevel: Serilog.Events.LogEventLevel.Verbose).CreateLogger()))
@@ -29,4 +30,6 @@ catch (Exception ex)
 finally
 {
     await Log.CloseAndFlushAsync();
+    PhaseMarks.Mark("exit");
+    PhaseMarks.Write(Console.Error);
 }

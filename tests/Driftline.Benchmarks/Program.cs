@@ -35,6 +35,6 @@ static int PrintCount(long events)
 
 static int Usage()
 {
-    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K] | pending [EVENTS] | startup [--app DIR] [--repeats K] | peak [EVENTS...] [--repeats K] [--driftline EXE]");
+    Console.Error.WriteLine("usage: Driftline.Benchmarks replay [--workload demo|wide] [--events N] [--repeats K] | micro [BenchmarkDotNet options] | hash-sweep [WIDE_EVENTS] | classes [--events N] [--repeats K] | pending [EVENTS] | startup [--app DIR]... [--repeats K] [--phases] | peak [EVENTS...] [--repeats K] [--driftline EXE]");
     return 2;
 }

@@ -10,6 +10,7 @@ internal static class DriftlineCli
     public static async Task<int> RunAsync(string[] args, CommandContext context, CancellationToken cancellation = default)
     {
         var root = Build(context);
+        PhaseMarks.Mark("commands");
         var names = root.Subcommands.Select(c => c.Name).ToList();
         bool noCommand = args.Length == 0;
         if (noCommand)
@@ -28,6 +29,7 @@ internal static class DriftlineCli
             return ExitCode.Usage;
         }
         var parsed = root.Parse(args);
+        PhaseMarks.Mark("parse");
         if (parsed.Errors.Count > 0)
         {
             foreach (var error in parsed.Errors)

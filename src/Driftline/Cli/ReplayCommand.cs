@@ -128,6 +128,7 @@ internal sealed class ReplayCommand(CommandContext context)
                         "Use the classes, in the same order, the model was trained with")]);
             }
         }
+        PhaseMarks.Mark("config");
         bool compare = configs.Count > 1;
         var folders = configs.Select(c => compare ? Path.Combine(outDir, c.Name) : outDir).ToArray();
 
@@ -161,6 +162,7 @@ internal sealed class ReplayCommand(CommandContext context)
             return ExitCode.Input;
         }
 
+        PhaseMarks.Mark("outputs-opened");
         var recorders = new List<ReportRecorder>();
         var lanes = configs.Select(c => new ReplayLane(c.Options, sink =>
         {
@@ -218,6 +220,7 @@ internal sealed class ReplayCommand(CommandContext context)
         // On a long input, the end-of-run files' first-use costs are paid while the run goes on;
         // a short one would only wait for them.
         var warmUp = input.CanSeek && input.Length >= OutputWarmUp.MinInputBytes ? OutputWarmUp.Start(configs[0].Options, !MonitorOnly) : Task.CompletedTask;
+        PhaseMarks.Mark("engine");
         var clock = Stopwatch.StartNew();
         try
         {
@@ -249,6 +252,7 @@ internal sealed class ReplayCommand(CommandContext context)
             }
         }
         clock.Stop();
+        PhaseMarks.Mark("pipeline");
         Report(progress, pipeline, done: true);
         if (pipeline.Stopped)
         {
@@ -269,6 +273,7 @@ internal sealed class ReplayCommand(CommandContext context)
             return ExitCode.Input;
         }
 
+        PhaseMarks.Mark("end-files");
         var o = context.Out;
         for (int i = 0; i < lanes.Count; i++)
         {
@@ -324,10 +329,12 @@ internal sealed class ReplayCommand(CommandContext context)
                 recorder.Data.DeadLetters = lanes[i].DeadLetters;
                 recorder.Data.Elapsed = elapsed;
                 ReportWriter.WriteSingle(Path.Combine(folder, ReportWriter.FileName), file, recorder.Data, context.CreateOutput);
+                PhaseMarks.Mark("report");
             }
             finally
             {
                 await modelWrite.ConfigureAwait(false);
+                PhaseMarks.Mark("model");
             }
         }
         if (folders.Length > 1 && !empty)
