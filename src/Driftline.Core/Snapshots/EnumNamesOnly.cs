@@ -1,3 +1,5 @@
+using System.Diagnostics.CodeAnalysis;
+using System.Runtime.CompilerServices;
 using System.Text.Json;
 using System.Text.Json.Serialization;
 
@@ -17,9 +19,41 @@ internal sealed class EnumNamesOnly : JsonConverterFactory
     /// <inheritdoc />
     public override bool CanConvert(Type typeToConvert) => typeToConvert.IsEnum;
 
+    /// <summary>
+    /// A converter for every enum a snapshot or a checkpoint holds, made without reflection: a
+    /// natively compiled build (PublishAot) has no code for a generic type made at run time, so
+    /// <c>MakeGenericType</c> would fail there on the first model write. A test walks the
+    /// snapshot types and checks each enum among them is listed here.
+    /// </summary>
+    internal static readonly IReadOnlyDictionary<Type, Func<JsonConverter>> Known = new Dictionary<Type, Func<JsonConverter>>
+    {
+        [typeof(Options.LearnerKind)] = () => new NamesOf<Options.LearnerKind>(),
+        [typeof(Options.ScalingMode)] = () => new NamesOf<Options.ScalingMode>(),
+        [typeof(Recalibration.RecalibrationMode)] = () => new NamesOf<Recalibration.RecalibrationMode>(),
+        [typeof(Alerts.AlertBaseline)] = () => new NamesOf<Alerts.AlertBaseline>(),
+        [typeof(Alerts.AlertDirection)] = () => new NamesOf<Alerts.AlertDirection>(),
+        [typeof(Alerts.AlertMetric)] = () => new NamesOf<Alerts.AlertMetric>(),
+        [typeof(Alerts.AlertSeverity)] = () => new NamesOf<Alerts.AlertSeverity>(),
+        [typeof(Metrics.CalibrationFitStatus)] = () => new NamesOf<Metrics.CalibrationFitStatus>(),
+        [typeof(Detectors.DetectorState)] = () => new NamesOf<Detectors.DetectorState>(),
+    };
+
     /// <inheritdoc />
-    public override JsonConverter? CreateConverter(Type typeToConvert, JsonSerializerOptions options) =>
-        (JsonConverter?)Activator.CreateInstance(typeof(NamesOf<>).MakeGenericType(typeToConvert));
+    [UnconditionalSuppressMessage("AOT", "IL3050", Justification = "Reached only for an enum not in Known, and only where code is generated at run time (RuntimeFeature.IsDynamicCodeSupported); Known covers the snapshot types (tested).")]
+    [UnconditionalSuppressMessage("Trimming", "IL2071", Justification = "NamesOf<T> has no constructor parameters to keep; as above.")]
+    public override JsonConverter? CreateConverter(Type typeToConvert, JsonSerializerOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(typeToConvert);
+        if (Known.TryGetValue(typeToConvert, out var make))
+        {
+            return make();
+        }
+        if (!RuntimeFeature.IsDynamicCodeSupported)
+        {
+            throw new NotSupportedException($"enum {typeToConvert.Name} is not listed in EnumNamesOnly.Known, which a native build needs");
+        }
+        return (JsonConverter?)Activator.CreateInstance(typeof(NamesOf<>).MakeGenericType(typeToConvert));
+    }
 
     /// <summary>
     /// The reason to show for <paramref name="ex"/>: for an enum value refused here, the field's

@@ -1,6 +1,5 @@
 using System.Buffers;
 using System.Text.Json;
-using System.Text.Json.Serialization;
 using Driftline.Core.Snapshots;
 
 namespace Driftline.Kafka.Checkpoints;
@@ -12,13 +11,6 @@ namespace Driftline.Kafka.Checkpoints;
 /// </summary>
 internal sealed partial class CheckpointStore
 {
-    private static readonly JsonSerializerOptions Json = new()
-    {
-        PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower,
-        Converters = { new EnumNamesOnly() },
-        NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals,
-    };
-
     private readonly string _directory;
 
     /// <summary>Uses (and creates) <paramref name="directory"/>.</summary>
@@ -62,7 +54,7 @@ internal sealed partial class CheckpointStore
         PartitionCheckpoint? checkpoint;
         try
         {
-            checkpoint = JsonSerializer.Deserialize<PartitionCheckpoint>(json, Json);
+            checkpoint = JsonSerializer.Deserialize(json, CheckpointJsonContext.Default.PartitionCheckpoint);
         }
         catch (JsonException ex)
         {
@@ -110,8 +102,9 @@ internal sealed partial class CheckpointStore
         checkpoint.Snapshot.Format = EngineSnapshot.FormatName;
         checkpoint.Snapshot.FormatVersion = EngineSnapshot.CurrentVersion;
         into.ResetWrittenCount();
-        using var writer = new Utf8JsonWriter(into, new JsonWriterOptions { Encoder = Json.Encoder, Indented = Json.WriteIndented });
-        JsonSerializer.Serialize(writer, checkpoint, Json);
+        var options = CheckpointJsonContext.Default.Options;
+        using var writer = new Utf8JsonWriter(into, new JsonWriterOptions { Encoder = options.Encoder, Indented = options.WriteIndented });
+        JsonSerializer.Serialize(writer, checkpoint, CheckpointJsonContext.Default.PartitionCheckpoint);
     }
 
     /// <summary>

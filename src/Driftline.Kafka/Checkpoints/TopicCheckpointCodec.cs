@@ -32,8 +32,6 @@ internal static class TopicCheckpointCodec
 
     private static ReadOnlySpan<byte> Magic => "DLCK"u8;
 
-    private static readonly JsonSerializerOptions Json = new() { PropertyNamingPolicy = JsonNamingPolicy.SnakeCaseLower };
-
     /// <summary>Key of a partition's manifest.</summary>
     public static string ManifestKey(string eventsTopic, int partition) =>
         string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}");
@@ -91,7 +89,7 @@ internal static class TopicCheckpointCodec
             LabelsOffset = checkpoint.LabelsOffset,
             WrittenAt = checkpoint.WrittenAt,
         };
-        records.Add(new(ManifestKey(checkpoint.EventsTopic, checkpoint.Partition), JsonSerializer.SerializeToUtf8Bytes(manifest, Json)));
+        records.Add(new(ManifestKey(checkpoint.EventsTopic, checkpoint.Partition), JsonSerializer.SerializeToUtf8Bytes(manifest, ManifestJsonContext.Default.CheckpointManifest)));
         return records;
     }
 
@@ -121,7 +119,7 @@ internal static class TopicCheckpointCodec
         CheckpointManifest? manifest;
         try
         {
-            manifest = JsonSerializer.Deserialize<CheckpointManifest>(value, Json);
+            manifest = JsonSerializer.Deserialize(value, ManifestJsonContext.Default.CheckpointManifest);
         }
         catch (JsonException ex)
         {

@@ -49,7 +49,7 @@ internal static class ConfigLoader
         var core = new ConfigurationBuilder()
             .AddInMemoryCollection(configuration.AsEnumerable().Where(kv => !HostSections.Any(h => kv.Key.Equals(h, StringComparison.OrdinalIgnoreCase) || kv.Key.StartsWith(h + ":", StringComparison.OrdinalIgnoreCase))))
             .Build();
-        if (BindChecked(core, options, "", sources) is { } failure)
+        if (BindChecked("", sources, () => core.Bind(options, o => o.ErrorOnUnknownConfiguration = true)) is { } failure)
         {
             errors = [failure];
             return null;
@@ -59,15 +59,18 @@ internal static class ConfigLoader
     }
 
     /// <summary>
-    /// Binds <paramref name="configuration"/> into <paramref name="options"/> after
-    /// <see cref="OptionSchema.Check"/> passed; returns null, or the one mistake the check
-    /// could not foresee, worded without the binder's internals.
+    /// Runs <paramref name="bind"/> (a binding of one section after <see cref="OptionSchema.Check"/>
+    /// passed); returns null, or the one mistake the check could not foresee, worded without the
+    /// binder's internals. Each caller binds its own options type where the type is known at
+    /// compile time, so the binder's source generator (EnableConfigurationBindingGenerator in
+    /// the csproj) writes the binding code and no reflection is needed at run time.
     /// </summary>
-    public static OptionError? BindChecked(IConfiguration configuration, object options, string section, ConfigSources sources)
+    public static OptionError? BindChecked(string section, ConfigSources sources, Action bind)
     {
+        ArgumentNullException.ThrowIfNull(bind);
         try
         {
-            configuration.Bind(options, o => o.ErrorOnUnknownConfiguration = true);
+            bind();
             return null;
         }
         catch (InvalidOperationException)

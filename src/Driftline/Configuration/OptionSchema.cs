@@ -1,4 +1,5 @@
 using System.Collections;
+using System.Diagnostics.CodeAnalysis;
 using System.Globalization;
 using System.Reflection;
 using Driftline.Core.Options;
@@ -137,6 +138,11 @@ internal static class OptionSchema
         _ => "a value",
     };
 
+    // The options types are walked by reflection. In a trimmed (native AOT) publish the csproj
+    // makes the Driftline assemblies trimmer roots, so their public properties, constructors and
+    // interfaces are all kept and these walks see what a plain build sees.
+    private const string TrimmedMembers = "The options types' assemblies are trimmer roots in a trimmed publish (Driftline.csproj), so their members are kept.";
+
     private static OptionNode BuildRoot()
     {
         var core = new DriftlineOptions();
@@ -146,11 +152,16 @@ internal static class OptionSchema
         return new OptionNode { Name = "", Path = "", Shape = OptionShape.Section, Type = typeof(object), Children = children };
     }
 
+    [UnconditionalSuppressMessage("Trimming", "IL2070", Justification = TrimmedMembers)]
     private static IEnumerable<OptionNode> Properties(Type type, object? instance, string path) =>
         type.GetProperties(BindingFlags.Public | BindingFlags.Instance)
             .Where(p => p.SetMethod is { IsPublic: true } && p.GetIndexParameters().Length == 0)
             .Select(p => Build(p.Name, path.Length == 0 ? p.Name : $"{path}:{p.Name}", p.PropertyType, instance is null ? null : p.GetValue(instance), p));
 
+    [UnconditionalSuppressMessage("Trimming", "IL2062", Justification = TrimmedMembers)]
+    [UnconditionalSuppressMessage("Trimming", "IL2065", Justification = TrimmedMembers)]
+    [UnconditionalSuppressMessage("Trimming", "IL2072", Justification = TrimmedMembers)]
+    [UnconditionalSuppressMessage("Trimming", "IL2075", Justification = TrimmedMembers)]
     private static OptionNode Build(string name, string path, Type type, object? value, PropertyInfo? property)
     {
         var underlying = Nullable.GetUnderlyingType(type);
@@ -186,10 +197,13 @@ internal static class OptionSchema
     }
 
     /// <summary>One value, as the binder sees it: anything its type converter reads from text (numbers, enums, TimeSpan, Uri…).</summary>
+    [UnconditionalSuppressMessage("Trimming", "IL2026", Justification = TrimmedMembers)]
+    [UnconditionalSuppressMessage("Trimming", "IL2067", Justification = TrimmedMembers)]
     private static bool IsValue(Type type) =>
         type.IsPrimitive || type.IsEnum || type == typeof(string) || type == typeof(TimeSpan) || type == typeof(decimal)
         || (!typeof(IEnumerable).IsAssignableFrom(type) && System.ComponentModel.TypeDescriptor.GetConverter(type).CanConvertFrom(typeof(string)));
 
+    [UnconditionalSuppressMessage("Trimming", "IL2070", Justification = TrimmedMembers)]
     private static Type? Interface(Type type, Type generic) =>
         type.IsGenericType && type.GetGenericTypeDefinition() == generic ? type
             : type.GetInterfaces().FirstOrDefault(i => i.IsGenericType && i.GetGenericTypeDefinition() == generic);

@@ -42,8 +42,17 @@ internal sealed record RunSettings(DriftlineOptions Core, KafkaOptions Kafka, Wo
         var found = new List<OptionError>();
         var core = ConfigLoader.Bind(root, sources, out var coreErrors);
         found.AddRange(coreErrors);
-        var kafka = BindSection<KafkaOptions>(root, "Kafka", sources, found);
-        var worker = BindSection<WorkerOptions>(root, "Worker", sources, found);
+        var kafka = new KafkaOptions();
+        var worker = new WorkerOptions();
+        // Each bound with its own type at the call, so the binder's source generator covers it.
+        if (ConfigLoader.BindChecked("Kafka", sources, () => root.GetSection("Kafka").Bind(kafka, o => o.ErrorOnUnknownConfiguration = true)) is { } kafkaFailure)
+        {
+            found.Add(kafkaFailure);
+        }
+        if (ConfigLoader.BindChecked("Worker", sources, () => root.GetSection("Worker").Bind(worker, o => o.ErrorOnUnknownConfiguration = true)) is { } workerFailure)
+        {
+            found.Add(workerFailure);
+        }
         new ConfigurationBuilder().AddInMemoryCollection(overrides.Where(kv => kv.Value is not null)).Build().Bind(kafka);
         found.AddRange(ConfigLoader.WithSources(kafka.Validate(), root, sources));
         found.AddRange(ConfigLoader.WithSources(worker.Validate(), root, sources));
@@ -61,14 +70,4 @@ internal sealed record RunSettings(DriftlineOptions Core, KafkaOptions Kafka, Wo
     private static bool KafkaInFileOnly(IConfiguration root, ConfigSources sources) =>
         root.GetSection("Kafka:Bootstrap").Value is null
         && root.GetSection("Kafka").AsEnumerable().Any(kv => kv.Value is not null && !sources.Variables.ContainsKey(kv.Key));
-
-    private static T BindSection<T>(IConfiguration root, string section, ConfigSources sources, List<OptionError> errors) where T : new()
-    {
-        var options = new T();
-        if (ConfigLoader.BindChecked(root.GetSection(section), options, section, sources) is { } failure)
-        {
-            errors.Add(failure);
-        }
-        return options;
-    }
 }
