@@ -20,6 +20,26 @@ public sealed class CheckpointStoreTests
     };
 
     [Fact]
+    public void Serialize_SourceGeneratedContext_WritesTheReflectionSerializersBytes()
+    {
+        // Reference: System.Text.Json's reflection serializer with the options the store used
+        // before its source-generated context (native AOT builds cannot reflect), so checkpoints
+        // written by either build read back in the other.
+        var reflection = new System.Text.Json.JsonSerializerOptions
+        {
+            PropertyNamingPolicy = System.Text.Json.JsonNamingPolicy.SnakeCaseLower,
+            Converters = { new Driftline.Core.Snapshots.EnumNamesOnly() },
+            NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals,
+            TypeInfoResolver = new System.Text.Json.Serialization.Metadata.DefaultJsonTypeInfoResolver(),
+        };
+        var checkpoint = Checkpoint(2);
+        byte[] generated = CheckpointStore.Serialize(checkpoint);
+
+        Assert.Equal(System.Text.Encoding.UTF8.GetString(System.Text.Json.JsonSerializer.SerializeToUtf8Bytes(checkpoint, reflection)), System.Text.Encoding.UTF8.GetString(generated));
+        Assert.Contains("\"learner\":\"AdaGrad\"", System.Text.Encoding.UTF8.GetString(generated), StringComparison.Ordinal);
+    }
+
+    [Fact]
     public void Write_AnotherWritersTemporaryFileBeside_IsLeftAloneAndTheCheckpointLandsWhole()
     {
         // Two workers sharing a folder (a takeover on a shared volume) may write the same
