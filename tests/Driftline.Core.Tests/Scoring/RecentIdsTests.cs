@@ -60,4 +60,40 @@ public sealed class RecentIdsTests
         Assert.Equal(window, ids.Entries());
         Assert.Equal(capacity, ids.Count);
     }
+
+    [Fact]
+    public void Contains_AskedAfterRunsOfAdds_AgreesWithAPlainListOfTheLastN()
+    {
+        // Ids are filed in the table only when a question comes: runs of adds between two
+        // questions, shorter and longer than the capacity, must answer as filing at each add
+        // would. Reference: the definition (the last `capacity` ids added), as above.
+        const int capacity = 40;
+        var ids = new RecentIds(capacity);
+        var window = new List<string>();
+        var random = new Random(11);
+        for (int round = 0; round < 2_000; round++)
+        {
+            int run = random.Next(3) switch { 0 => random.Next(1, 5), 1 => random.Next(5, capacity), _ => random.Next(capacity, 3 * capacity) };
+            for (int n = 0; n < run; n++)
+            {
+                string id = $"o-{random.Next(90)}";
+                ids.Add(id);
+                window.Add(id);
+                if (window.Count > capacity)
+                {
+                    window.RemoveAt(0);
+                }
+            }
+            for (int q = random.Next(1, 4); q > 0; q--)
+            {
+                string probe = $"o-{random.Next(100)}";
+                Assert.Equal(window.Contains(probe), ids.Contains(probe));
+            }
+            if (round % 100 == 0)
+            {
+                Assert.Equal(window, ids.Entries());
+            }
+        }
+        Assert.Equal(window, ids.Entries());
+    }
 }
