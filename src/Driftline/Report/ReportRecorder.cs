@@ -196,13 +196,9 @@ internal sealed class ReportRecorder(IScoringSink inner, ReportData data, int sa
         if (labels - _aucAt >= Math.Max(1, window.Capacity / 4))
         {
             _aucAt = labels;
-            var contents = window.ToArray();
-            var auc = new RollingAuc(Math.Max(1, contents.Length));
-            foreach (var g in contents)
-            {
-                auc.Add(g.P, g.Y);
-            }
-            _auc = auc.Value;
+            // One sort of the window's contents, not a tree insert per prediction: the same value
+            // to the bit (tests/Driftline.Benchmarks README, replay profile).
+            _auc = RollingAuc.Of(window.ToArray());
         }
         return _auc;
     }

@@ -82,6 +82,39 @@ public sealed class RollingAucTests
     }
 
     [Fact]
+    public void Of_SmallSetWithTies_MatchesTheHandCount()
+    {
+        // The hand count of the first test: U = 4.5 of 6 pairs.
+        Assert.Equal(0.75, RollingAuc.Of([new(0.9, 1), new(0.8, 0), new(0.7, 1), new(0.7, 0), new(0.2, 0)]));
+        Assert.True(double.IsNaN(RollingAuc.Of([new(0.4, 1), new(0.6, 1)])));
+        Assert.True(double.IsNaN(RollingAuc.Of([])));
+        Assert.Throws<ArgumentOutOfRangeException>(() => RollingAuc.Of([new(0.4, 1), new(double.NaN, 0)]));
+    }
+
+    [Fact]
+    public void Of_RandomSets_EqualsMannWhitneyRecomputedAndTheWindowToTheBit()
+    {
+        Gen<(double P, int Y)[]> sets =
+            from levels in Gen.OneOf(Gen.Const(3), Gen.Const(50), Gen.Const(1_000_000))
+            from items in Gen.Select(Gen.Int[0, levels], Gen.Int[0, 1]).Array[0, 600]
+            select items.Select(item => ((double)item.Item1 / levels, item.Item2)).ToArray();
+
+        sets.Sample(items =>
+        {
+            var window = new RollingAuc(Math.Max(1, items.Length));
+            foreach (var (p, y) in items)
+            {
+                window.Add(p, y);
+            }
+            (long halfPairs, long positives, long negatives) = MannWhitney(items);
+            double expected = positives == 0 || negatives == 0 ? double.NaN : halfPairs / (2.0 * positives * negatives);
+            double value = RollingAuc.Of(items.Select(i => new GradedPrediction(i.P, i.Y)).ToArray());
+            Assert.Equal(expected, value);
+            Assert.Equal(BitConverter.DoubleToInt64Bits(window.Value), BitConverter.DoubleToInt64Bits(value));
+        }, iter: 200);
+    }
+
+    [Fact]
     public void Copy_MidStream_ContinuesIdenticallyAndIndependently()
     {
         var random = new Random(3);
