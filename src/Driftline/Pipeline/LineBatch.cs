@@ -13,6 +13,7 @@ internal sealed class LineBatch
     private int[] _lengths = new int[8192];
     private ParsedRecord[] _records = [];
     private string?[] _errors = [];
+    private bool[] _blank = [];
     private string?[] _refused = new string?[8192];
 
     /// <summary>Lines in the batch.</summary>
@@ -39,15 +40,22 @@ internal sealed class LineBatch
     /// <summary>Why line <paramref name="i"/> was rejected by the parser, or null when it parsed (or is blank).</summary>
     public string? Error(int i) => _errors[i];
 
-    /// <summary>True when line <paramref name="i"/> holds nothing but blanks (skipped, but counted for line numbers).</summary>
-    public bool IsBlank(int i)
+    /// <summary>True when line <paramref name="i"/> holds nothing but blanks (skipped, but counted for line numbers); set by <see cref="Parse"/>.</summary>
+    /// <remarks>
+    /// Kept from the parse, not asked of the bytes again: the scoring stage, on the other core,
+    /// then never reads a line it does not reject (the second test was 1% of a wide replay's
+    /// samples, most of it the line's first bytes crossing between the cores).
+    /// </remarks>
+    public bool IsBlank(int i) => _blank[i];
+
+    private bool BlankText(int i)
     {
         if (_refused[i] is not null)
         {
             return false;
         }
-        // Asked twice of every line (parse and score); a line that starts with anything but a
-        // blank is not blank, so the trim runs only for lines that start with one.
+        // A line that starts with anything but a blank is not blank, so the trim runs only for
+        // lines that start with one.
         var line = Line(i);
         return line.IsEmpty || (line[0] is (byte)' ' or (byte)'\t' && line.Trim(" \t"u8).IsEmpty);
     }
@@ -60,6 +68,7 @@ internal sealed class LineBatch
             int old = _records.Length;
             Array.Resize(ref _records, Math.Max(Count, _starts.Length));
             Array.Resize(ref _errors, _records.Length);
+            Array.Resize(ref _blank, _records.Length);
             for (int i = old; i < _records.Length; i++)
             {
                 _records[i] = new ParsedRecord();
@@ -67,7 +76,9 @@ internal sealed class LineBatch
         }
         for (int i = 0; i < Count; i++)
         {
-            _errors[i] = _refused[i] ?? (IsBlank(i) || parser.TryParse(Line(i), _records[i], out var error) ? null : error);
+            bool blank = BlankText(i);
+            _blank[i] = blank;
+            _errors[i] = _refused[i] ?? (blank || parser.TryParse(Line(i), _records[i], out var error) ? null : error);
         }
     }
 
