@@ -110,26 +110,28 @@ internal sealed class RollingAuc
     /// <exception cref="ArgumentOutOfRangeException">A prediction's p is NaN, infinite or outside [0, 1], or its y is not 0 or 1.</exception>
     public static double Of(ReadOnlySpan<GradedPrediction> predictions)
     {
-        var scores = new double[predictions.Length];
-        var outcomes = new int[predictions.Length];
+        // One array of keys: a score in [0, 1] as its IEEE 754 bits (ordered as the values for
+        // non-negative doubles; + 0.0 turns -0.0 into 0.0, which ties with it), shifted left
+        // one place with the outcome in the freed bit. Sorting these orders by score, and a run
+        // of equal scores is a run of equal keys once the outcome bit is dropped.
+        var keys = new long[predictions.Length];
         for (int i = 0; i < predictions.Length; i++)
         {
             PredictionScores.Validate(predictions[i].P, predictions[i].Y);
-            scores[i] = predictions[i].P;
-            outcomes[i] = predictions[i].Y;
+            keys[i] = (BitConverter.DoubleToInt64Bits(predictions[i].P + 0.0) << 1) | (long)predictions[i].Y;
         }
-        Array.Sort(scores, outcomes);
+        Array.Sort(keys);
         long halfPairs = 0;
         long positives = 0;
         long negativesBelow = 0;
-        for (int start = 0; start < scores.Length;)
+        for (int start = 0; start < keys.Length;)
         {
+            long score = keys[start] >> 1;
             int end = start;
             long runPositives = 0;
-            // Equal scores, -0.0 and 0.0 included, sort next to each other and tie as in the tree.
-            while (end < scores.Length && scores[end] == scores[start])
+            while (end < keys.Length && keys[end] >> 1 == score)
             {
-                runPositives += outcomes[end];
+                runPositives += keys[end] & 1;
                 end++;
             }
             long runNegatives = end - start - runPositives;

@@ -88,6 +88,8 @@ public sealed class RollingAucTests
         Assert.Equal(0.75, RollingAuc.Of([new(0.9, 1), new(0.8, 0), new(0.7, 1), new(0.7, 0), new(0.2, 0)]));
         Assert.True(double.IsNaN(RollingAuc.Of([new(0.4, 1), new(0.6, 1)])));
         Assert.True(double.IsNaN(RollingAuc.Of([])));
+        // -0.0 is a score of 0 and ties with 0.0 (IEEE 754: they compare equal), as in the window.
+        Assert.Equal(0.5, RollingAuc.Of([new(-0.0, 1), new(0.0, 0)]));
         Assert.Throws<ArgumentOutOfRangeException>(() => RollingAuc.Of([new(0.4, 1), new(double.NaN, 0)]));
     }
 
