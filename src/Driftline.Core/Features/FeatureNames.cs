@@ -25,13 +25,19 @@ internal sealed class FeatureNames
     // feature of every event, and one array read is far cheaper than a dictionary probe.
     private readonly ulong[] _seen = new ulong[1 << 16];
 
+    // One bit per 2^20 buckets of hashes, set for every hash in the record: a clear bit means
+    // "not recorded" without the dictionary probe. Once the record is full, a stream with
+    // a million distinct values misses the cache above on most of them, and the probe was 2.5%
+    // of a wide replay's samples (tests/Driftline.Benchmarks README).
+    private readonly ulong[] _recorded = new ulong[(1 << 20) / 64];
+
     /// <summary>Creates an empty record holding at most <paramref name="capacity"/> names.</summary>
     /// <exception cref="ArgumentOutOfRangeException"><paramref name="capacity"/> is less than 1.</exception>
     public FeatureNames(int capacity = DefaultCapacity)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(capacity, 1);
         Capacity = capacity;
-        _names[FeatureHash.Bias] = "(bias)";
+        Add(FeatureHash.Bias, "(bias)");
     }
 
     /// <summary>Most names kept.</summary>
@@ -50,10 +56,10 @@ internal sealed class FeatureNames
         {
             return;
         }
-        bool known = _names.ContainsKey(hash);
+        bool known = MayBeRecorded(hash) && _names.ContainsKey(hash);
         if (!known && HasRoom())
         {
-            _names[hash] = Encoding.UTF8.GetString(utf8Name);
+            Add(hash, Encoding.UTF8.GetString(utf8Name));
             known = true;
         }
         Remember(hash, known);
@@ -66,13 +72,26 @@ internal sealed class FeatureNames
         {
             return;
         }
-        bool known = _names.ContainsKey(hash);
+        bool known = MayBeRecorded(hash) && _names.ContainsKey(hash);
         if (!known && HasRoom())
         {
-            _names[hash] = string.Concat(Encoding.UTF8.GetString(utf8Name), "=", Encoding.UTF8.GetString(utf8Value));
+            Add(hash, string.Concat(Encoding.UTF8.GetString(utf8Name), "=", Encoding.UTF8.GetString(utf8Value)));
             known = true;
         }
         Remember(hash, known);
+    }
+
+    private void Add(ulong hash, string text)
+    {
+        _names[hash] = text;
+        int bit = (int)(hash >> 24) & ((1 << 20) - 1);
+        _recorded[bit >> 6] |= 1UL << bit;
+    }
+
+    private bool MayBeRecorded(ulong hash)
+    {
+        int bit = (int)(hash >> 24) & ((1 << 20) - 1);
+        return (_recorded[bit >> 6] & (1UL << bit)) != 0;
     }
 
     // The top bits index the cache: the weight slot uses the low bits, so these spread independently.
@@ -104,7 +123,7 @@ internal sealed class FeatureNames
         {
             if (names.HasRoom())
             {
-                names._names[hash] = text;
+                names.Add(hash, text);
             }
         }
         return names;

@@ -53,6 +53,45 @@ public sealed class FeatureNamesTests
     }
 
     [Fact]
+    public void RecordValue_ManyHashesSharingBuckets_KeepsExactlyTheFirstDistinctOnes()
+    {
+        // The definition (the class summary): the first `capacity` distinct hashes are kept,
+        // the bias among them, and each later one is dropped, counted at least once and at
+        // most once a call. Hashes drawn so that many share the bits of the presence filter
+        // and of the cache but differ elsewhere, with repeats on both sides of the limit.
+        const int capacity = 500;
+        var names = new FeatureNames(capacity);
+        var kept = new HashSet<ulong> { FeatureHash.Bias };
+        var dropped = new HashSet<ulong>();
+        long droppedCalls = 0;
+        var random = new Random(5);
+        var pool = new List<ulong>();
+        for (int n = 0; n < 3_000; n++)
+        {
+            ulong shared = (ulong)random.Next(64) << 24;
+            pool.Add(((ulong)random.NextInt64() & ~(0xFFFFFUL << 24)) | shared);
+        }
+        for (int n = 0; n < 20_000; n++)
+        {
+            ulong hash = pool[random.Next(pool.Count)];
+            names.RecordValue(hash, "n"u8, Encoding.UTF8.GetBytes(hash.ToString(System.Globalization.CultureInfo.InvariantCulture)));
+            if (kept.Contains(hash) || (kept.Count < capacity && kept.Add(hash)))
+            {
+                continue;
+            }
+            dropped.Add(hash);
+            droppedCalls++;
+        }
+
+        Assert.Equal(kept.Count, names.Count);
+        foreach (ulong hash in pool)
+        {
+            Assert.Equal(kept.Contains(hash) ? "n=" + hash.ToString(System.Globalization.CultureInfo.InvariantCulture) : null, names.Find(hash));
+        }
+        Assert.InRange(names.Dropped, dropped.Count, droppedCalls);
+    }
+
+    [Fact]
     public void TryParse_KnownVocabulary_AllocatesNoMoreThanWithoutNames()
     {
         var line = """{"id":"a","features":{"zone":"riverside","km":3.4,"tags":["x"]}}"""u8.ToArray();
