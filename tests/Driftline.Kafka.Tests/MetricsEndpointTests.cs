@@ -16,7 +16,7 @@ public sealed class MetricsEndpointTests
     public async Task Start_WorkerCounts_ServedInPrometheusTextAndHealthFollowsTheLoop()
     {
         using var dir = new TempDir();
-        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        var worker = IdleWorker(dir);
         worker.Stats.EventsIn = 1234;
         worker.Stats.Partitions = 3;
         worker.Stats.Pauses = 4321;
@@ -55,7 +55,7 @@ public sealed class MetricsEndpointTests
     public async Task Start_Challengers_EachServedWithItsNameAndPartitionAsLabels()
     {
         using var dir = new TempDir();
-        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        var worker = IdleWorker(dir);
         worker.Stats.Challengers[("fast", 2)] = new ChallengerFigures(0.52, 0.47, 0.031, 0.012, 2.5, 4.605, 1_200, 1);
         worker.Stats.Challengers[("wide", 0)] = new ChallengerFigures(0.5, 0.55, 0.02, 0.04, 0, 4.605, 900, 0);
         worker.Stats.ChallengerDecisions = 1;
@@ -76,7 +76,7 @@ public sealed class MetricsEndpointTests
     public async Task Start_ChallengerPartitionGivenUp_ItsSeriesLeaveTheNextScrape()
     {
         using var dir = new TempDir();
-        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        var worker = IdleWorker(dir);
         worker.Stats.Challengers[("fast", 2)] = new ChallengerFigures(0.52, 0.47, 0.031, 0.012, 2.5, 4.605, 1_200, 1);
         worker.Stats.Challengers[("fast", 5)] = new ChallengerFigures(0.5, 0.55, 0.02, 0.04, 0, 4.605, 900, 0);
         int port = FreePort();
@@ -100,7 +100,7 @@ public sealed class MetricsEndpointTests
     public async Task Start_AllInterfaces_ServesOnLoopbackToo(string address)
     {
         using var dir = new TempDir();
-        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        var worker = IdleWorker(dir);
         int port = FreePort();
         using var endpoint = MetricsEndpoint.Start(new WorkerOptions { MetricsAddress = address, MetricsPort = port }, worker);
         Assert.NotNull(endpoint);
@@ -116,7 +116,7 @@ public sealed class MetricsEndpointTests
     public void Start_PortTaken_ThrowsNamingTheOptions()
     {
         using var dir = new TempDir();
-        var worker = new KafkaWorker(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
+        var worker = IdleWorker(dir);
         using var taken = new TcpListener(IPAddress.Loopback, 0);
         taken.Start();
         int port = ((IPEndPoint)taken.LocalEndpoint).Port;
@@ -130,4 +130,8 @@ public sealed class MetricsEndpointTests
         listener.Start();
         return ((IPEndPoint)listener.LocalEndpoint).Port;
     }
+
+    // A worker that is never started: the endpoint serves whatever its stats hold.
+    private static KafkaWorker IdleWorker(TempDir dir) =>
+        new(new KafkaOptions { Bootstrap = "127.0.0.1:9", CheckpointDir = dir.Path }, new DriftlineOptions());
 }
