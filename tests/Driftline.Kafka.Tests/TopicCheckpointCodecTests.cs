@@ -6,16 +6,17 @@ namespace Driftline.Kafka.Tests;
 public sealed class TopicCheckpointCodecTests
 {
     private const string Topic = "orders";
+    private const string Writer = "a1";
 
     [Fact]
     public void Encode_ThenAssemble_GivesThePayloadBack()
     {
         var payload = Payload(2_500, seed: 1);
-        var records = TopicCheckpointCodec.Encode(Checkpoint(2, 100), payload, generation: 1, slot: 0, chunkBytes: 1_000);
+        var records = TopicCheckpointCodec.Encode(Checkpoint(2, 100), payload, generation: 1, slot: 0, Writer, chunkBytes: 1_000);
 
         Assert.Equal(4, records.Count); // three chunks, then the manifest
-        Assert.Equal("orders/2", records[^1].Key);
-        Assert.Equal(["orders/2/0/0", "orders/2/0/1", "orders/2/0/2"], records.Take(3).Select(r => r.Key));
+        Assert.Equal("orders/2/a1", records[^1].Key);
+        Assert.Equal(["orders/2/a1/0/0", "orders/2/a1/0/1", "orders/2/a1/0/2"], records.Take(3).Select(r => r.Key));
         var assembler = Feed(records);
         var manifest = assembler.Manifest(2);
         Assert.NotNull(manifest);
@@ -32,15 +33,15 @@ public sealed class TopicCheckpointCodecTests
         var third = Payload(800, seed: 3);
         var fourth = Payload(2_000, seed: 4);
         var records = new List<CheckpointRecord>();
-        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 10), first, 1, slot: 0, chunkBytes: 1_000));
-        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 20), second, 2, slot: 1, chunkBytes: 1_000));
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 10), first, 1, slot: 0, Writer, chunkBytes: 1_000));
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 20), second, 2, slot: 1, Writer, chunkBytes: 1_000));
         // Fewer chunks than generation 1 left in slot 0: its chunks 1 and 2 stay behind.
-        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 30), third, 3, slot: 0, chunkBytes: 1_000));
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 30), third, 3, slot: 0, Writer, chunkBytes: 1_000));
         // A checkpoint cut short by a crash: its chunks went out, its manifest never did.
-        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 40), fourth, 4, slot: 1, chunkBytes: 1_000).SkipLast(1));
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 40), fourth, 4, slot: 1, Writer, chunkBytes: 1_000).SkipLast(1));
         // Another events topic and another partition share the topic.
-        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(3, 50), fourth, 9, slot: 0, chunkBytes: 1_000));
-        records.AddRange(TopicCheckpointCodec.Encode(new PartitionCheckpoint { EventsTopic = "other", Partition = 1 }, fourth, 9, slot: 0, chunkBytes: 1_000));
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(3, 50), fourth, 9, slot: 0, Writer, chunkBytes: 1_000));
+        records.AddRange(TopicCheckpointCodec.Encode(new PartitionCheckpoint { EventsTopic = "other", Partition = 1 }, fourth, 9, slot: 0, Writer, chunkBytes: 1_000));
         records.Add(new("not a checkpoint key", [1, 2, 3]));
 
         var assembler = Feed(records, partition: 1);
@@ -49,14 +50,14 @@ public sealed class TopicCheckpointCodecTests
         Assert.Equal(3, manifest.Generation);
         Assert.Equal(30, manifest.EventsOffset);
         Assert.Equal(third, assembler.Assemble(manifest));
-        Assert.Equal(3, assembler.SlotExtent(1, 0));
-        Assert.Equal(2, assembler.SlotExtent(1, 1));
+        Assert.Equal(3, assembler.SlotExtent(1, Writer, 0));
+        Assert.Equal(2, assembler.SlotExtent(1, Writer, 1));
     }
 
     [Fact]
     public void Assemble_ChunkMissing_ThrowsNamingTheChunk()
     {
-        var records = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(2_500, seed: 1), 7, slot: 1, chunkBytes: 1_000);
+        var records = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(2_500, seed: 1), 7, slot: 1, Writer, chunkBytes: 1_000);
         records.RemoveAt(1);
         var assembler = Feed(records, partition: 0);
 
@@ -69,8 +70,8 @@ public sealed class TopicCheckpointCodecTests
     public void Assemble_ChunkOfAnotherGenerationInPlace_Throws()
     {
         // A manifest whose chunk 1 was overwritten by another writer's checkpoint.
-        var mine = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(2_500, seed: 1), 7, slot: 0, chunkBytes: 1_000);
-        var theirs = TopicCheckpointCodec.Encode(Checkpoint(0, 6), Payload(2_500, seed: 2), 8, slot: 0, chunkBytes: 1_000);
+        var mine = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(2_500, seed: 1), 7, slot: 0, Writer, chunkBytes: 1_000);
+        var theirs = TopicCheckpointCodec.Encode(Checkpoint(0, 6), Payload(2_500, seed: 2), 8, slot: 0, Writer, chunkBytes: 1_000);
         var assembler = Feed([mine[0], theirs[1], mine[2], mine[^1]], partition: 0);
 
         var error = Assert.Throws<InvalidDataException>(() => assembler.Assemble(assembler.Manifest(0)!));
@@ -80,7 +81,7 @@ public sealed class TopicCheckpointCodecTests
     [Fact]
     public void Assemble_ChunkBytesChanged_ThrowsDamaged()
     {
-        var records = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(2_500, seed: 1), 7, slot: 0, chunkBytes: 1_000);
+        var records = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(2_500, seed: 1), 7, slot: 0, Writer, chunkBytes: 1_000);
         records[1].Value![TopicCheckpointCodec.HeaderBytes + 10] ^= 0xff;
         var assembler = Feed(records, partition: 0);
 
@@ -91,8 +92,8 @@ public sealed class TopicCheckpointCodecTests
     [Fact]
     public void Manifest_Tombstoned_IsNone()
     {
-        var records = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(100, seed: 1), 1, slot: 0);
-        records.Add(new(TopicCheckpointCodec.ManifestKey(Topic, 0), null));
+        var records = TopicCheckpointCodec.Encode(Checkpoint(0, 5), Payload(100, seed: 1), 1, slot: 0, Writer);
+        records.Add(new(TopicCheckpointCodec.ManifestKey(Topic, 0, Writer), null));
 
         Assert.Null(Feed(records, partition: 0).Manifest(0));
     }
@@ -100,7 +101,7 @@ public sealed class TopicCheckpointCodecTests
     [Fact]
     public void Manifest_NotAManifest_ThrowsNamingTheTopic()
     {
-        var assembler = Feed([new(TopicCheckpointCodec.ManifestKey(Topic, 0), "{\"format\":\"x\"}"u8.ToArray())], partition: 0);
+        var assembler = Feed([new(TopicCheckpointCodec.ManifestKey(Topic, 0, Writer), "{\"format\":\"x\"}"u8.ToArray())], partition: 0);
 
         var error = Assert.Throws<InvalidDataException>(() => assembler.Manifest(0));
         Assert.Contains("topic 'checkpoints'", error.Message, StringComparison.Ordinal);

@@ -53,7 +53,7 @@ public sealed class TopicCheckpointWriterTests
         Assert.Equal(300, manifest.EventsOffset);
         Assert.Equal(1, manifest.Chunks);
         // Generation 1's higher chunks in slot 0 were deleted by tombstones.
-        Assert.Equal(1, assembler.SlotExtent(1, 0));
+        Assert.Equal(1, assembler.SlotExtent(1, writer.Id, 0));
         using var json = new MemoryStream(assembler.Assemble(manifest));
         Assert.Equal(300, CheckpointStore.Parse(json, "test").EventsOffset);
     }

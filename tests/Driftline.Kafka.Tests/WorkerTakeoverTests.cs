@@ -65,9 +65,10 @@ public sealed class WorkerTakeoverTests
         using var dir = new TempDir();
         var options = WorkerHost.OptionsFor(cluster.Bootstrap, "ti", dir.Path);
         options.CheckpointTopic = "ti-checkpoints";
-        // Manifests whose chunks never arrived, on the partition the writer maps each to.
+        // Manifests whose chunks never arrived, on the partition the writer maps each to (keys of
+        // the layout before per-writer keys, which are still read).
         var manifests = Enumerable.Range(0, MockCluster.Partitions)
-            .Select(p => TopicCheckpointCodec.Encode(new PartitionCheckpoint { EventsTopic = options.EventsTopic, Partition = p, EventsOffset = 10 }, new byte[10], 1, 0)[^1]);
+            .Select(p => TopicCheckpointCodec.Encode(new PartitionCheckpoint { EventsTopic = options.EventsTopic, Partition = p, EventsOffset = 10 }, new byte[10], 1, 0, writer: "")[^1]);
         using (var producer = new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(options)).Build())
         {
             foreach (var (record, p) in manifests.Select((r, p) => (r, p)))

@@ -1,6 +1,7 @@
 using System.Buffers.Binary;
 using System.Globalization;
 using System.IO.Hashing;
+using System.Security.Cryptography;
 using System.Text.Json;
 
 namespace Driftline.Kafka.Checkpoints;
@@ -8,17 +9,26 @@ namespace Driftline.Kafka.Checkpoints;
 /// <summary>
 /// How a checkpoint is laid out on the compacted checkpoint topic. Its payload (the same JSON
 /// as the file) is cut into chunks of at most <see cref="ChunkBytes"/>, because a model
-/// snapshot runs to megabytes and Kafka refuses records over about 1 MB by default. Each
-/// chunk is keyed <c>&lt;events-topic&gt;/&lt;partition&gt;/&lt;slot&gt;/&lt;index&gt;</c>
+/// snapshot runs to megabytes and Kafka refuses records over about 1 MB by default. Every
+/// writer (one per worker start, <see cref="NewWriterId"/>) has keys of its own, so two owners
+/// of one partition at once never write the same key: each chunk is keyed
+/// <c>&lt;events-topic&gt;/&lt;partition&gt;/&lt;writer&gt;/&lt;slot&gt;/&lt;index&gt;</c>
 /// and starts with a <see cref="HeaderBytes"/>-byte header; the manifest, keyed
-/// <c>&lt;events-topic&gt;/&lt;partition&gt;</c>, is written last (see <see cref="CheckpointManifest"/>).
+/// <c>&lt;events-topic&gt;/&lt;partition&gt;/&lt;writer&gt;</c>, is written last (see
+/// <see cref="CheckpointManifest"/>). Each writer counts its own generations and alternates
+/// its own two slots; a reader restores the manifest that is ahead (see
+/// <see cref="TopicCheckpointAssembler.Manifests"/>).
 /// </summary>
 /// <remarks>
-/// Chunk header, little-endian: the bytes <c>DLCK</c>, layout version (1), slot, two zero
-/// bytes, generation (int64), index (int32), chunk count (int32), payload length (int64),
-/// payload XxHash64 (uint64). A new checkpoint with fewer chunks than the last one in its
-/// slot leaves that one's higher chunks behind: their generation does not match the manifest,
-/// so readers skip them, and the writer deletes them with tombstones when it knows of them.
+/// Builds before per-writer keys wrote <c>&lt;events-topic&gt;/&lt;partition&gt;</c> and
+/// <c>&lt;events-topic&gt;/&lt;partition&gt;/&lt;slot&gt;/&lt;index&gt;</c>; those keys are
+/// still read, as the writer <c>""</c>, so an upgrade restores them, and deleted like any
+/// other writer's after the next owner's first write. Chunk header, little-endian: the bytes
+/// <c>DLCK</c>, layout version (1), slot, two zero bytes, generation (int64), index (int32),
+/// chunk count (int32), payload length (int64), payload XxHash64 (uint64). A new checkpoint
+/// with fewer chunks than the last one in its slot leaves that one's higher chunks behind:
+/// their generation does not match the manifest, so readers skip them, and the writer deletes
+/// them with tombstones when it knows of them.
 /// </remarks>
 internal static class TopicCheckpointCodec
 {
@@ -32,25 +42,47 @@ internal static class TopicCheckpointCodec
 
     private static ReadOnlySpan<byte> Magic => "DLCK"u8;
 
-    /// <summary>Key of a partition's manifest.</summary>
-    public static string ManifestKey(string eventsTopic, int partition) =>
-        string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}");
+    /// <summary>Longest writer id a reader takes.</summary>
+    public const int MaxWriterLength = 32;
 
-    /// <summary>Key of one chunk.</summary>
-    public static string ChunkKey(string eventsTopic, int partition, int slot, int index) =>
-        string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}/{slot}/{index}");
+    /// <summary>
+    /// A writer id for one worker start: 8 random lowercase hex digits. Two writers of one
+    /// partition at once share an id with a chance of 1 in 2^32.
+    /// </summary>
+    public static string NewWriterId() => Convert.ToHexStringLower(RandomNumberGenerator.GetBytes(4));
+
+    /// <summary>True for a writer id this layout reads: 1 to <see cref="MaxWriterLength"/> lowercase hex digits.</summary>
+    public static bool IsWriterId(ReadOnlySpan<char> text) =>
+        text.Length is > 0 and <= MaxWriterLength && !text.ContainsAnyExcept("0123456789abcdef");
+
+    /// <summary>Key of <paramref name="writer"/>'s manifest of a partition; the writer <c>""</c> is the layout before per-writer keys.</summary>
+    public static string ManifestKey(string eventsTopic, int partition, string writer) => writer.Length == 0
+        ? string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}")
+        : string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}/{writer}");
+
+    /// <summary>Key of one chunk of <paramref name="writer"/>; the writer <c>""</c> is the layout before per-writer keys.</summary>
+    public static string ChunkKey(string eventsTopic, int partition, string writer, int slot, int index) => writer.Length == 0
+        ? string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}/{slot}/{index}")
+        : string.Create(CultureInfo.InvariantCulture, $"{eventsTopic}/{partition}/{writer}/{slot}/{index}");
 
     /// <summary>The hash written in headers and manifests, 16 hex digits.</summary>
     public static string HashText(ulong hash) => hash.ToString("x16", CultureInfo.InvariantCulture);
 
     /// <summary>
-    /// The records of one checkpoint in the order they must be written: the chunks, then the
-    /// manifest. An empty payload still gets one (empty) chunk, so every manifest names at least one.
+    /// The records of one checkpoint of <paramref name="writer"/> in the order they must be
+    /// written: the chunks, then the manifest. An empty payload still gets one (empty) chunk, so
+    /// every manifest names at least one. The writer <c>""</c> gives the keys of the layout
+    /// before per-writer keys (the manifest and chunks themselves did not change).
     /// </summary>
-    public static List<CheckpointRecord> Encode(PartitionCheckpoint checkpoint, byte[] payload, long generation, int slot, int chunkBytes = ChunkBytes)
+    public static List<CheckpointRecord> Encode(PartitionCheckpoint checkpoint, byte[] payload, long generation, int slot, string writer, int chunkBytes = ChunkBytes)
     {
         ArgumentNullException.ThrowIfNull(checkpoint);
         ArgumentNullException.ThrowIfNull(payload);
+        ArgumentNullException.ThrowIfNull(writer);
+        if (writer.Length > 0 && !IsWriterId(writer))
+        {
+            throw new ArgumentException($"a writer id is 1 to {MaxWriterLength} lowercase hex digits, not '{writer}'", nameof(writer));
+        }
         ArgumentOutOfRangeException.ThrowIfLessThan(chunkBytes, 1);
         if (slot is not (0 or 1))
         {
@@ -74,7 +106,7 @@ internal static class TopicCheckpointCodec
             BinaryPrimitives.WriteInt64LittleEndian(header[24..], payload.LongLength);
             BinaryPrimitives.WriteUInt64LittleEndian(header[32..], hash);
             payload.AsSpan(start, length).CopyTo(value.AsSpan(HeaderBytes));
-            records.Add(new(ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, slot, i), value));
+            records.Add(new(ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, writer, slot, i), value));
         }
         var manifest = new CheckpointManifest
         {
@@ -88,8 +120,9 @@ internal static class TopicCheckpointCodec
             EventsOffset = checkpoint.EventsOffset,
             LabelsOffset = checkpoint.LabelsOffset,
             WrittenAt = checkpoint.WrittenAt,
+            Writer = writer,
         };
-        records.Add(new(ManifestKey(checkpoint.EventsTopic, checkpoint.Partition), JsonSerializer.SerializeToUtf8Bytes(manifest, ManifestJsonContext.Default.CheckpointManifest)));
+        records.Add(new(ManifestKey(checkpoint.EventsTopic, checkpoint.Partition, writer), JsonSerializer.SerializeToUtf8Bytes(manifest, ManifestJsonContext.Default.CheckpointManifest)));
         return records;
     }
 

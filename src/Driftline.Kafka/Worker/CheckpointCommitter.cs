@@ -24,8 +24,6 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
     private List<TopicPartitionOffset>? _toCommit;
     // Partitions of the write in flight whose checkpoint another owner's newer one kept out (writer thread, then FinishWrite).
     private readonly HashSet<int> _refused = [];
-    // Partitions another owner has written: what this worker knows of their topic copies is out of date (writer thread only).
-    private readonly HashSet<int> _stale = [];
     private DateTime _writtenAt;
 
     /// <summary>When the last checkpoint was cut (UTC).</summary>
@@ -111,37 +109,20 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
             // Serialised once, into the buffer every checkpoint reuses: the file and the topic carry the same bytes.
             CheckpointStore.Serialize(checkpoint, _json);
             var json = _json.WrittenMemory;
-            // The topic's copy is written under the file's lock, so with a shared folder it never goes back either.
-            var kept = store.Write(checkpoint, json, topic is null ? null : () => WriteTopic(topic, checkpoint, json.ToArray()));
+            // The topic's copy is written under the file's lock, so with a shared folder it never
+            // goes back either. Its keys are this worker's own, so another owner's writes never
+            // make what this one remembers of them out of date.
+            var kept = store.Write(checkpoint, json, topic is null ? null : () => topic.Write(checkpoint, json.ToArray()));
             if (kept is { } newer)
             {
                 // Two owners at once: this member, or the other, has not yet noticed the group moved on.
                 Log.Warning("Partition {Partition}: another owner wrote a newer checkpoint (events offset {NewerEvents}, labels offset {NewerLabels}) than this one (events offset {EventsOffset}, labels offset {LabelsOffset}); keeping it, and committing nothing for the partition",
                     checkpoint.Partition, newer.EventsOffset, newer.LabelsOffset, checkpoint.EventsOffset, checkpoint.LabelsOffset);
                 _refused.Add(checkpoint.Partition);
-                _stale.Add(checkpoint.Partition);
             }
         }
         stats.LastSnapshotMs = snapshots;
         stats.LastWriteMs = clock.Elapsed.TotalMilliseconds;
-    }
-
-    /// <summary>
-    /// The topic's copy, under the partition's file lock. After another owner wrote the
-    /// partition, the generation and slot this worker remembers are out of date (writing the slot
-    /// the newest manifest names would break it until the new manifest lands), so the topic is
-    /// read again for the partition first.
-    /// </summary>
-    private void WriteTopic(TopicCheckpointWriter topic, PartitionCheckpoint checkpoint, byte[] json)
-    {
-        int partition = checkpoint.Partition;
-        if (_stale.Contains(partition))
-        {
-            var assembler = TopicCheckpointReader.Read(options, topic, [partition]);
-            topic.Remember(partition, assembler.Manifest(partition), assembler.SlotExtent(partition, 0), assembler.SlotExtent(partition, 1));
-            _stale.Remove(partition);
-        }
-        topic.Write(checkpoint, json);
     }
 
     /// <summary>Waits for the checkpoint write in flight, if any, then commits the offsets it makes safe.</summary>

@@ -38,32 +38,68 @@ internal sealed class CheckpointLoader(KafkaOptions options, CheckpointStore sto
         return loaded;
     }
 
+    /// <remarks>
+    /// Every writer's manifest of the partition is a candidate, the one ahead first. When one
+    /// ahead of the file is incomplete or damaged, the next one behind it is tried, then the
+    /// file, with a warning: restore seeks the events and the labels to the restored
+    /// checkpoint's own offsets (the committed offset serves only a partition without one), so
+    /// an older complete checkpoint predicts the records after it again (at least once, as
+    /// after a restart) and applies each label once. A damaged manifest ahead is what a new
+    /// owner's deletion of another writer's keys leaves when that writer, a zombie, wrote again
+    /// meanwhile; stopping there would stop the partition for a race the data survives. Only
+    /// when no complete checkpoint is left does the worker stop: resuming from nothing would
+    /// start fresh models at the committed offset with the labels from the start.
+    /// </remarks>
     private PartitionCheckpoint? Newer(TopicCheckpointAssembler assembler, TopicCheckpointWriter topic, int partition, PartitionCheckpoint? file)
     {
-        string key = TopicCheckpointCodec.ManifestKey(options.EventsTopic, partition);
+        List<CheckpointManifest> manifests;
         try
         {
-            var manifest = assembler.Manifest(partition);
-            topic.Remember(partition, manifest, assembler.SlotExtent(partition, 0), assembler.SlotExtent(partition, 1));
-            if (manifest is null || (file is not null && (file.EventsOffset, file.LabelsOffset).CompareTo((manifest.EventsOffset, manifest.LabelsOffset)) >= 0))
-            {
-                return file;
-            }
-            string source = $"the checkpoint of {options.EventsTopic} partition {partition} on topic '{topic.Topic}' (generation {manifest.Generation})";
-            using var json = new MemoryStream(assembler.Assemble(manifest), writable: false);
-            var checkpoint = CheckpointStore.Parse(json, source);
-            if (checkpoint.EventsTopic != options.EventsTopic || checkpoint.Partition != partition
-                || checkpoint.EventsOffset != manifest.EventsOffset || checkpoint.LabelsOffset != manifest.LabelsOffset)
-            {
-                throw new InvalidDataException($"{source} does not match its manifest");
-            }
-            Log.Information("Partition {Partition}: restoring the checkpoint topic's copy (generation {Generation}, {Chunks} chunks, events offset {EventsOffset}); the folder's is {FileOffset}",
-                partition, manifest.Generation, manifest.Chunks, manifest.EventsOffset, file is null ? "missing" : $"at events offset {file.EventsOffset}");
-            return checkpoint;
+            manifests = assembler.Manifests(partition);
+            topic.Remember(partition, assembler);
         }
         catch (InvalidDataException ex)
         {
-            throw new KafkaWorkerException($"{ex.Message}; delete it (a tombstone for key '{key}' on topic '{topic.Topic}') and move any file for the partition aside to start it with fresh models", ex);
+            // An unreadable manifest has no positions to compare: it may be the one ahead.
+            throw new KafkaWorkerException($"{ex.Message}; delete it (a tombstone for that key on topic '{topic.Topic}') and move any file for the partition aside to start it with fresh models", ex);
         }
+        (InvalidDataException Error, string Key)? skipped = null;
+        foreach (var manifest in manifests)
+        {
+            if (file is not null && (file.EventsOffset, file.LabelsOffset).CompareTo((manifest.EventsOffset, manifest.LabelsOffset)) >= 0)
+            {
+                break;
+            }
+            try
+            {
+                var checkpoint = Restore(assembler, topic, partition, manifest);
+                Log.Information("Partition {Partition}: restoring the checkpoint topic's copy (writer {Writer}, generation {Generation}, {Chunks} chunks, events offset {EventsOffset}); the folder's is {FileOffset}",
+                    partition, manifest.Writer.Length == 0 ? "of the layout before per-writer keys" : manifest.Writer, manifest.Generation, manifest.Chunks, manifest.EventsOffset, file is null ? "missing" : $"at events offset {file.EventsOffset}");
+                return checkpoint;
+            }
+            catch (InvalidDataException ex)
+            {
+                Log.Warning("Partition {Partition}: {Problem}; trying the next checkpoint behind it (its state matches its offsets: records after it are predicted again, no label is applied twice)", partition, ex.Message);
+                skipped ??= (ex, TopicCheckpointCodec.ManifestKey(options.EventsTopic, partition, manifest.Writer));
+            }
+        }
+        if (file is null && skipped is { } failed)
+        {
+            throw new KafkaWorkerException($"{failed.Error.Message}, and no complete checkpoint of the partition is behind it; delete it (a tombstone for key '{failed.Key}' on topic '{topic.Topic}') and move any file for the partition aside to start it with fresh models", failed.Error);
+        }
+        return file;
+    }
+
+    private PartitionCheckpoint Restore(TopicCheckpointAssembler assembler, TopicCheckpointWriter topic, int partition, CheckpointManifest manifest)
+    {
+        string source = $"the checkpoint of {options.EventsTopic} partition {partition} on topic '{topic.Topic}' (writer '{manifest.Writer}', generation {manifest.Generation})";
+        using var json = new MemoryStream(assembler.Assemble(manifest), writable: false);
+        var checkpoint = CheckpointStore.Parse(json, source);
+        if (checkpoint.EventsTopic != options.EventsTopic || checkpoint.Partition != partition
+            || checkpoint.EventsOffset != manifest.EventsOffset || checkpoint.LabelsOffset != manifest.LabelsOffset)
+        {
+            throw new InvalidDataException($"{source} does not match its manifest");
+        }
+        return checkpoint;
     }
 }

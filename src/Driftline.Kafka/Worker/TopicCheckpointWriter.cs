@@ -1,13 +1,16 @@
 using System.Text;
 using Confluent.Kafka;
 using Driftline.Kafka.Checkpoints;
+using Serilog;
 
 namespace Driftline.Kafka.Worker;
 
 /// <summary>
 /// Writes checkpoints to the compacted checkpoint topic and waits until the broker has
 /// acknowledged them: the chunks (and tombstones for leftovers of a longer checkpoint in the
-/// same slot) first, then, once they are all acknowledged, the manifest. Every record of one
+/// same slot) first, then, once they are all acknowledged, the manifest. All under keys of
+/// this writer's own (<see cref="Id"/>, see <see cref="TopicCheckpointCodec"/>), so another
+/// owner of the same partition at the same time never overwrites them. Every record of one
 /// events partition goes to checkpoint-topic partition <c>events partition mod partition
 /// count</c>, so the manifest always follows its chunks in one log. One write at a time;
 /// <see cref="Remember"/> may run beside it (for other partitions).
@@ -18,17 +21,27 @@ internal sealed class TopicCheckpointWriter
 
     private readonly IProducer<byte[]?, byte[]> _producer;
     private readonly Lock _gate = new();
-    private readonly Dictionary<int, (long Generation, int Slot, int Extent0, int Extent1)> _positions = [];
+    private readonly Dictionary<int, Position> _positions = [];
 
-    /// <summary>Writes through <paramref name="producer"/> to <paramref name="topic"/>, which has <paramref name="partitions"/> partitions.</summary>
-    public TopicCheckpointWriter(IProducer<byte[]?, byte[]> producer, string topic, int partitions)
+    /// <summary>
+    /// Writes through <paramref name="producer"/> to <paramref name="topic"/>, which has
+    /// <paramref name="partitions"/> partitions, as writer <paramref name="id"/> (a new random
+    /// one when null: one per worker start).
+    /// </summary>
+    public TopicCheckpointWriter(IProducer<byte[]?, byte[]> producer, string topic, int partitions, string? id = null)
     {
         ArgumentNullException.ThrowIfNull(producer);
         ArgumentException.ThrowIfNullOrEmpty(topic);
         ArgumentOutOfRangeException.ThrowIfLessThan(partitions, 1);
+        id ??= TopicCheckpointCodec.NewWriterId();
+        if (!TopicCheckpointCodec.IsWriterId(id))
+        {
+            throw new ArgumentException($"a writer id is 1 to {TopicCheckpointCodec.MaxWriterLength} lowercase hex digits, not '{id}'", nameof(id));
+        }
         _producer = producer;
         Topic = topic;
         Partitions = partitions;
+        Id = id;
     }
 
     /// <summary>The checkpoint topic.</summary>
@@ -37,54 +50,80 @@ internal sealed class TopicCheckpointWriter
     /// <summary>Its partition count, read at start.</summary>
     public int Partitions { get; }
 
+    /// <summary>This writer's id, the part of its keys after the partition.</summary>
+    public string Id { get; }
+
     /// <summary>The checkpoint-topic partition that holds <paramref name="eventsPartition"/>'s checkpoints.</summary>
     public int PartitionOf(int eventsPartition) => eventsPartition % Partitions;
 
     /// <summary>
-    /// Records what the topic holds for a partition just assigned: its manifest (null when
-    /// none) and how many chunk keys each slot holds, so the next write picks the other slot,
-    /// the next generation and the leftovers to delete.
+    /// Records what the topic holds for a partition just assigned (<paramref name="seen"/>, as
+    /// read): this writer's own manifest and chunk keys, if it wrote the partition before, so
+    /// the next write picks its other slot, its next generation and the leftovers to delete;
+    /// and every other writer's keys of the partition, which the next write deletes once it is
+    /// acknowledged (they are all behind it: the partition resumes from the one ahead of them).
+    /// Throws <see cref="InvalidDataException"/> when this writer's own manifest is unreadable.
     /// </summary>
-    public void Remember(int partition, CheckpointManifest? manifest, int extent0, int extent1)
+    public void Remember(int partition, TopicCheckpointAssembler seen)
     {
+        ArgumentNullException.ThrowIfNull(seen);
+        var own = seen.Manifest(partition, Id);
+        var others = seen.KeysOfOthers(partition, Id);
         lock (_gate)
         {
-            // With no manifest, slot 1 counts as current so the first write fills slot 0.
-            _positions[partition] = (manifest?.Generation ?? 0, manifest?.Slot ?? 1, extent0, extent1);
+            // With no manifest of its own, slot 1 counts as current so the first write fills slot 0.
+            _positions[partition] = new(own?.Generation ?? 0, own?.Slot ?? 1, seen.SlotExtent(partition, Id, 0), seen.SlotExtent(partition, Id, 1), others.Manifests, others.Chunks);
         }
     }
 
     /// <summary>
     /// Writes <paramref name="checkpoint"/> (<paramref name="payload"/> is its JSON) and returns
-    /// once the broker has acknowledged every record. Throws <see cref="KafkaWorkerException"/>
-    /// on a failed delivery or after a minute without acknowledgement: the offset it covers
-    /// must not be committed then.
+    /// once the broker has acknowledged every record, and, on the first write after
+    /// <see cref="Remember"/>, the tombstones for the other writers' keys it saw. Throws
+    /// <see cref="KafkaWorkerException"/> on a failed delivery or after a minute without
+    /// acknowledgement: the offset it covers must not be committed then.
     /// </summary>
     public void Write(PartitionCheckpoint checkpoint, byte[] payload)
     {
         ArgumentNullException.ThrowIfNull(checkpoint);
-        (long Generation, int Slot, int Extent0, int Extent1) last;
+        Position last;
         lock (_gate)
         {
-            last = _positions.GetValueOrDefault(checkpoint.Partition, (0, 1, 0, 0));
+            last = _positions.GetValueOrDefault(checkpoint.Partition, Position.None);
         }
         int slot = last.Slot == 0 ? 1 : 0;
-        var records = TopicCheckpointCodec.Encode(checkpoint, payload, last.Generation + 1, slot);
+        var records = TopicCheckpointCodec.Encode(checkpoint, payload, last.Generation + 1, slot, Id);
         int chunks = records.Count - 1;
         int leftovers = slot == 0 ? last.Extent0 : last.Extent1;
         var first = records.Take(chunks).ToList();
         for (int i = chunks; i < leftovers; i++)
         {
-            first.Add(new(TopicCheckpointCodec.ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, slot, i), null));
+            first.Add(new(TopicCheckpointCodec.ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, Id, slot, i), null));
         }
         var partition = new TopicPartition(Topic, PartitionOf(checkpoint.Partition));
         Send(partition, first);
         // Only now is the new generation whole on the broker; the manifest makes it the current one.
         Send(partition, [records[^1]]);
+        if (last.OtherManifests.Count + last.OtherChunks.Count > 0)
+        {
+            // Manifests before chunks: a reader never finds one of them naming chunks already deleted.
+            foreach (var keys in new[] { last.OtherManifests, last.OtherChunks }.Where(k => k.Count > 0))
+            {
+                Send(partition, [.. keys.Select(k => new CheckpointRecord(k, null))]);
+            }
+            Log.Information("Partition {Partition}: deleted the {Manifests} manifests and {Chunks} chunks of other writers found at assignment from checkpoint topic {CheckpointTopic} (this writer is {Writer})",
+                checkpoint.Partition, last.OtherManifests.Count, last.OtherChunks.Count, Topic, Id);
+        }
         lock (_gate)
         {
-            _positions[checkpoint.Partition] = (last.Generation + 1, slot, slot == 0 ? chunks : last.Extent0, slot == 1 ? chunks : last.Extent1);
+            _positions[checkpoint.Partition] = new(last.Generation + 1, slot, slot == 0 ? chunks : last.Extent0, slot == 1 ? chunks : last.Extent1, [], []);
         }
+    }
+
+    /// <summary>What the writer knows of one partition's keys on the topic.</summary>
+    private readonly record struct Position(long Generation, int Slot, int Extent0, int Extent1, IReadOnlyList<string> OtherManifests, IReadOnlyList<string> OtherChunks)
+    {
+        public static Position None => new(0, 1, 0, 0, [], []);
     }
 
     private void Send(TopicPartition partition, List<CheckpointRecord> records)
