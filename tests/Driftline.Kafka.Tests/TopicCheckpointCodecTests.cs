@@ -107,6 +107,50 @@ public sealed class TopicCheckpointCodecTests
         Assert.Contains("topic 'checkpoints'", error.Message, StringComparison.Ordinal);
     }
 
+    [Fact]
+    public void Manifests_TwoWritersAndTheOldLayout_TheOneAheadFirstEachWithItsOwnChunks()
+    {
+        // Two owners at once and a checkpoint of a build before per-writer keys, all one
+        // partition's, with the same generation and slot: no key is shared, so each assembles.
+        var records = new List<CheckpointRecord>();
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 10, labelsOffset: 5), Payload(2_500, seed: 1), 2, slot: 1, "a1", chunkBytes: 1_000));
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 10, labelsOffset: 7), Payload(1_500, seed: 2), 2, slot: 1, "b2", chunkBytes: 1_000));
+        records.AddRange(TopicCheckpointCodec.Encode(Checkpoint(1, 3), Payload(3_500, seed: 3), 2, slot: 1, writer: "", chunkBytes: 1_000));
+        // Keys of no layout: not a hex writer id, an empty one.
+        records.Add(new("orders/1/Zz", [1]));
+        records.Add(new("orders/1//1/0", [1]));
+
+        var assembler = Feed(records, partition: 1);
+        var manifests = assembler.Manifests(1);
+
+        Assert.Equal(["b2", "a1", ""], manifests.Select(m => m.Writer));
+        Assert.Equal(Payload(1_500, seed: 2), assembler.Assemble(manifests[0]));
+        Assert.Equal(Payload(2_500, seed: 1), assembler.Assemble(manifests[1]));
+        Assert.Equal(Payload(3_500, seed: 3), assembler.Assemble(manifests[2]));
+        Assert.Equal("b2", assembler.Manifest(1)!.Writer);
+        Assert.Equal(3, assembler.SlotExtent(1, "a1", 1));
+        Assert.Equal(2, assembler.SlotExtent(1, "b2", 1));
+        Assert.Equal(4, assembler.SlotExtent(1, "", 1));
+        Assert.Equal(0, assembler.SlotExtent(1, "b2", 0));
+        var (otherManifests, otherChunks) = assembler.KeysOfOthers(1, "b2");
+        Assert.Equal(["orders/1", "orders/1/a1"], otherManifests);
+        Assert.Equal(["orders/1/1/0", "orders/1/1/1", "orders/1/1/2", "orders/1/1/3", "orders/1/a1/1/0", "orders/1/a1/1/1", "orders/1/a1/1/2"], otherChunks);
+    }
+
+    [Fact]
+    public void Encode_OldLayoutWriter_GivesTheKeysAndManifestFieldsOfTheLayoutBefore()
+    {
+        // The layout before per-writer keys (Kafka README before issue 15): manifest
+        // <topic>/<partition>, chunks <topic>/<partition>/<slot>/<index>, and a manifest of
+        // these twelve fields only, so records of either layout are told apart by their keys.
+        var records = TopicCheckpointCodec.Encode(Checkpoint(2, 100), Payload(1_500, seed: 1), 4, slot: 1, writer: "", chunkBytes: 1_000);
+
+        Assert.Equal(["orders/2/1/0", "orders/2/1/1", "orders/2"], records.Select(r => r.Key));
+        using var manifest = System.Text.Json.JsonDocument.Parse(records[^1].Value);
+        Assert.Equal(["format", "format_version", "events_topic", "partition", "generation", "slot", "chunks", "length", "hash", "events_offset", "labels_offset", "written_at"],
+            manifest.RootElement.EnumerateObject().Select(p => p.Name));
+    }
+
     private static TopicCheckpointAssembler Feed(IEnumerable<CheckpointRecord> records, int partition = 2)
     {
         var assembler = new TopicCheckpointAssembler(Topic, [partition], "checkpoints");
@@ -117,8 +161,8 @@ public sealed class TopicCheckpointCodecTests
         return assembler;
     }
 
-    private static PartitionCheckpoint Checkpoint(int partition, long eventsOffset) =>
-        new() { EventsTopic = Topic, Partition = partition, EventsOffset = eventsOffset, WrittenAt = new DateTime(2026, 3, 2, 10, 0, 0, DateTimeKind.Utc) };
+    private static PartitionCheckpoint Checkpoint(int partition, long eventsOffset, long labelsOffset = 0) =>
+        new() { EventsTopic = Topic, Partition = partition, EventsOffset = eventsOffset, LabelsOffset = labelsOffset, WrittenAt = new DateTime(2026, 3, 2, 10, 0, 0, DateTimeKind.Utc) };
 
     private static byte[] Payload(int length, int seed)
     {

@@ -62,6 +62,91 @@ public sealed class TopicCheckpointFenceTests
         Assert.Equal((300, 300), Restored(options, producer));
     }
 
+    [Fact]
+    public void Write_NewOwnersFirstWrite_DeletesTheOtherWritersKeysAndAZombieWritesItsOwnAgain()
+    {
+        using var cluster = new MockCluster();
+        var options = Options(cluster, "fence-clean");
+        using var producer = Producer(options);
+        Seed(options, producer, eventsOffset: 100);
+        using var dirA = new TempDir();
+        using var dirB = new TempDir();
+        using var dirC = new TempDir();
+        var a = Owner(options, producer, dirA);
+        var b = Owner(options, producer, dirB);
+        a.Loader.Load([Partition]);
+        b.Loader.Load([Partition]);
+        Write(a, eventsOffset: 200, seed: 1);
+        Write(a, eventsOffset: 210, seed: 2);
+        Write(b, eventsOffset: 150, seed: 3);
+        // A's first write deleted the first owner's keys, which both saw; B's and A's are left.
+        Assert.Equal([a.Writer.Id, b.Writer.Id], Seen(options, producer).Manifests(Partition).Select(m => m.Writer));
+
+        var c = Owner(options, producer, dirC);
+        Assert.Equal(210, c.Loader.Load([Partition])[Partition]!.EventsOffset);
+        Write(c, eventsOffset: 220, seed: 4);
+
+        var seen = Seen(options, producer);
+        Assert.Equal([c.Writer.Id], seen.Manifests(Partition).Select(m => m.Writer));
+        Assert.Equal((0, 0), (seen.KeysOfOthers(Partition, c.Writer.Id).Manifests.Count, seen.KeysOfOthers(Partition, c.Writer.Id).Chunks.Count));
+
+        // B has not noticed yet: its next write puts back complete keys of its own.
+        Write(b, eventsOffset: 230, seed: 5);
+        seen = Seen(options, producer);
+        var zombie = seen.Manifest(Partition, b.Writer.Id)!;
+        Assert.Equal(230, zombie.EventsOffset);
+        Assert.Equal(CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 230, seed: 5)).Length, seen.Assemble(zombie).Length);
+        Assert.Equal((230, 230), Restored(options, producer));
+        // The next new owner deletes B's keys and C's.
+        using var dirD = new TempDir();
+        var d = Owner(options, producer, dirD);
+        d.Loader.Load([Partition]);
+        Write(d, eventsOffset: 240, seed: 6);
+        Assert.Equal([d.Writer.Id], Seen(options, producer).Manifests(Partition).Select(m => m.Writer));
+    }
+
+    [Fact]
+    public void Load_TopicOfTheOldLayout_RestoresItAndTheFirstWriteDeletesIt()
+    {
+        // An upgrade: the topic holds checkpoints of a build before per-writer keys (two
+        // generations, so both slots). They must restore, and go once the new owner has written.
+        using var cluster = new MockCluster();
+        var options = Options(cluster, "fence-old");
+        using var producer = Producer(options);
+        Produce(options, producer, TopicCheckpointCodec.Encode(Checkpoint(options.EventsTopic, 90, seed: 7), CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 90, seed: 7)), 1, slot: 0, writer: ""));
+        Produce(options, producer, TopicCheckpointCodec.Encode(Checkpoint(options.EventsTopic, 120, seed: 8), CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 120, seed: 8)), 2, slot: 1, writer: ""));
+        using var dir = new TempDir();
+        var owner = Owner(options, producer, dir);
+
+        var restored = owner.Loader.Load([Partition])[Partition]!;
+
+        Assert.Equal(120, restored.EventsOffset);
+        Assert.Equal(CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 120, seed: 8)), CheckpointStore.Serialize(restored));
+        Write(owner, eventsOffset: 130, seed: 9);
+        var seen = Seen(options, producer);
+        Assert.Equal([owner.Writer.Id], seen.Manifests(Partition).Select(m => m.Writer));
+        Assert.Empty(seen.KeysOfOthers(Partition, owner.Writer.Id).Chunks);
+    }
+
+    [Fact]
+    public void Load_TheManifestAheadIsIncomplete_RestoresTheNextCompleteOneWithAWarning()
+    {
+        // What a new owner's deletion of a zombie's keys can leave when the zombie wrote again
+        // meanwhile: a manifest ahead whose chunks are gone. The checkpoint behind it is whole.
+        using var log = new LogCapture();
+        using var cluster = new MockCluster();
+        var options = Options(cluster, "fence-hole");
+        using var producer = Producer(options);
+        Seed(options, producer, eventsOffset: 100);
+        var ahead = TopicCheckpointCodec.Encode(Checkpoint(options.EventsTopic, 500, seed: 1), CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 500, seed: 1)), 3, slot: 0, writer: "bad");
+        ahead.RemoveAt(1);
+        Produce(options, producer, ahead);
+
+        Assert.Equal((100, 100), Restored(options, producer));
+        Assert.Contains(log.Messages(Serilog.Events.LogEventLevel.Warning), m => m.StartsWith($"Partition {Partition}: the checkpoint of {options.EventsTopic} partition {Partition}", StringComparison.Ordinal)
+            && m.Contains("writer 'bad', generation 3) is incomplete: chunk 1 of 3 is missing; trying the next checkpoint behind it", StringComparison.Ordinal));
+    }
+
     private sealed record OwnerOf(TopicCheckpointWriter Writer, CheckpointLoader Loader, CheckpointStore Store);
 
     private static OwnerOf Owner(KafkaOptions options, IProducer<byte[]?, byte[]> producer, TempDir dir)
@@ -95,6 +180,20 @@ public sealed class TopicCheckpointFenceTests
         return (restored.EventsOffset, restored.LabelsOffset);
     }
 
+    /// <summary>What the topic holds for the partition, read as a new owner reads it.</summary>
+    private static TopicCheckpointAssembler Seen(KafkaOptions options, IProducer<byte[]?, byte[]> producer) =>
+        TopicCheckpointReader.Read(options, new TopicCheckpointWriter(producer, options.CheckpointTopic!, MockCluster.Partitions), [Partition]);
+
+    /// <summary>Sends records as they are, in order, to the topic partition the writer uses for <see cref="Partition"/>.</summary>
+    private static void Produce(KafkaOptions options, IProducer<byte[]?, byte[]> producer, List<CheckpointRecord> records)
+    {
+        var target = new TopicPartition(options.CheckpointTopic, Partition % MockCluster.Partitions);
+        foreach (var record in records)
+        {
+            producer.ProduceAsync(target, new Message<byte[]?, byte[]> { Key = System.Text.Encoding.UTF8.GetBytes(record.Key), Value = record.Value! }).GetAwaiter().GetResult();
+        }
+    }
+
     private static IProducer<byte[]?, byte[]> Producer(KafkaOptions options) =>
         new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(options)).SetLogHandler((_, _) => { }).Build();
 
@@ -120,7 +219,7 @@ public sealed class TopicCheckpointFenceTests
             Partition = Partition,
             EventsOffset = eventsOffset,
             LabelsOffset = eventsOffset,
-            WrittenAt = DateTime.UtcNow,
+            WrittenAt = new DateTime(2026, 12, 3, 12, 0, 0, DateTimeKind.Utc).AddSeconds(eventsOffset),
             Snapshot = new()
             {
                 FeatureNames = Enumerable.Range(0, 40_000).ToDictionary(i => i.ToString("D7", System.Globalization.CultureInfo.InvariantCulture), _ => $"courier=c-{random.Next(1_000_000):D6}"),

@@ -79,7 +79,7 @@ internal sealed class CheckpointLoader(KafkaOptions options, CheckpointStore sto
             }
             catch (InvalidDataException ex)
             {
-                Log.Warning("Partition {Partition}: {Problem}; trying the next checkpoint behind it (its state matches its offsets: records after it are predicted again, no label is applied twice)", partition, ex.Message);
+                Log.Warning("Partition {Partition}: {Problem:l}; trying the next checkpoint behind it (its state matches its offsets: records after it are predicted again, no label is applied twice)", partition, ex.Message);
                 skipped ??= (ex, TopicCheckpointCodec.ManifestKey(options.EventsTopic, partition, manifest.Writer));
             }
         }
