@@ -21,21 +21,18 @@ public sealed class TopicCheckpointFenceTests
     public void Load_AnotherOwnersWriteLandsBetweenChunksAndManifest_RestoresTheOneAhead()
     {
         using var cluster = new MockCluster();
-        var options = Options(cluster, "fence-mix");
+        using var seeded = Seeded(cluster, "fence-mix");
+        var (options, other) = (seeded.Options, seeded.Producer);
         using var inner = Producer(options);
-        using var other = Producer(options);
         var (gated, gate) = GatedProducer.Wrap(inner);
-        Seed(options, other, eventsOffset: 100);
-        using var dirA = new TempDir();
-        using var dirB = new TempDir();
-        var a = Owner(options, gated, dirA);
-        var b = Owner(options, other, dirB);
-        Assert.Equal(100, a.Loader.Load([Partition])[Partition]!.EventsOffset);
-        Assert.Equal(100, b.Loader.Load([Partition])[Partition]!.EventsOffset);
+        using var a = Owner(options, gated);
+        using var b = Owner(options, other);
+        Assert.Equal(100, a.Load()!.EventsOffset);
+        Assert.Equal(100, b.Load()!.EventsOffset);
 
         // The lagging owner's whole write goes out after the other's chunks, before its manifest.
-        gate.BeforeManifest = () => Write(b, eventsOffset: 150, seed: 2);
-        Write(a, eventsOffset: 200, seed: 1);
+        gate.BeforeManifest = () => b.Write(eventsOffset: 150, seed: 2);
+        a.Write(eventsOffset: 200, seed: 1);
 
         Assert.Equal((200, 200), Restored(options, other));
     }
@@ -44,20 +41,15 @@ public sealed class TopicCheckpointFenceTests
     public void Load_ALaggingOwnerWritesLast_RestoresTheOneAhead()
     {
         using var cluster = new MockCluster();
-        var options = Options(cluster, "fence-late");
-        using var producer = Producer(options);
-        Seed(options, producer, eventsOffset: 100);
-        using var dirA = new TempDir();
-        using var dirB = new TempDir();
-        var a = Owner(options, producer, dirA);
-        var b = Owner(options, producer, dirB);
-        a.Loader.Load([Partition]);
-        b.Loader.Load([Partition]);
+        using var seeded = Seeded(cluster, "fence-late");
+        var (options, producer) = (seeded.Options, seeded.Producer);
+        using var a = Assigned(options, producer);
+        using var b = Assigned(options, producer);
 
-        Write(a, eventsOffset: 200, seed: 1);
-        Write(b, eventsOffset: 150, seed: 2);
-        Write(a, eventsOffset: 300, seed: 3);
-        Write(b, eventsOffset: 160, seed: 4);
+        a.Write(eventsOffset: 200, seed: 1);
+        b.Write(eventsOffset: 150, seed: 2);
+        a.Write(eventsOffset: 300, seed: 3);
+        b.Write(eventsOffset: 160, seed: 4);
 
         Assert.Equal((300, 300), Restored(options, producer));
     }
@@ -66,42 +58,34 @@ public sealed class TopicCheckpointFenceTests
     public void Write_NewOwnersFirstWrite_DeletesTheOtherWritersKeysAndAZombieWritesItsOwnAgain()
     {
         using var cluster = new MockCluster();
-        var options = Options(cluster, "fence-clean");
-        using var producer = Producer(options);
-        Seed(options, producer, eventsOffset: 100);
-        using var dirA = new TempDir();
-        using var dirB = new TempDir();
-        using var dirC = new TempDir();
-        var a = Owner(options, producer, dirA);
-        var b = Owner(options, producer, dirB);
-        a.Loader.Load([Partition]);
-        b.Loader.Load([Partition]);
-        Write(a, eventsOffset: 200, seed: 1);
-        Write(a, eventsOffset: 210, seed: 2);
-        Write(b, eventsOffset: 150, seed: 3);
+        using var seeded = Seeded(cluster, "fence-clean");
+        var (options, producer) = (seeded.Options, seeded.Producer);
+        using var a = Assigned(options, producer);
+        using var b = Assigned(options, producer);
+        a.Write(eventsOffset: 200, seed: 1);
+        a.Write(eventsOffset: 210, seed: 2);
+        b.Write(eventsOffset: 150, seed: 3);
         // A's first write deleted the first owner's keys, which both saw; B's and A's are left.
         Assert.Equal([a.Writer.Id, b.Writer.Id], Seen(options, producer).Manifests(Partition).Select(m => m.Writer));
 
-        var c = Owner(options, producer, dirC);
-        Assert.Equal(210, c.Loader.Load([Partition])[Partition]!.EventsOffset);
-        Write(c, eventsOffset: 220, seed: 4);
+        using var c = Owner(options, producer);
+        Assert.Equal(210, c.Load()!.EventsOffset);
+        c.Write(eventsOffset: 220, seed: 4);
 
         var seen = Seen(options, producer);
         Assert.Equal([c.Writer.Id], seen.Manifests(Partition).Select(m => m.Writer));
         Assert.Equal((0, 0), (seen.KeysOfOthers(Partition, c.Writer.Id).Manifests.Count, seen.KeysOfOthers(Partition, c.Writer.Id).Chunks.Count));
 
         // B has not noticed yet: its next write puts back complete keys of its own.
-        Write(b, eventsOffset: 230, seed: 5);
+        b.Write(eventsOffset: 230, seed: 5);
         seen = Seen(options, producer);
         var zombie = seen.Manifest(Partition, b.Writer.Id)!;
         Assert.Equal(230, zombie.EventsOffset);
         Assert.Equal(CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 230, seed: 5)).Length, seen.Assemble(zombie).Length);
         Assert.Equal((230, 230), Restored(options, producer));
         // The next new owner deletes B's keys and C's.
-        using var dirD = new TempDir();
-        var d = Owner(options, producer, dirD);
-        d.Loader.Load([Partition]);
-        Write(d, eventsOffset: 240, seed: 6);
+        using var d = Assigned(options, producer);
+        d.Write(eventsOffset: 240, seed: 6);
         Assert.Equal([d.Writer.Id], Seen(options, producer).Manifests(Partition).Select(m => m.Writer));
     }
 
@@ -115,14 +99,13 @@ public sealed class TopicCheckpointFenceTests
         using var producer = Producer(options);
         Produce(options, producer, TopicCheckpointCodec.Encode(Checkpoint(options.EventsTopic, 90, seed: 7), CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 90, seed: 7)), 1, slot: 0, writer: ""));
         Produce(options, producer, TopicCheckpointCodec.Encode(Checkpoint(options.EventsTopic, 120, seed: 8), CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 120, seed: 8)), 2, slot: 1, writer: ""));
-        using var dir = new TempDir();
-        var owner = Owner(options, producer, dir);
+        using var owner = Owner(options, producer);
 
-        var restored = owner.Loader.Load([Partition])[Partition]!;
+        var restored = owner.Load()!;
 
         Assert.Equal(120, restored.EventsOffset);
         Assert.Equal(CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 120, seed: 8)), CheckpointStore.Serialize(restored));
-        Write(owner, eventsOffset: 130, seed: 9);
+        owner.Write(eventsOffset: 130, seed: 9);
         var seen = Seen(options, producer);
         Assert.Equal([owner.Writer.Id], seen.Manifests(Partition).Select(m => m.Writer));
         Assert.Empty(seen.KeysOfOthers(Partition, owner.Writer.Id).Chunks);
@@ -135,9 +118,8 @@ public sealed class TopicCheckpointFenceTests
         // meanwhile: a manifest ahead whose chunks are gone. The checkpoint behind it is whole.
         using var log = new LogCapture();
         using var cluster = new MockCluster();
-        var options = Options(cluster, "fence-hole");
-        using var producer = Producer(options);
-        Seed(options, producer, eventsOffset: 100);
+        using var seeded = Seeded(cluster, "fence-hole");
+        var (options, producer) = (seeded.Options, seeded.Producer);
         var ahead = TopicCheckpointCodec.Encode(Checkpoint(options.EventsTopic, 500, seed: 1), CheckpointStore.Serialize(Checkpoint(options.EventsTopic, 500, seed: 1)), 3, slot: 0, writer: "bad");
         ahead.RemoveAt(1);
         Produce(options, producer, ahead);
@@ -147,35 +129,59 @@ public sealed class TopicCheckpointFenceTests
             && m.Contains("writer 'bad', generation 3) is incomplete: chunk 1 of 3 is missing; trying the next checkpoint behind it", StringComparison.Ordinal));
     }
 
-    private sealed record OwnerOf(TopicCheckpointWriter Writer, CheckpointLoader Loader, CheckpointStore Store);
-
-    private static OwnerOf Owner(KafkaOptions options, IProducer<byte[]?, byte[]> producer, TempDir dir)
+    /// <summary>One owner of the partition: a checkpoint-topic writer, and a folder of its own.</summary>
+    private sealed class OwnerOf(KafkaOptions options, IProducer<byte[]?, byte[]> producer) : IDisposable
     {
-        var writer = new TopicCheckpointWriter(producer, options.CheckpointTopic!, MockCluster.Partitions);
-        var store = new CheckpointStore(dir.Path);
-        return new(writer, new CheckpointLoader(options, store, writer), store);
+        private readonly TempDir _dir = new();
+
+        public TopicCheckpointWriter Writer { get; } = new(producer, options.CheckpointTopic!, MockCluster.Partitions);
+
+        private CheckpointStore Store => new(_dir.Path);
+
+        /// <summary>What the worker restores when the partition is assigned to it.</summary>
+        public PartitionCheckpoint? Load() => new CheckpointLoader(options, Store, Writer).Load([Partition])[Partition];
+
+        /// <summary>Writes as the worker does: the file, then (when kept) the topic's copy.</summary>
+        public void Write(long eventsOffset, int seed)
+        {
+            var checkpoint = Checkpoint(options.EventsTopic, eventsOffset, seed);
+            byte[] json = CheckpointStore.Serialize(checkpoint);
+            Assert.Null(Store.Write(checkpoint, json, () => Writer.Write(checkpoint, json)));
+        }
+
+        public void Dispose() => _dir.Dispose();
     }
 
-    /// <summary>Writes as the worker does: the file, then (when kept) the topic's copy.</summary>
-    private static void Write(OwnerOf owner, long eventsOffset, int seed)
+    private static OwnerOf Owner(KafkaOptions options, IProducer<byte[]?, byte[]> producer) => new(options, producer);
+
+    /// <summary>An owner the partition was just assigned to: it has read the topic and restored.</summary>
+    private static OwnerOf Assigned(KafkaOptions options, IProducer<byte[]?, byte[]> producer)
     {
-        var checkpoint = Checkpoint(owner.Writer.Topic.Replace("-checkpoints", "-events", StringComparison.Ordinal), eventsOffset, seed);
-        byte[] json = CheckpointStore.Serialize(checkpoint);
-        Assert.Null(owner.Store.Write(checkpoint, json, () => owner.Writer.Write(checkpoint, json)));
+        var owner = Owner(options, producer);
+        owner.Load();
+        return owner;
     }
 
-    /// <summary>The first owner's checkpoint, which both later owners restore.</summary>
-    private static void Seed(KafkaOptions options, IProducer<byte[]?, byte[]> producer, long eventsOffset)
+    /// <summary>A checkpoint topic where a first owner left a checkpoint at events offset 100, which the later owners restore.</summary>
+    private static SeededTopic Seeded(MockCluster cluster, string prefix)
     {
-        var checkpoint = Checkpoint(options.EventsTopic, eventsOffset, seed: 0);
+        var options = Options(cluster, prefix);
+        var producer = Producer(options);
+        var checkpoint = Checkpoint(options.EventsTopic, 100, seed: 0);
         new TopicCheckpointWriter(producer, options.CheckpointTopic!, MockCluster.Partitions).Write(checkpoint, CheckpointStore.Serialize(checkpoint));
+        return new(options, producer);
+    }
+
+    private sealed record SeededTopic(KafkaOptions Options, IProducer<byte[]?, byte[]> Producer) : IDisposable
+    {
+        public void Dispose() => Producer.Dispose();
     }
 
     /// <summary>What a third worker, with an empty folder of its own, restores.</summary>
     private static (long EventsOffset, long LabelsOffset) Restored(KafkaOptions options, IProducer<byte[]?, byte[]> producer)
     {
-        using var dir = new TempDir();
-        var restored = Owner(options, producer, dir).Loader.Load([Partition])[Partition];
+        using var owner = Owner(options, producer);
+        var restored = owner.Load();
         Assert.NotNull(restored);
         return (restored.EventsOffset, restored.LabelsOffset);
     }

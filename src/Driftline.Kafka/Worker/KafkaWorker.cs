@@ -128,6 +128,10 @@ internal sealed class KafkaWorker
             var topicWriter = _options.CheckpointTopic is { } checkpointTopic
                 ? new TopicCheckpointWriter(producer, checkpointTopic, TopicChecks.RequireCheckpointTopic(producer, checkpointTopic))
                 : null;
+            if (topicWriter is not null)
+            {
+                Log.Information("Checkpoint topic {CheckpointTopic}: this worker's keys are those of writer {Writer}", topicWriter.Topic, topicWriter.Id);
+            }
             RemoveLeftovers();
             _committer = new CheckpointCommitter(_options, _store, topicWriter, Stats, _delivery, ThrowIfFatal);
             _loader = new CheckpointLoader(_options, _store, topicWriter);
