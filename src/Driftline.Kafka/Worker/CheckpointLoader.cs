@@ -6,8 +6,8 @@ namespace Driftline.Kafka.Worker;
 
 /// <summary>
 /// Finds the checkpoint to restore for partitions just assigned: the folder's file and, with
-/// a checkpoint topic, the topic's copy; the newer one wins, by events offset and then labels
-/// offset (both only grow), and the file on a tie (the two hold the same state then). So a
+/// a checkpoint topic, every writer's copy on it; the newest one wins, by events offset and
+/// then labels offset (both only grow), and the file on a tie (the two hold the same state then). So a
 /// worker without the folder takes a partition over from the topic, and a worker with an old
 /// file from a partition it owned long ago does not go back in time.
 /// </summary>
@@ -15,8 +15,9 @@ internal sealed class CheckpointLoader(KafkaOptions options, CheckpointStore sto
 {
     /// <summary>
     /// The checkpoint of each of <paramref name="partitions"/>, null where there is none.
-    /// Throws <see cref="KafkaWorkerException"/>, with the fix, when the one to restore is
-    /// unreadable, incomplete or damaged: resuming from nothing would double-apply labels.
+    /// Throws <see cref="KafkaWorkerException"/>, with the fix, when the file or a manifest is
+    /// unreadable, or when the topic's copies ahead of the file are all incomplete or damaged
+    /// and there is no file: resuming from nothing would double-apply labels.
     /// </summary>
     public Dictionary<int, PartitionCheckpoint?> Load(IReadOnlyCollection<int> partitions)
     {
