@@ -267,7 +267,11 @@ internal abstract class OnlineLearner
     {
         ArgumentNullException.ThrowIfNull(first);
         ArgumentNullException.ThrowIfNull(second);
-        var positions = new List<int>(Written.Count);
+        // Each key is a slot (never negative, and each written once) above its position, so a
+        // sort of plain numbers puts the positions in slot order. A comparison that looked both
+        // slots up was most of a saved model's capture, which the end of a replay waits for.
+        var keys = new long[Written.Count];
+        int n = 0;
         int k = Outputs;
         for (int at = 0; at < Written.Count; at++)
         {
@@ -275,13 +279,19 @@ internal abstract class OnlineLearner
             {
                 if (first[j] != 0 || second[j] != 0)
                 {
-                    positions.Add(at);
+                    keys[n++] = ((long)Written.SlotAt(at) << 32) | (uint)at;
                     break;
                 }
             }
         }
-        positions.Sort((x, y) => Written.SlotAt(x).CompareTo(Written.SlotAt(y)));
-        return [.. positions];
+        var sorted = keys.AsSpan(0, n);
+        sorted.Sort();
+        var positions = new int[n];
+        for (int i = 0; i < n; i++)
+        {
+            positions[i] = (int)(uint)sorted[i];
+        }
+        return positions;
     }
 
     /// <summary>The slots at <paramref name="positions"/>.</summary>

@@ -89,17 +89,16 @@ internal sealed class CalibrationWindow : IGradedWindow
     {
         if (_count == _ring.Length)
         {
-            _sums.Remove(_ring[_oldest]);
+            // Full: the oldest leaves as this one comes, in one pass over the sums.
+            _sums.Replace(_ring[_oldest], terms);
             _ring[_oldest] = terms;
             _oldest = _oldest + 1 == _ring.Length ? 0 : _oldest + 1;
-        }
-        else
-        {
-            int slot = _oldest + _count;
-            _ring[slot >= _ring.Length ? slot - _ring.Length : slot] = terms;
-            _count++;
+            return;
         }
 
+        int slot = _oldest + _count;
+        _ring[slot >= _ring.Length ? slot - _ring.Length : slot] = terms;
+        _count++;
         _sums.Add(terms);
     }
 

@@ -313,19 +313,25 @@ internal sealed class ReplayCommand(CommandContext context)
         {
             var engine = lanes[i].Engine;
             var folder = folders[i];
-            // The model file and the report are independent: write one while rendering the other.
+            var recorder = recorders[i];
+            recorder.Finish();
+            // The model file and the report are independent: the engine is captured and written
+            // on one core while the report renders on the other (the engine is only read from
+            // here on). The capture and the names were on the report's path before, and the
+            // model side is the longer of the two (tests/Driftline.Benchmarks README).
             var modelWrite = Task.CompletedTask;
             if (!MonitorOnly)
             {
-                var snapshot = engine.Snapshot();
-                snapshot.FeatureNames = featureNames.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
                 string modelPath = Path.Combine(folder, ModelFile);
-                modelWrite = Task.Run(() => OutputFile.Write(modelPath, stream => SnapshotCodec.Write(snapshot, stream), context.CreateOutput), CancellationToken.None);
+                modelWrite = Task.Run(() =>
+                {
+                    var snapshot = engine.Snapshot();
+                    snapshot.FeatureNames = featureNames.Entries.ToDictionary(e => e.Key.ToString(CultureInfo.InvariantCulture), e => e.Value);
+                    OutputFile.Write(modelPath, stream => SnapshotCodec.Write(snapshot, stream), context.CreateOutput);
+                }, CancellationToken.None);
             }
             try
             {
-                var recorder = recorders[i];
-                recorder.Finish();
                 recorder.Data.DeadLetters = lanes[i].DeadLetters;
                 recorder.Data.Elapsed = elapsed;
                 ReportWriter.WriteSingle(Path.Combine(folder, ReportWriter.FileName), file, recorder.Data, context.CreateOutput);

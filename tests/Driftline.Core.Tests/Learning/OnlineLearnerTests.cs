@@ -127,4 +127,40 @@ public sealed class OnlineLearnerTests
         }
         Assert.InRange(mean, -1.3, -0.9);
     }
+
+    [Theory]
+    [InlineData(nameof(LearnerKind.Ftrl))]
+    [InlineData(nameof(LearnerKind.AdaGrad))]
+    public void Export_SlotsWrittenInScrambledOrder_AreAscendingWithTheirOwnWeights(string learner)
+    {
+        // A snapshot lists the written slots in ascending order, each with its own statistics
+        // (the saved model's layout). Slots are first written in a scrambled order spread over
+        // the whole hash space, so the order of the learner's table is not the slot order.
+        var options = new ModelOptions { Learner = Enum.Parse<LearnerKind>(learner), HashBits = 16 };
+        var model = OnlineLearner.Create(options);
+        var random = new Random(7);
+        var x = new SparseVector();
+        var written = new HashSet<int>();
+        for (int i = 0; i < 3_000; i++)
+        {
+            x.Clear();
+            for (int f = 0; f < 5; f++)
+            {
+                int slot = random.Next(model.Size);
+                x.Add(slot, 1.0);
+                written.Add(slot);
+            }
+            model.Update(x, random.Next(2));
+        }
+
+        var state = model.Export();
+
+        // Common practice: the reference order is a plain sort of the slots written.
+        var expected = written.Where(s => model.Weight(s) != 0).Order().ToArray();
+        Assert.Equal(expected, state.Slots.Intersect(expected).ToArray());
+        Assert.True(state.Slots.Zip(state.Slots.Skip(1)).All(p => p.First < p.Second), "slots ascending, each once");
+        var restored = OnlineLearner.Create(options);
+        restored.Import(state);
+        Assert.All(written, s => Assert.Equal(model.Weight(s), restored.Weight(s)));
+    }
 }
