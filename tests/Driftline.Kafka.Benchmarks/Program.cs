@@ -55,11 +55,21 @@ try
     }
     if (part is "all" or "latency")
     {
-        // Three alternating pairs: without a checkpoint in the window, then with one every 0.5 s.
+        // Three alternating rounds: the pass-through client (the baseline: the mock and the
+        // clients by themselves), the worker without a checkpoint in the window, then with one every 0.5 s.
+        var rounds = new List<(LatencyRun PassThrough, LatencyRun Plain, LatencyRun Checkpoints)>();
         for (int run = 0; run < 3; run++)
         {
-            bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: null);
-            bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: TimeSpan.FromSeconds(0.5));
+            var passThrough = bench.PassThroughLatency(rate, TimeSpan.FromSeconds(3));
+            var plain = bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: null);
+            var checkpoints = bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: TimeSpan.FromSeconds(0.5));
+            rounds.Add((passThrough, plain, checkpoints));
+        }
+        Console.WriteLine("latency summary, p50 / p99 / max (ms) per round; worker p99 / pass-through p99 of the same round:");
+        foreach (var (passThrough, plain, checkpoints) in rounds)
+        {
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"  pass-through {passThrough.P50:0.0} / {passThrough.P99:0.0} / {passThrough.Max:0.0}; worker {plain.P50:0.0} / {plain.P99:0.0} / {plain.Max:0.0} ({plain.P99 / passThrough.P99:0.00}x); with checkpoints {checkpoints.P50:0.0} / {checkpoints.P99:0.0} / {checkpoints.Max:0.0} ({checkpoints.P99 / passThrough.P99:0.00}x)"));
         }
     }
 }
