@@ -112,7 +112,7 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
             CheckpointStore.Serialize(checkpoint, _json);
             var json = _json.WrittenMemory;
             // The topic's copy is written under the file's lock, so with a shared folder it never goes back either.
-            var kept = store.Write(checkpoint, json, topic is null ? null : () => WriteTopic(topic, checkpoint, json.ToArray()));
+            var kept = store.Write(checkpoint, json, topic is null ? null : () => WriteTopic(topic, checkpoint, json));
             if (kept is { } newer)
             {
                 // Two owners at once: this member, or the other, has not yet noticed the group moved on.
@@ -132,7 +132,7 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
     /// the newest manifest names would break it until the new manifest lands), so the topic is
     /// read again for the partition first.
     /// </summary>
-    private void WriteTopic(TopicCheckpointWriter topic, PartitionCheckpoint checkpoint, byte[] json)
+    private void WriteTopic(TopicCheckpointWriter topic, PartitionCheckpoint checkpoint, ReadOnlyMemory<byte> json)
     {
         int partition = checkpoint.Partition;
         if (_stale.Contains(partition))
