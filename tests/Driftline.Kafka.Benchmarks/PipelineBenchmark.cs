@@ -191,6 +191,8 @@ internal sealed class PipelineBenchmark : IDisposable
         reader.Join(TimeSpan.FromSeconds(60));
         var pause = GC.GetTotalPauseDuration() - pauseBefore;
         long allocated = GC.GetTotalAllocatedBytes(precise: false) - allocatedBefore;
+        Thread.Sleep(50); // the runtime's events reach the listener a little later
+        string reasons = _gcPauses.DeepReasons();
         var pauses = _gcPauses.Take();
         int[] collections = [GC.CollectionCount(0) - collectionsBefore[0], GC.CollectionCount(1) - collectionsBefore[1], GC.CollectionCount(2) - collectionsBefore[2]];
         var latencies = new List<double>(events);
@@ -207,7 +209,7 @@ internal sealed class PipelineBenchmark : IDisposable
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
             $"latency, {name}, at {rate:N0} ev/s for {duration.TotalSeconds:0} s ({latencies.Count:N0} of {events:N0} read back): p50 {run.P50:0.0} ms, p99 {run.P99:0.0} ms, max {run.Max:0.0} ms (event produced → its output consumed)"));
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-            $"  garbage collections in the window (the whole process): {collections[0]} gen0, {collections[1]} gen1, {collections[2]} gen2, paused {run.PausedMs:0.0} ms in all, longest {run.LongestPauseMs:0.0} ms (events: {pauses.Count}); {allocated / 1e6:0} MB allocated"));
+            $"  garbage collections in the window (the whole process): {collections[0]} gen0, {collections[1]} gen1, {collections[2]} gen2, paused {run.PausedMs:0.0} ms in all, longest {run.LongestPauseMs:0.0} ms (events: {pauses.Count}); {allocated / 1e6:0} MB allocated; gen1/gen2 reasons: {reasons}"));
         return run;
     }
 
