@@ -44,6 +44,11 @@ if (part is "engine")
 {
     return 0;
 }
+// For A/B runs of the garbage collector's latency mode (it only takes SustainedLowLatency with background collection on, DOTNET_gcConcurrent=1).
+if (Environment.GetEnvironmentVariable("DRIFTLINE_BENCH_GC_LATENCY") is { Length: > 0 } mode)
+{
+    System.Runtime.GCSettings.LatencyMode = Enum.Parse<System.Runtime.GCLatencyMode>(mode);
+}
 var client = args.Skip(3).Select(a => a.Split('=', 2)).ToDictionary(kv => kv[0], kv => kv.Length > 1 ? kv[1] : "", StringComparer.Ordinal);
 Console.WriteLine($"garbage collector: {(System.Runtime.GCSettings.IsServerGC ? "server" : "workstation")}, latency mode {System.Runtime.GCSettings.LatencyMode}; client settings: {(client.Count == 0 ? "the worker's defaults" : string.Join(", ", client.Select(kv => kv.Key + "=" + kv.Value)))}");
 using var bench = new PipelineBenchmark(client);
