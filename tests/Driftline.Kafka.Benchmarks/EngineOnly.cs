@@ -35,11 +35,13 @@ internal static class EngineOnly
         // Fresh engines each round; the first rounds also pay for JIT tiering, so the figure is
         // the median of the last three of six.
         var rates = new List<double>();
+        long allocated = 0;
         for (int round = 0; round < 6; round++)
         {
             var engines = Enumerable.Range(0, Partitions).Select(_ => new ScoringEngine(new DriftlineOptions(), new NullSink())).ToArray();
             var parser = new EventParser();
             var record = new ParsedRecord();
+            long before = GC.GetAllocatedBytesForCurrentThread();
             var clock = Stopwatch.StartNew();
             foreach (var (bytes, partition) in records)
             {
@@ -49,10 +51,11 @@ internal static class EngineOnly
                 }
             }
             rates.Add(records.Count / clock.Elapsed.TotalSeconds);
+            allocated = GC.GetAllocatedBytesForCurrentThread() - before; // the last round's, after the engines' tables are grown
         }
         var last = rates.Skip(3).Order().ToList();
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-            $"engine only (parse + score/learn, {Partitions} engines, one per partition), median of rounds 4-6: {last[1]:N0} records/s (rounds {string.Join(", ", rates.Select(r => r.ToString("N0", CultureInfo.InvariantCulture)))})"));
+            $"engine only (parse + score/learn, {Partitions} engines, one per partition), median of rounds 4-6: {last[1]:N0} records/s (rounds {string.Join(", ", rates.Select(r => r.ToString("N0", CultureInfo.InvariantCulture)))}); {1e6 / last[1]:0.00} µs and {allocated / (double)records.Count:0} bytes allocated a record on one thread"));
     }
 
     internal sealed class NullSink : IScoringSink

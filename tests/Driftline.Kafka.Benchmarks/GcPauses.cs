@@ -12,18 +12,45 @@ internal sealed class GcPauses : EventListener
 {
     private readonly object _gate = new();
     private readonly List<double> _pauses = [];
+    private readonly List<string> _deep = [];
     private DateTime _suspended;
 
-    /// <summary>The pauses (ms) since the last call, and clears them.</summary>
+    /// <summary>The pauses (ms) since the last call, and clears them (and the reasons of gen1 and gen2 collections).</summary>
     public List<double> Take()
     {
         lock (_gate)
         {
             var taken = _pauses.ToList();
             _pauses.Clear();
+            _deep.Clear();
             return taken;
         }
     }
+
+    /// <summary>Each gen1 and gen2 collection since the last <see cref="Take"/>, as "gen/reason", in order.</summary>
+    public string DeepReasons()
+    {
+        lock (_gate)
+        {
+            return _deep.Count == 0 ? "none" : string.Join(" ", _deep);
+        }
+    }
+
+    /// <summary>
+    /// The runtime's reason codes (GCStart_V2's Reason field, documented with the runtime's GC
+    /// events: 0 small allocation, 1 induced, 4 large-object allocation, 5 out of space in the
+    /// small-object heap, 6 out of space in the large-object heap).
+    /// </summary>
+    private static string Reason(uint code) => code switch
+    {
+        0 => "alloc-small",
+        1 => "induced",
+        2 => "low-memory",
+        4 => "alloc-large",
+        5 => "oos-small",
+        6 => "oos-large",
+        _ => "reason" + code,
+    };
 
     protected override void OnEventSourceCreated(EventSource source)
     {
@@ -36,7 +63,15 @@ internal sealed class GcPauses : EventListener
     protected override void OnEventWritten(EventWrittenEventArgs e)
     {
         // The events reach the listener later, on a thread of its own: their own time stamps tell the pause.
-        if (e.EventId == 9)
+        if (e.EventId == 1 && e.Payload is { Count: >= 3 } start && Convert.ToUInt32(start[1], System.Globalization.CultureInfo.InvariantCulture) is uint depth and > 0)
+        {
+            // GCStart_V2: Count, Depth, Reason, Type, ClrInstanceID, ...
+            lock (_gate)
+            {
+                _deep.Add($"{depth}/{Reason(Convert.ToUInt32(start[2], System.Globalization.CultureInfo.InvariantCulture))}");
+            }
+        }
+        else if (e.EventId == 9)
         {
             lock (_gate)
             {

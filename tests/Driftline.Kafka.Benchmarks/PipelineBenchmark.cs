@@ -59,6 +59,10 @@ internal sealed class PipelineBenchmark : IDisposable
         static string Cost(string name, List<Window> runs) => string.Create(CultureInfo.InvariantCulture,
             $"{name} {Median(runs.Select(x => x.CpuMicros)):0.00} µs with {Median(runs.Select(x => x.Cores)):0.00} cores busy");
         Console.WriteLine($"processor time per message, median: {Cost("raw consume", raw)}; {Cost("pass-through", passThrough)}; {Cost("worker", worker)} (of {Environment.ProcessorCount} cores)");
+        // Managed bytes the process allocated per message in the same windows (the mock brokers are native, so these are the clients' and the worker's).
+        static string Bytes(string name, List<Window> runs) => string.Create(CultureInfo.InvariantCulture,
+            $"{name} {Median(runs.Select(x => x.BytesPerMessage)):0} B ({Median(runs.Select(x => (double)x.Gen0)):0} gen0 collections)");
+        Console.WriteLine($"allocated per message, median: {Bytes("raw consume", raw)}; {Bytes("pass-through", passThrough)}; {Bytes("worker", worker)}");
     }
 
     /// <summary>
@@ -75,25 +79,29 @@ internal sealed class PipelineBenchmark : IDisposable
     }
 
     /// <summary>One timed window: messages per second, processor time per message (µs) and cores kept busy.</summary>
-    private readonly record struct Window(double Rate, double CpuMicros, double Cores)
+    private readonly record struct Window(double Rate, double CpuMicros, double Cores, double BytesPerMessage, int Gen0)
     {
-        public static Window Of(long messages, TimeSpan elapsed, TimeSpan cpu) =>
-            new(messages / elapsed.TotalSeconds, cpu.TotalMicroseconds / messages, cpu / elapsed);
+        public static Window Of(long messages, TimeSpan elapsed, TimeSpan cpu, long allocated, int gen0) =>
+            new(messages / elapsed.TotalSeconds, cpu.TotalMicroseconds / messages, cpu / elapsed, allocated / (double)messages, gen0);
     }
+
+    /// <summary>What the process has allocated and collected so far, to subtract at a window's end.</summary>
+    private static (long Allocated, int Gen0) Heap() => (GC.GetTotalAllocatedBytes(precise: false), GC.CollectionCount(0));
 
     /// <summary>
     /// Latency of a paced stream into a warmed worker. With <paramref name="checkpointEvery"/>
     /// set, the worker checkpoints that often (several checkpoints in the window); without, none
     /// falls in the window (the label count and the period are set out of reach).
     /// </summary>
-    public void Latency(int rate, TimeSpan duration, TimeSpan? checkpointEvery)
+    public LatencyRun Latency(int rate, TimeSpan duration, TimeSpan? checkpointEvery)
     {
+        Settle();
         string topic = "lat-events-" + _run;
         int events = (int)(rate * duration.TotalSeconds);
         var options = Options(topic);
         // The mock broker answers a fetch only when fetch.wait.max.ms (default 500) runs out, not
         // when data arrives as a real broker does; a short wait keeps that out of the figure.
-        options.Client.TryAdd("fetch.wait.max.ms", "10");
+        options.Client.TryAdd("fetch.wait.max.ms", LatencyFetchWaitMs);
         options.CheckpointEvery = checkpointEvery ?? TimeSpan.FromHours(1);
         options.CheckpointEveryLabels = checkpointEvery is null ? int.MaxValue : options.CheckpointEveryLabels;
         using var stop = new CancellationTokenSource();
@@ -108,10 +116,77 @@ internal sealed class PipelineBenchmark : IDisposable
         {
             Thread.Sleep(5);
         }
-        var reader = new Thread(() => ReadLatencies(options.PredictionsTopic, probe, events)) { IsBackground = true };
+        long checkpointsBefore = kafka.Stats.Checkpoints;
+        string name = checkpointEvery is { } every ? string.Create(CultureInfo.InvariantCulture, $"worker, checkpoints every {every.TotalSeconds:0.0} s") : "worker, no checkpoint";
+        var run = TimedWindow(name, topic, options.PredictionsTopic, probe, events, rate, duration);
+        long partitionCheckpoints = kafka.Stats.Checkpoints - checkpointsBefore;
+        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+            $"  {partitionCheckpoints} partition checkpoints in the window; the last one held the loop {kafka.Stats.LastCheckpointMs:0.00} ms; off the loop: acknowledgements {kafka.Stats.LastFlushMs:0.0} ms, snapshots {kafka.Stats.LastSnapshotMs:0.0} ms (summed over partitions), cut to last file {kafka.Stats.LastWriteMs:0.0} ms"));
+        stop.Cancel();
+        thread.Join();
+        Console.WriteLine(probe.Breakdown());
+        return run;
+    }
+
+    /// <summary>
+    /// The same paced stream through the pass-through client instead of the worker: a consumer
+    /// with the worker's fetch settings that produces each record unchanged (with the worker's
+    /// producer settings and a delivery report) to a topic the same reader reads. What the mock
+    /// brokers, the clients and this machine take by themselves, the latency no worker can beat here.
+    /// </summary>
+    public LatencyRun PassThroughLatency(int rate, TimeSpan duration)
+    {
+        // The last worker's state is garbage now: collected here, not in this window (it was: a
+        // 168 ms gen2 pause in a pass-through window that allocates nothing long-lived).
+        Settle();
+        string topic = "lat-events-" + _run++;
+        string copies = topic + "-copies";
+        int events = (int)(rate * duration.TotalSeconds);
+        var probe = new LatencyProbe(events);
+        using var producer = new ProducerBuilder<byte[]?, byte[]>(PassThroughProducer()).SetLogHandler((_, _) => { }).Build();
+        var config = PassThroughConsumer();
+        config.Set("fetch.wait.max.ms", _client.GetValueOrDefault("fetch.wait.max.ms", LatencyFetchWaitMs));
+        using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
+        int warm = Produce(topic, 20_000, 0, firstIndex: 1_000_000);
+        long consumed = 0;
+        using var stop = new CancellationTokenSource();
+        Action<DeliveryReport<byte[]?, byte[]>> handler = _ => { };
+        var thread = new Thread(() =>
+        {
+            consumer.Subscribe(topic);
+            while (!stop.IsCancellationRequested)
+            {
+                var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
+                if (r is null || r.IsPartitionEOF)
+                {
+                    continue;
+                }
+                Send(producer, copies, r.Message.Key, r.Message.Value, handler);
+                Volatile.Write(ref consumed, consumed + 1);
+            }
+        }) { IsBackground = true };
+        thread.Start();
+        while (Volatile.Read(ref consumed) < warm)
+        {
+            Thread.Sleep(5);
+        }
+        var run = TimedWindow("pass-through", topic, copies, probe, events, rate, duration);
+        stop.Cancel();
+        thread.Join();
+        consumer.Close();
+        return run;
+    }
+
+    /// <summary>
+    /// The timed window both latency runs share: the reader joins, the paced producer sends
+    /// <paramref name="events"/> at <paramref name="rate"/>, and the garbage collections of the
+    /// whole process in the window are counted.
+    /// </summary>
+    private LatencyRun TimedWindow(string name, string topic, string outputTopic, LatencyProbe probe, int events, int rate, TimeSpan duration)
+    {
+        var reader = new Thread(() => ReadLatencies(outputTopic, probe, events)) { IsBackground = true };
         reader.Start();
         Thread.Sleep(500); // the reader joins its group
-        long checkpointsBefore = kafka.Stats.Checkpoints;
         var pauseBefore = GC.GetTotalPauseDuration();
         long allocatedBefore = GC.GetTotalAllocatedBytes(precise: false);
         _gcPauses.Take();
@@ -120,13 +195,10 @@ internal sealed class PipelineBenchmark : IDisposable
         reader.Join(TimeSpan.FromSeconds(60));
         var pause = GC.GetTotalPauseDuration() - pauseBefore;
         long allocated = GC.GetTotalAllocatedBytes(precise: false) - allocatedBefore;
+        Thread.Sleep(50); // the runtime's events reach the listener a little later
+        string reasons = _gcPauses.DeepReasons();
         var pauses = _gcPauses.Take();
         int[] collections = [GC.CollectionCount(0) - collectionsBefore[0], GC.CollectionCount(1) - collectionsBefore[1], GC.CollectionCount(2) - collectionsBefore[2]];
-        long partitionCheckpoints = kafka.Stats.Checkpoints - checkpointsBefore;
-        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-            $"{partitionCheckpoints} partition checkpoints in the window; the last one held the loop {kafka.Stats.LastCheckpointMs:0.00} ms; off the loop: acknowledgements {kafka.Stats.LastFlushMs:0.0} ms, snapshots {kafka.Stats.LastSnapshotMs:0.0} ms (summed over partitions), cut to last file {kafka.Stats.LastWriteMs:0.0} ms"));
-        stop.Cancel();
-        thread.Join();
         var latencies = new List<double>(events);
         for (int i = 1; i <= events; i++)
         {
@@ -136,12 +208,21 @@ internal sealed class PipelineBenchmark : IDisposable
             }
         }
         latencies.Sort();
+        var run = new LatencyRun(name, Pct(latencies, 0.50), Pct(latencies, 0.99), latencies.Count == 0 ? double.NaN : latencies[^1],
+            collections, pause.TotalMilliseconds, pauses.Count == 0 ? 0 : pauses.Max(), allocated);
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-            $"latency at {rate:N0} ev/s for {duration.TotalSeconds:0} s, {(checkpointEvery is { } every ? $"checkpoints every {every.TotalSeconds:0.0} s" : "no checkpoint")} ({latencies.Count:N0} of {events:N0} predictions read): p50 {Pct(latencies, 0.50):0.0} ms, p99 {Pct(latencies, 0.99):0.0} ms, max {latencies[^1]:0.0} ms (event produced → prediction consumed)"));
-        Console.WriteLine(probe.Breakdown());
+            $"latency, {name}, at {rate:N0} ev/s for {duration.TotalSeconds:0} s ({latencies.Count:N0} of {events:N0} read back): p50 {run.P50:0.0} ms, p99 {run.P99:0.0} ms, max {run.Max:0.0} ms (event produced → its output consumed)"));
+        // The last blocking gen2 collection: how much it kept (marked and, when compacting, moved), which its pause grows with.
+        var full = GC.GetGCMemoryInfo(GCKind.FullBlocking);
+        string gen2 = collections[2] == 0 ? "" : string.Create(CultureInfo.InvariantCulture,
+            $"; the last full blocking collection kept {full.PromotedBytes / 1e6:0} MB of a {full.HeapSizeBytes / 1e6:0} MB heap ({(full.Compacted ? "compacting" : "sweeping")})");
         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-            $"  garbage collections in the window (the whole process): {collections[0]} gen0, {collections[1]} gen1, {collections[2]} gen2, paused {pause.TotalMilliseconds:0.0} ms in all, longest {(pauses.Count == 0 ? 0 : pauses.Max()):0.0} ms (events: {pauses.Count}); {allocated / 1e6:0} MB allocated"));
+            $"  garbage collections in the window (the whole process): {collections[0]} gen0, {collections[1]} gen1, {collections[2]} gen2, paused {run.PausedMs:0.0} ms in all, longest {run.LongestPauseMs:0.0} ms (events: {pauses.Count}); {allocated / 1e6:0} MB allocated; gen1/gen2 reasons: {reasons}{gen2}"));
+        return run;
     }
+
+    /// <summary>The worker's and the pass-through's <c>fetch.wait.max.ms</c> in latency runs, unless given.</summary>
+    private const string LatencyFetchWaitMs = "10";
 
     private KafkaOptions Options(string topic) => new()
     {
@@ -168,13 +249,14 @@ internal sealed class PipelineBenchmark : IDisposable
             Thread.Sleep(1);
         }
         long from = worker.Stats.EventsIn;
+        var heap = Heap();
         var cpu = Environment.CpuUsage.TotalTime;
         var clock = Stopwatch.StartNew();
         while (worker.Stats.Predictions < events || worker.Stats.EventsIn < records)
         {
             Thread.Sleep(1);
         }
-        var window = Window.Of(records - from, clock.Elapsed, Environment.CpuUsage.TotalTime - cpu);
+        var window = Window.Of(records - from, clock.Elapsed, Environment.CpuUsage.TotalTime - cpu, Heap().Allocated - heap.Allocated, Heap().Gen0 - heap.Gen0);
         stop.Cancel();
         thread.Join();
         return window;
@@ -191,23 +273,13 @@ internal sealed class PipelineBenchmark : IDisposable
             : new ProducerBuilder<byte[]?, byte[]>(PassThroughProducer()).SetLogHandler((_, _) => { }).Build();
         long delivered = 0;
         Action<DeliveryReport<byte[]?, byte[]>> handler = _ => Interlocked.Increment(ref delivered);
-        var config = new ConsumerConfig { BootstrapServers = _bootstrap, GroupId = "bench-raw-" + _run++, AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false };
-        config.Set("group.protocol", "consumer");
-        if (producer is not null)
-        {
-            // The worker's consumer setting too (src/Driftline.Kafka/Options/ClientSettings.cs): the
-            // pass-through does no more Kafka work per record than the worker does.
-            config.Set("dotnet.consumer.consume.result.fields", "timestamp");
-            foreach (var (name, value) in _client)
-            {
-                config.Set(name, value);
-            }
-        }
+        var config = producer is null ? RawConsumer() : PassThroughConsumer();
         using var consumer = new ConsumerBuilder<byte[]?, byte[]>(config).SetLogHandler((_, _) => { }).Build();
         consumer.Subscribe(topic);
         int got = 0;
         Stopwatch? clock = null;
         TimeSpan cpu = default;
+        (long Allocated, int Gen0) heap = default;
         while (got < events)
         {
             var r = consumer.Consume(TimeSpan.FromMilliseconds(100));
@@ -222,12 +294,13 @@ internal sealed class PipelineBenchmark : IDisposable
             }
             if (got == events / 3)
             {
+                heap = Heap();
                 cpu = Environment.CpuUsage.TotalTime;
                 clock = Stopwatch.StartNew(); // the same steady-state window as the worker's
             }
         }
         producer?.Flush(TimeSpan.FromSeconds(60));
-        var window = Window.Of(events - events / 3, clock!.Elapsed, Environment.CpuUsage.TotalTime - cpu);
+        var window = Window.Of(events - events / 3, clock!.Elapsed, Environment.CpuUsage.TotalTime - cpu, Heap().Allocated - heap.Allocated, Heap().Gen0 - heap.Gen0);
         consumer.Close();
         return window;
     }
@@ -360,6 +433,28 @@ internal sealed class PipelineBenchmark : IDisposable
         {
             throw new InvalidOperationException($"{topic} holds {kept:N0} records, {records:N0} were produced");
         }
+    }
+
+    private ConsumerConfig RawConsumer()
+    {
+        var config = new ConsumerConfig { BootstrapServers = _bootstrap, GroupId = "bench-raw-" + _run++, AutoOffsetReset = AutoOffsetReset.Earliest, EnableAutoCommit = false };
+        config.Set("group.protocol", "consumer");
+        return config;
+    }
+
+    /// <summary>
+    /// The worker's consumer setting too (src/Driftline.Kafka/Options/ClientSettings.cs): the
+    /// pass-through does no more Kafka work per record than the worker does.
+    /// </summary>
+    private ConsumerConfig PassThroughConsumer()
+    {
+        var config = RawConsumer();
+        config.Set("dotnet.consumer.consume.result.fields", "timestamp");
+        foreach (var (name, value) in _client)
+        {
+            config.Set(name, value);
+        }
+        return config;
     }
 
     /// <summary>The worker's producer settings (src/Driftline.Kafka/Options/ClientSettings.cs) that bear on its cost.</summary>

@@ -44,6 +44,11 @@ if (part is "engine")
 {
     return 0;
 }
+// For A/B runs of the garbage collector's latency mode (it only takes SustainedLowLatency with background collection on, DOTNET_gcConcurrent=1).
+if (Environment.GetEnvironmentVariable("DRIFTLINE_BENCH_GC_LATENCY") is { Length: > 0 } mode)
+{
+    System.Runtime.GCSettings.LatencyMode = Enum.Parse<System.Runtime.GCLatencyMode>(mode);
+}
 var client = args.Skip(3).Select(a => a.Split('=', 2)).ToDictionary(kv => kv[0], kv => kv.Length > 1 ? kv[1] : "", StringComparer.Ordinal);
 Console.WriteLine($"garbage collector: {(System.Runtime.GCSettings.IsServerGC ? "server" : "workstation")}, latency mode {System.Runtime.GCSettings.LatencyMode}; client settings: {(client.Count == 0 ? "the worker's defaults" : string.Join(", ", client.Select(kv => kv.Key + "=" + kv.Value)))}");
 using var bench = new PipelineBenchmark(client);
@@ -55,11 +60,21 @@ try
     }
     if (part is "all" or "latency")
     {
-        // Three alternating pairs: without a checkpoint in the window, then with one every 0.5 s.
+        // Three alternating rounds: the pass-through client (the baseline: the mock and the
+        // clients by themselves), the worker without a checkpoint in the window, then with one every 0.5 s.
+        var rounds = new List<(LatencyRun PassThrough, LatencyRun Plain, LatencyRun Checkpoints)>();
         for (int run = 0; run < 3; run++)
         {
-            bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: null);
-            bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: TimeSpan.FromSeconds(0.5));
+            var passThrough = bench.PassThroughLatency(rate, TimeSpan.FromSeconds(3));
+            var plain = bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: null);
+            var checkpoints = bench.Latency(rate, TimeSpan.FromSeconds(3), checkpointEvery: TimeSpan.FromSeconds(0.5));
+            rounds.Add((passThrough, plain, checkpoints));
+        }
+        Console.WriteLine("latency summary, p50 / p99 / max (ms) per round; worker p99 / pass-through p99 of the same round:");
+        foreach (var (passThrough, plain, checkpoints) in rounds)
+        {
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"  pass-through {passThrough.P50:0.0} / {passThrough.P99:0.0} / {passThrough.Max:0.0}; worker {plain.P50:0.0} / {plain.P99:0.0} / {plain.Max:0.0} ({plain.P99 / passThrough.P99:0.00}x); with checkpoints {checkpoints.P50:0.0} / {checkpoints.P99:0.0} / {checkpoints.Max:0.0} ({checkpoints.P99 / passThrough.P99:0.00}x)"));
         }
     }
 }

@@ -12,10 +12,8 @@ public sealed class TopicCheckpointWriterTests
     [Fact]
     public void Write_CheckpointOverOneMegabyte_GoesInSeveralChunksAndReadsBack()
     {
-        using var cluster = new MockCluster();
-        var options = Options(cluster, "big");
-        using var producer = new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(options)).Build();
-        var writer = new TopicCheckpointWriter(producer, options.CheckpointTopic!, MockCluster.Partitions);
+        using var rig = new Rig("big");
+        var (options, writer) = (rig.Options, rig.Writer);
         var checkpoint = Large(options.EventsTopic, partition: 2, names: 60_000);
         byte[] json = CheckpointStore.Serialize(checkpoint);
         Assert.True(json.Length > 1_000_000, $"the test checkpoint is only {json.Length} bytes");
@@ -31,12 +29,36 @@ public sealed class TopicCheckpointWriterTests
     }
 
     [Fact]
+    public void Write_CheckpointOverOneMegabyte_AllocatesAtMostItsLastChunk()
+    {
+        using var rig = new Rig("reuse");
+        var (options, writer) = (rig.Options, rig.Writer);
+        var checkpoint = Large(options.EventsTopic, partition: 3, names: 60_000);
+        byte[] json = CheckpointStore.Serialize(checkpoint);
+        writer.Write(checkpoint, json); // the first write makes the kept chunk buffer
+        checkpoint.EventsOffset = 10;
+        json = CheckpointStore.Serialize(checkpoint);
+
+        long before = GC.GetAllocatedBytesForCurrentThread();
+        writer.Write(checkpoint, json);
+        long allocated = GC.GetAllocatedBytesForCurrentThread() - before;
+
+        // Full chunks go through one kept buffer (librdkafka copies each value at produce time);
+        // only the last, partial chunk is a new array. A bound of one chunk and 64 KiB for the
+        // keys, tasks and manifest; a new array per chunk would be the whole payload again.
+        Assert.True(json.Length > 3 * TopicCheckpointCodec.ChunkBytes, $"the test checkpoint is only {json.Length} bytes");
+        Assert.True(allocated < TopicCheckpointCodec.ChunkBytes + 65_536, $"one {json.Length}-byte checkpoint write allocated {allocated} bytes");
+        var assembler = TopicCheckpointReader.Read(options, writer, [3]);
+        var manifest = assembler.Manifest(3)!;
+        Assert.Equal(10, manifest.EventsOffset);
+        Assert.Equal(json, assembler.Assemble(manifest));
+    }
+
+    [Fact]
     public void Write_SmallerAfterLarger_ReadsTheLatestAndDeletesTheLeftovers()
     {
-        using var cluster = new MockCluster();
-        var options = Options(cluster, "shrink");
-        using var producer = new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(options)).Build();
-        var writer = new TopicCheckpointWriter(producer, options.CheckpointTopic!, MockCluster.Partitions);
+        using var rig = new Rig("shrink");
+        var (options, writer) = (rig.Options, rig.Writer);
         var large = Large(options.EventsTopic, partition: 1, names: 40_000);
         var small = Large(options.EventsTopic, partition: 1, names: 10);
 
@@ -58,13 +80,31 @@ public sealed class TopicCheckpointWriterTests
         Assert.Equal(300, CheckpointStore.Parse(json, "test").EventsOffset);
     }
 
-    private static KafkaOptions Options(MockCluster cluster, string prefix)
+    /// <summary>A mock cluster with a checkpoint topic, and a writer on the worker's producer settings.</summary>
+    private sealed class Rig : IDisposable
     {
-        var options = WorkerHost.OptionsFor(cluster.Bootstrap, prefix, "unused");
-        options.CheckpointTopic = prefix + "-checkpoints";
-        // The mock makes a topic on its first record; the worker needs it to exist beforehand.
-        Topics.Produce(cluster.Bootstrap, options.CheckpointTopic, [("unrelated", "{}", TestStream.StartMs)]);
-        return options;
+        private readonly MockCluster _cluster = new();
+        private readonly IProducer<byte[]?, byte[]> _producer;
+
+        public Rig(string prefix)
+        {
+            Options = WorkerHost.OptionsFor(_cluster.Bootstrap, prefix, "unused");
+            Options.CheckpointTopic = prefix + "-checkpoints";
+            // The mock makes a topic on its first record; the worker needs it to exist beforehand.
+            Topics.Produce(_cluster.Bootstrap, Options.CheckpointTopic, [("unrelated", "{}", TestStream.StartMs)]);
+            _producer = new ProducerBuilder<byte[]?, byte[]>(ClientSettings.Producer(Options)).Build();
+            Writer = new TopicCheckpointWriter(_producer, Options.CheckpointTopic, MockCluster.Partitions);
+        }
+
+        public KafkaOptions Options { get; }
+
+        public TopicCheckpointWriter Writer { get; }
+
+        public void Dispose()
+        {
+            _producer.Dispose();
+            _cluster.Dispose();
+        }
     }
 
     /// <summary>A checkpoint whose snapshot carries <paramref name="names"/> feature names (about 30 bytes each).</summary>

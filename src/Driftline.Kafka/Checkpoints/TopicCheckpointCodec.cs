@@ -72,42 +72,72 @@ internal static class TopicCheckpointCodec
     /// The records of one checkpoint of <paramref name="writer"/> in the order they must be
     /// written: the chunks, then the manifest. An empty payload still gets one (empty) chunk, so
     /// every manifest names at least one. The writer <c>""</c> gives the keys of the layout
-    /// before per-writer keys (the manifest and chunks themselves did not change).
+    /// before per-writer keys (the manifest and chunks themselves did not change). Each chunk is
+    /// a new array; the worker's writer fills one kept buffer with <see cref="WriteChunk"/>
+    /// instead (<see cref="Worker.TopicCheckpointWriter"/>).
     /// </summary>
     public static List<CheckpointRecord> Encode(PartitionCheckpoint checkpoint, byte[] payload, long generation, int slot, string writer, int chunkBytes = ChunkBytes)
     {
         ArgumentNullException.ThrowIfNull(checkpoint);
         ArgumentNullException.ThrowIfNull(payload);
-        ArgumentNullException.ThrowIfNull(writer);
-        if (writer.Length > 0 && !IsWriterId(writer))
-        {
-            throw new ArgumentException($"a writer id is 1 to {MaxWriterLength} lowercase hex digits, not '{writer}'", nameof(writer));
-        }
+        RequireWriter(writer);
         ArgumentOutOfRangeException.ThrowIfLessThan(chunkBytes, 1);
-        if (slot is not (0 or 1))
-        {
-            throw new ArgumentOutOfRangeException(nameof(slot), slot, "a slot is 0 or 1");
-        }
+        RequireSlot(slot);
         ulong hash = XxHash64.HashToUInt64(payload);
-        int count = Math.Max(1, (int)((payload.LongLength + chunkBytes - 1) / chunkBytes));
+        int count = ChunkCount(payload.Length, chunkBytes);
         var records = new List<CheckpointRecord>(count + 1);
         for (int i = 0; i < count; i++)
         {
-            int start = i * chunkBytes;
-            int length = Math.Min(chunkBytes, payload.Length - start);
-            var value = new byte[HeaderBytes + length];
-            var header = value.AsSpan(0, HeaderBytes);
-            Magic.CopyTo(header);
-            header[4] = LayoutVersion;
-            header[5] = (byte)slot;
-            BinaryPrimitives.WriteInt64LittleEndian(header[8..], generation);
-            BinaryPrimitives.WriteInt32LittleEndian(header[16..], i);
-            BinaryPrimitives.WriteInt32LittleEndian(header[20..], count);
-            BinaryPrimitives.WriteInt64LittleEndian(header[24..], payload.LongLength);
-            BinaryPrimitives.WriteUInt64LittleEndian(header[32..], hash);
-            payload.AsSpan(start, length).CopyTo(value.AsSpan(HeaderBytes));
+            var data = ChunkData(payload, i, chunkBytes);
+            var value = new byte[HeaderBytes + data.Length];
+            WriteChunk(value, data, generation, slot, i, count, payload.LongLength, hash);
             records.Add(new(ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, writer, slot, i), value));
         }
+        records.Add(new(ManifestKey(checkpoint.EventsTopic, checkpoint.Partition, writer), Manifest(checkpoint, generation, slot, count, payload.LongLength, hash, writer)));
+        return records;
+    }
+
+    /// <summary>How many chunks a payload of <paramref name="length"/> bytes takes (at least one).</summary>
+    public static int ChunkCount(long length, int chunkBytes = ChunkBytes) => Math.Max(1, (int)((length + chunkBytes - 1) / chunkBytes));
+
+    /// <summary>The part of <paramref name="payload"/> that chunk <paramref name="index"/> carries.</summary>
+    public static ReadOnlySpan<byte> ChunkData(ReadOnlySpan<byte> payload, int index, int chunkBytes = ChunkBytes)
+    {
+        int start = index * chunkBytes;
+        return payload.Slice(start, Math.Min(chunkBytes, payload.Length - start));
+    }
+
+    /// <summary>
+    /// Writes chunk <paramref name="index"/> of <paramref name="count"/> (its header, then
+    /// <paramref name="data"/>) into <paramref name="value"/>, which is exactly
+    /// <see cref="HeaderBytes"/> + <paramref name="data"/>'s length long.
+    /// </summary>
+    public static void WriteChunk(Span<byte> value, ReadOnlySpan<byte> data, long generation, int slot, int index, int count, long payloadLength, ulong hash)
+    {
+        RequireSlot(slot);
+        if (value.Length != HeaderBytes + data.Length)
+        {
+            throw new ArgumentException($"a chunk of {data.Length} bytes takes {HeaderBytes + data.Length} bytes, not {value.Length}", nameof(value));
+        }
+        var header = value[..HeaderBytes];
+        Magic.CopyTo(header);
+        header[4] = LayoutVersion;
+        header[5] = (byte)slot;
+        header[6] = 0;
+        header[7] = 0;
+        BinaryPrimitives.WriteInt64LittleEndian(header[8..], generation);
+        BinaryPrimitives.WriteInt32LittleEndian(header[16..], index);
+        BinaryPrimitives.WriteInt32LittleEndian(header[20..], count);
+        BinaryPrimitives.WriteInt64LittleEndian(header[24..], payloadLength);
+        BinaryPrimitives.WriteUInt64LittleEndian(header[32..], hash);
+        data.CopyTo(value[HeaderBytes..]);
+    }
+
+    /// <summary>The manifest's value: written last, it makes the chunks of <paramref name="generation"/> of <paramref name="writer"/> the current checkpoint.</summary>
+    public static byte[] Manifest(PartitionCheckpoint checkpoint, long generation, int slot, int count, long payloadLength, ulong hash, string writer)
+    {
+        ArgumentNullException.ThrowIfNull(checkpoint);
+        RequireWriter(writer);
         var manifest = new CheckpointManifest
         {
             EventsTopic = checkpoint.EventsTopic,
@@ -115,15 +145,31 @@ internal static class TopicCheckpointCodec
             Generation = generation,
             Slot = slot,
             Chunks = count,
-            Length = payload.LongLength,
+            Length = payloadLength,
             Hash = HashText(hash),
             EventsOffset = checkpoint.EventsOffset,
             LabelsOffset = checkpoint.LabelsOffset,
             WrittenAt = checkpoint.WrittenAt,
             Writer = writer,
         };
-        records.Add(new(ManifestKey(checkpoint.EventsTopic, checkpoint.Partition, writer), JsonSerializer.SerializeToUtf8Bytes(manifest, ManifestJsonContext.Default.CheckpointManifest)));
-        return records;
+        return JsonSerializer.SerializeToUtf8Bytes(manifest, ManifestJsonContext.Default.CheckpointManifest);
+    }
+
+    private static void RequireSlot(int slot)
+    {
+        if (slot is not (0 or 1))
+        {
+            throw new ArgumentOutOfRangeException(nameof(slot), slot, "a slot is 0 or 1");
+        }
+    }
+
+    private static void RequireWriter(string writer)
+    {
+        ArgumentNullException.ThrowIfNull(writer);
+        if (writer.Length > 0 && !IsWriterId(writer))
+        {
+            throw new ArgumentException($"a writer id is 1 to {MaxWriterLength} lowercase hex digits, not '{writer}'", nameof(writer));
+        }
     }
 
     /// <summary>Reads a chunk's header. Throws <see cref="InvalidDataException"/> when the value is not a chunk of this layout.</summary>

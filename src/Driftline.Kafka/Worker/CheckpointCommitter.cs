@@ -112,7 +112,7 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
             // The topic's copy is written under the file's lock, so with a shared folder it never
             // goes back either. Its keys are this worker's own, so another owner's writes never
             // make what this one remembers of them out of date.
-            var kept = store.Write(checkpoint, json, topic is null ? null : () => topic.Write(checkpoint, json.ToArray()));
+            var kept = store.Write(checkpoint, json, topic is null ? null : () => topic.Write(checkpoint, json));
             if (kept is { } newer)
             {
                 // Two owners at once: this member, or the other, has not yet noticed the group moved on.

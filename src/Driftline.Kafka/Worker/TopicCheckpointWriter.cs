@@ -1,3 +1,4 @@
+using System.IO.Hashing;
 using System.Text;
 using Confluent.Kafka;
 using Driftline.Kafka.Checkpoints;
@@ -22,6 +23,8 @@ internal sealed class TopicCheckpointWriter
     private readonly IProducer<byte[]?, byte[]> _producer;
     private readonly Lock _gate = new();
     private readonly Dictionary<int, Position> _positions = [];
+    // The buffer every full chunk is written through, one write at a time (see Write).
+    private byte[]? _fullChunk;
 
     /// <summary>
     /// Writes through <paramref name="producer"/> to <paramref name="topic"/>, which has
@@ -83,7 +86,7 @@ internal sealed class TopicCheckpointWriter
     /// <see cref="KafkaWorkerException"/> on a failed delivery or after a minute without
     /// acknowledgement: the offset it covers must not be committed then.
     /// </summary>
-    public void Write(PartitionCheckpoint checkpoint, byte[] payload)
+    public void Write(PartitionCheckpoint checkpoint, ReadOnlyMemory<byte> payload)
     {
         ArgumentNullException.ThrowIfNull(checkpoint);
         Position last;
@@ -92,31 +95,47 @@ internal sealed class TopicCheckpointWriter
             last = _positions.GetValueOrDefault(checkpoint.Partition, Position.None);
         }
         int slot = last.Slot == 0 ? 1 : 0;
-        var records = TopicCheckpointCodec.Encode(checkpoint, payload, last.Generation + 1, slot, Id);
-        int chunks = records.Count - 1;
+        long generation = last.Generation + 1;
+        ulong hash = XxHash64.HashToUInt64(payload.Span);
+        int chunks = TopicCheckpointCodec.ChunkCount(payload.Length);
         int leftovers = slot == 0 ? last.Extent0 : last.Extent1;
-        var first = records.Take(chunks).ToList();
-        for (int i = chunks; i < leftovers; i++)
-        {
-            first.Add(new(TopicCheckpointCodec.ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, Id, slot, i), null));
-        }
         var partition = new TopicPartition(Topic, PartitionOf(checkpoint.Partition));
-        Send(partition, first);
+        Send(partition, sent =>
+        {
+            for (int i = 0; i < chunks; i++)
+            {
+                var data = TopicCheckpointCodec.ChunkData(payload.Span, i);
+                // Every full chunk goes through one kept buffer: librdkafka copies a message's value
+                // before the produce call returns (Confluent.Kafka's SafeKafkaHandle.Produce passes
+                // RD_KAFKA_MSG_F_COPY), so the buffer may be refilled at once. A new 512 KiB array per
+                // chunk landed on the large-object heap and brought gen2 collections with it.
+                byte[] value = data.Length == TopicCheckpointCodec.ChunkBytes
+                    ? _fullChunk ??= new byte[TopicCheckpointCodec.HeaderBytes + TopicCheckpointCodec.ChunkBytes]
+                    : new byte[TopicCheckpointCodec.HeaderBytes + data.Length];
+                TopicCheckpointCodec.WriteChunk(value, data, generation, slot, i, chunks, payload.Length, hash);
+                sent.Add(ProduceWhenRoom(partition, Key(TopicCheckpointCodec.ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, Id, slot, i)), value));
+            }
+            for (int i = chunks; i < leftovers; i++)
+            {
+                sent.Add(ProduceWhenRoom(partition, Key(TopicCheckpointCodec.ChunkKey(checkpoint.EventsTopic, checkpoint.Partition, Id, slot, i)), null));
+            }
+        });
         // Only now is the new generation whole on the broker; the manifest makes it the current one.
-        Send(partition, [records[^1]]);
+        var manifest = TopicCheckpointCodec.Manifest(checkpoint, generation, slot, chunks, payload.Length, hash, Id);
+        Send(partition, sent => sent.Add(ProduceWhenRoom(partition, Key(TopicCheckpointCodec.ManifestKey(checkpoint.EventsTopic, checkpoint.Partition, Id)), manifest)));
         if (last.OtherManifests.Count + last.OtherChunks.Count > 0)
         {
             // Manifests before chunks: a reader never finds one of them naming chunks already deleted.
             foreach (var keys in new[] { last.OtherManifests, last.OtherChunks }.Where(k => k.Count > 0))
             {
-                Send(partition, [.. keys.Select(k => new CheckpointRecord(k, null))]);
+                Send(partition, sent => sent.AddRange(keys.Select(k => ProduceWhenRoom(partition, Key(k), null))));
             }
             Log.Information("Partition {Partition}: deleted the {Manifests} manifests and {Chunks} chunks of other writers found at assignment from checkpoint topic {CheckpointTopic} (this writer is {Writer})",
                 checkpoint.Partition, last.OtherManifests.Count, last.OtherChunks.Count, Topic, Id);
         }
         lock (_gate)
         {
-            _positions[checkpoint.Partition] = new(last.Generation + 1, slot, slot == 0 ? chunks : last.Extent0, slot == 1 ? chunks : last.Extent1, [], []);
+            _positions[checkpoint.Partition] = new(generation, slot, slot == 0 ? chunks : last.Extent0, slot == 1 ? chunks : last.Extent1, [], []);
         }
     }
 
@@ -126,33 +145,33 @@ internal sealed class TopicCheckpointWriter
         public static Position None => new(0, 1, 0, 0, [], []);
     }
 
-    private void Send(TopicPartition partition, List<CheckpointRecord> records)
+    private static byte[] Key(string key) => Encoding.UTF8.GetBytes(key);
+
+    /// <summary>Produces what <paramref name="produce"/> adds and waits for all of it to be acknowledged.</summary>
+    private void Send(TopicPartition partition, Action<List<Task>> produce)
     {
-        var sent = new List<Task>(records.Count);
+        var sent = new List<Task>();
         try
         {
-            foreach (var record in records)
-            {
-                var message = new Message<byte[]?, byte[]> { Key = Encoding.UTF8.GetBytes(record.Key), Value = record.Value! };
-                sent.Add(ProduceWhenRoom(partition, message));
-            }
+            produce(sent);
             if (!Task.WhenAll(sent).Wait(AckLimit))
             {
                 throw new KafkaWorkerException($"the broker has not acknowledged the checkpoint on topic '{Topic}' within {AckLimit.TotalSeconds:0} s; stopping without committing (a restart resumes from the last checkpoint)");
             }
         }
-        catch (AggregateException ex) when (ex.InnerException is ProduceException<byte[]?, byte[]> produce)
+        catch (AggregateException ex) when (ex.InnerException is ProduceException<byte[]?, byte[]> produceFailure)
         {
-            throw Failed(produce);
+            throw Failed(produceFailure);
         }
-        catch (ProduceException<byte[]?, byte[]> produce)
+        catch (ProduceException<byte[]?, byte[]> produceFailure)
         {
-            throw Failed(produce);
+            throw Failed(produceFailure);
         }
     }
 
-    private Task ProduceWhenRoom(TopicPartition partition, Message<byte[]?, byte[]> message)
+    private Task ProduceWhenRoom(TopicPartition partition, byte[] key, byte[]? value)
     {
+        var message = new Message<byte[]?, byte[]> { Key = key, Value = value! };
         while (true)
         {
             try
