@@ -143,6 +143,51 @@ internal sealed class RecordArena
         return ((uint)chunk << PositionBits) | (uint)pos;
     }
 
+    /// <summary>Bytes from the oldest record to the end of the newest, without the unused ends of chunks.</summary>
+    public int LiveBytes
+    {
+        get
+        {
+            if (IsEmpty)
+            {
+                return 0;
+            }
+            long total = 0;
+            for (int chunk = _tailChunk, pos = _tailPos; ; chunk = _next[chunk], pos = 0)
+            {
+                total += _used[chunk] - pos;
+                if (chunk == _writeChunk)
+                {
+                    return checked((int)total);
+                }
+            }
+        }
+    }
+
+    /// <summary>
+    /// Copies every record, oldest first, into <paramref name="into"/> back to back (records
+    /// never cross a chunk, so the copy is the same records walked in the same order), one block
+    /// per chunk. Returns the bytes copied (<see cref="LiveBytes"/>).
+    /// </summary>
+    public int CopyLive(Span<byte> into)
+    {
+        if (IsEmpty)
+        {
+            return 0;
+        }
+        int written = 0;
+        for (int chunk = _tailChunk, pos = _tailPos; ; chunk = _next[chunk], pos = 0)
+        {
+            var part = _chunks[chunk].AsSpan(pos, _used[chunk] - pos);
+            part.CopyTo(into[written..]);
+            written += part.Length;
+            if (chunk == _writeChunk)
+            {
+                return written;
+            }
+        }
+    }
+
     private int TakeNumber()
     {
         if (_freeCount > 0)

@@ -47,6 +47,8 @@ internal sealed class ScoringEngine
     private readonly SegmentTracker? _segments;
     private readonly BinEdges _edges;
     private readonly int _outputs;
+    // The array the pending store is copied into at a snapshot, back from the checkpoint writer for the next one.
+    private readonly PendingCopyPool _pendingCopies = new();
     private readonly double[] _p;
     private readonly double[] _priorP;
     private readonly double[] _served;
@@ -674,40 +676,6 @@ internal sealed class ScoringEngine
         return snapshot;
     }
 
-    /// <summary>
-    /// The waiting predictions, oldest first. Each is decoded into one scratch instance and
-    /// copied out at once into a list of values sized up front: a checkpoint of a partition with
-    /// tens of thousands of waiting or graded entries then allocates one array and the ids, not
-    /// three objects an entry that all live until the checkpoint is written (the live worker's
-    /// garbage collections at checkpoints, tests/Driftline.Kafka.Benchmarks README).
-    /// </summary>
-    private List<PendingSnapshot> PendingSnapshots()
-    {
-        var list = new List<PendingSnapshot>(Pending.Count);
-        foreach (var e in Pending.Entries(new PendingPrediction()))
-        {
-            list.Add(new PendingSnapshot
-            {
-                Id = e.Id!,
-                Model = e.Model,
-                TimeTicks = e.TimeTicks,
-                // A graded entry is kept only to recognise a duplicate label: its probabilities and
-                // features are spent, so the snapshot keeps just the id, its place and the flag.
-                P = e.Labelled || _outputs != 1 ? 0 : e.P,
-                PriorP = e.Labelled || _outputs != 1 ? 0 : e.PriorP,
-                ClassP = e.Labelled || _outputs == 1 ? null : e.ClassP.ToArray(),
-                ClassPriorP = e.Labelled || _outputs == 1 ? null : e.ClassPriorP.ToArray(),
-                ServedClassP = e.Labelled || e.ServedClassP.IsEmpty ? null : e.ServedClassP.ToArray(),
-                Served = e.Labelled || !double.IsFinite(e.Served) ? null : e.Served,
-                Labelled = e.Labelled,
-                Slots = e.Labelled ? null : e.Slots.ToArray(),
-                Values = e.Labelled ? null : e.Values.ToArray(),
-                Segment = e.Labelled ? null : e.Segment,
-            });
-        }
-        return list;
-    }
-
     private EngineSnapshot Capture() => new()
     {
         Options = _options,
@@ -722,7 +690,8 @@ internal sealed class ScoringEngine
             Scored = m.Scored,
             Recalibration = m.Recalibration?.Export(),
         }).ToList(),
-        Pending = PendingSnapshots(),
+        // One block copy of the store's records into the array kept for it, written to JSON from there.
+        PendingEntries = PendingEntries.Copy(Pending, _outputs, _pendingCopies),
         Segments = _segments?.Export(),
         InlineLabelled = InlineLabelled.Entries().ToList(),
         ExpiredLabels = Pending.Expired,

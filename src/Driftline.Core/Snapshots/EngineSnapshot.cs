@@ -26,8 +26,26 @@ internal sealed class EngineSnapshot
     /// <summary>One entry per key.</summary>
     public List<ModelSnapshot> Models { get; set; } = [];
 
-    /// <summary>Predictions held for late labels, oldest first.</summary>
-    public List<PendingSnapshot> Pending { get; set; } = [];
+    /// <summary>Predictions held for late labels, oldest first (decoded from the copy <see cref="PendingEntries"/> holds, when it holds one).</summary>
+    [JsonIgnore]
+    public List<PendingSnapshot> Pending
+    {
+        get => PendingEntries?.List!;
+        set => PendingEntries = value is null ? null : new PendingEntries(value);
+    }
+
+    /// <summary>
+    /// What <see cref="Pending"/> is made from and written from: the list, or the pending
+    /// store's records copied when the snapshot was taken; null only in a damaged file.
+    /// </summary>
+    [JsonPropertyName("pending")]
+    public PendingEntries? PendingEntries { get; set; } = new([]);
+
+    /// <summary>
+    /// Once the snapshot has been written (a checkpoint), gives the copied records' array back to
+    /// the engine for its next snapshot; <see cref="Pending"/> may not be read after.
+    /// </summary>
+    public void ReleasePending() => PendingEntries?.Release();
 
     /// <summary>
     /// Ids of the latest events that came with their label, oldest first, so a late label for

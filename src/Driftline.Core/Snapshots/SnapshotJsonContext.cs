@@ -13,4 +13,6 @@ namespace Driftline.Core.Snapshots;
     // A repeated property is damage (or an edit gone wrong), not "the last one wins".
     AllowDuplicateProperties = false)]
 [JsonSerializable(typeof(EngineSnapshot))]
+// The pending entries' converter reads and writes a list of them with this metadata.
+[JsonSerializable(typeof(List<PendingSnapshot>))]
 internal sealed partial class SnapshotJsonContext : JsonSerializerContext;

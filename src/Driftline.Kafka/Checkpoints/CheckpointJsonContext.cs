@@ -13,4 +13,6 @@ namespace Driftline.Kafka.Checkpoints;
     Converters = [typeof(EnumNamesOnly)],
     NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals)]
 [JsonSerializable(typeof(PartitionCheckpoint))]
+// The pending entries' converter reads and writes a list of them with this metadata.
+[JsonSerializable(typeof(List<PendingSnapshot>))]
 internal sealed partial class CheckpointJsonContext : JsonSerializerContext;
