@@ -54,8 +54,8 @@ internal static class CheckpointCost
             kept?.Invoke(null, [checkpoint, buffer]);
             double serialised = clock.Elapsed.TotalMilliseconds;
             long afterJson = GC.GetAllocatedBytesForCurrentThread();
-            // As the worker's writer does once the checkpoint is written: the pending store's copy goes back for the next snapshot.
-            checkpoint.Snapshot.ReleasePending();
+            // As the worker's writer does once the checkpoint is written: the stores' copies go back for the next snapshot.
+            checkpoint.Snapshot.ReleaseCopies();
             if (round > 0)
             {
                 // The first round also pays for the serializer's metadata and JIT.

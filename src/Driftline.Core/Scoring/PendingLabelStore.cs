@@ -157,22 +157,8 @@ internal sealed class PendingLabelStore
         }
     }
 
-    /// <summary>
-    /// Copies the entries' records, oldest first, into <paramref name="buffer"/> (replaced by a
-    /// larger array when it is too small) and returns their length in bytes: a snapshot of the
-    /// store as one block, decoded later with <see cref="PendingRecord.Read"/> (for a checkpoint,
-    /// on the writer thread) instead of an object graph the collector has to trace and copy.
-    /// </summary>
-    public int CopyRecords(ref byte[] buffer)
-    {
-        int length = _arena.LiveBytes;
-        if (buffer.Length < length)
-        {
-            // Some room to grow, so a store filling up does not make a new array every checkpoint.
-            buffer = GC.AllocateUninitializedArray<byte>(length + (length / 4));
-        }
-        return _arena.CopyLive(buffer);
-    }
+    /// <summary>Copies the entries' records, oldest first, into <paramref name="buffer"/> (<see cref="RecordArena.CopyLive"/>); returns their length in bytes.</summary>
+    public int CopyRecords(ref byte[] buffer) => _arena.CopyLive(ref buffer);
 
     /// <summary>Restores the counters of a snapshot (entries are re-added with <see cref="Add"/>).</summary>
     public void RestoreCounters(long expired) => Expired = expired;

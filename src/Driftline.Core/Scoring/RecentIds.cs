@@ -119,6 +119,9 @@ internal sealed class RecentIds
         }
     }
 
+    /// <summary>Copies the ids' keys, oldest first, into <paramref name="buffer"/> (<see cref="RecordArena.CopyLive"/>); returns their length in bytes.</summary>
+    public int CopyRecords(ref byte[] buffer) => _arena.CopyLive(ref buffer);
+
     private void Forget()
     {
         uint location = _arena.Tail;

@@ -165,16 +165,25 @@ internal sealed class RecordArena
     }
 
     /// <summary>
-    /// Copies every record, oldest first, into <paramref name="into"/> back to back (records
+    /// Copies every record, oldest first, into <paramref name="buffer"/> back to back (records
     /// never cross a chunk, so the copy is the same records walked in the same order), one block
-    /// per chunk. Returns the bytes copied (<see cref="LiveBytes"/>).
+    /// per chunk; a buffer too small is replaced by a larger array. Returns the bytes copied
+    /// (<see cref="LiveBytes"/>). A snapshot of a store as one block, decoded later (for a
+    /// checkpoint, on the writer thread) instead of an object graph the collector has to trace.
     /// </summary>
-    public int CopyLive(Span<byte> into)
+    public int CopyLive(ref byte[] buffer)
     {
-        if (IsEmpty)
+        int length = LiveBytes;
+        if (buffer.Length < length)
+        {
+            // Some room to grow, so a store filling up does not make a new array every checkpoint.
+            buffer = GC.AllocateUninitializedArray<byte>(length + (length / 4));
+        }
+        if (length == 0)
         {
             return 0;
         }
+        var into = buffer.AsSpan();
         int written = 0;
         for (int chunk = _tailChunk, pos = _tailPos; ; chunk = _next[chunk], pos = 0)
         {

@@ -47,8 +47,9 @@ internal sealed class ScoringEngine
     private readonly SegmentTracker? _segments;
     private readonly BinEdges _edges;
     private readonly int _outputs;
-    // The array the pending store is copied into at a snapshot, back from the checkpoint writer for the next one.
-    private readonly PendingCopyPool _pendingCopies = new();
+    // The arrays the pending store and the inline-labelled ids are copied into at a snapshot, back from the checkpoint writer for the next one.
+    private readonly RecordCopyPool _pendingCopies = new();
+    private readonly RecordCopyPool _inlineCopies = new();
     private readonly double[] _p;
     private readonly double[] _priorP;
     private readonly double[] _served;
@@ -693,7 +694,7 @@ internal sealed class ScoringEngine
         // One block copy of the store's records into the array kept for it, written to JSON from there.
         PendingEntries = PendingEntries.Copy(Pending, _outputs, _pendingCopies),
         Segments = _segments?.Export(),
-        InlineLabelled = InlineLabelled.Entries().ToList(),
+        InlineLabelledEntries = RecentIdEntries.Copy(InlineLabelled, _inlineCopies),
         ExpiredLabels = Pending.Expired,
         Windows = ExportChannel(_channels[0]).Windows,
         TimeWindows = ExportChannel(_channels[0]).TimeWindows,

@@ -42,17 +42,32 @@ internal sealed class EngineSnapshot
     public PendingEntries? PendingEntries { get; set; } = new([]);
 
     /// <summary>
-    /// Once the snapshot has been written (a checkpoint), gives the copied records' array back to
-    /// the engine for its next snapshot; <see cref="Pending"/> may not be read after.
+    /// Once the snapshot has been written (a checkpoint), gives the arrays of the copied records
+    /// back to the engine for its next snapshot; <see cref="Pending"/> and
+    /// <see cref="InlineLabelled"/> may not be read after.
     /// </summary>
-    public void ReleasePending() => PendingEntries?.Release();
+    public void ReleaseCopies()
+    {
+        PendingEntries?.Release();
+        InlineLabelledEntries?.Release();
+    }
 
     /// <summary>
     /// Ids of the latest events that came with their label, oldest first, so a late label for
     /// one after a restore is still a duplicate; null in older snapshots (none remembered).
+    /// Decoded from the copy <see cref="InlineLabelledEntries"/> holds, when it holds one.
     /// </summary>
-    [System.Text.Json.Serialization.JsonIgnore(Condition = System.Text.Json.Serialization.JsonIgnoreCondition.WhenWritingNull)]
-    public List<string>? InlineLabelled { get; set; }
+    [JsonIgnore]
+    public List<string>? InlineLabelled
+    {
+        get => InlineLabelledEntries?.List;
+        set => InlineLabelledEntries = value is null ? null : new RecentIdEntries(value);
+    }
+
+    /// <summary>What <see cref="InlineLabelled"/> is made from and written from: the list, or the ids' keys copied when the snapshot was taken.</summary>
+    [JsonPropertyName("inline_labelled")]
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public RecentIdEntries? InlineLabelledEntries { get; set; }
 
     /// <summary>Predictions that left the store unlabelled.</summary>
     public long ExpiredLabels { get; set; }

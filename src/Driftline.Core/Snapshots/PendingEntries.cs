@@ -17,34 +17,27 @@ namespace Driftline.Core.Snapshots;
 internal sealed class PendingEntries
 {
     private List<PendingSnapshot>? _list;
-    private byte[]? _records;
-    private readonly int _length;
-    private readonly int _count;
+    private readonly RecordCopy? _copy;
     private readonly int _outputs;
-    private readonly PendingCopyPool? _pool;
-    private bool _released;
 
     /// <summary>Entries given as a list.</summary>
     public PendingEntries(List<PendingSnapshot> list) => _list = list;
 
-    private PendingEntries(byte[] records, int length, int count, int outputs, PendingCopyPool pool)
+    private PendingEntries(RecordCopy copy, int outputs)
     {
-        _records = records;
-        _length = length;
-        _count = count;
+        _copy = copy;
         _outputs = outputs;
-        _pool = pool;
     }
 
     /// <summary>
     /// Copies <paramref name="store"/>'s records into the array <paramref name="pool"/> keeps
     /// (<paramref name="outputs"/>: 1 for a binary model, K for a multiclass one).
     /// </summary>
-    public static PendingEntries Copy(PendingLabelStore store, int outputs, PendingCopyPool pool)
+    public static PendingEntries Copy(PendingLabelStore store, int outputs, RecordCopyPool pool)
     {
         var records = pool.Take();
         int length = store.CopyRecords(ref records);
-        return new PendingEntries(records, length, store.Count, outputs, pool);
+        return new PendingEntries(new RecordCopy(records, length, store.Count, pool), outputs);
     }
 
     /// <summary>True while the entries are the copied records (not yet made a list).</summary>
@@ -54,15 +47,7 @@ internal sealed class PendingEntries
     public List<PendingSnapshot> List => _list ??= Decode();
 
     /// <summary>Gives the copy's array back to its engine; the entries may not be used after.</summary>
-    public void Release()
-    {
-        if (_records is { } records && _pool is not null)
-        {
-            _records = null;
-            _released = true;
-            _pool.Return(records);
-        }
-    }
+    public void Release() => _copy?.Release();
 
     /// <summary>The entry a snapshot holds for the decoded record <paramref name="e"/>.</summary>
     public static PendingSnapshot Of(PendingPrediction e, int outputs) => new()
@@ -92,33 +77,32 @@ internal sealed class PendingEntries
     /// </summary>
     public void WriteCopy(Utf8JsonWriter writer)
     {
-        var records = Records();
+        var records = _copy!.Records;
         var e = new PendingPrediction();
         writer.WriteStartArray();
         int pos = 0;
-        for (int i = 0; i < _count; i++)
+        for (int i = 0; i < _copy.Count; i++)
         {
-            pos += PendingRecord.Read(records.AsSpan(pos, _length - pos), e, withId: true);
-            PendingJson.Write(writer, e, _outputs);
+            var record = records[pos..];
+            // The id is written from its key's bytes: no string an entry on the writer thread either.
+            int size = PendingRecord.Read(record, e, withId: false);
+            PendingJson.Write(writer, record[..IdKey.Length(record)], e, _outputs);
+            pos += size;
         }
         writer.WriteEndArray();
     }
 
     private List<PendingSnapshot> Decode()
     {
-        var records = Records();
-        var list = new List<PendingSnapshot>(_count);
+        var records = _copy!.Records;
+        var list = new List<PendingSnapshot>(_copy.Count);
         var e = new PendingPrediction();
         int pos = 0;
-        for (int i = 0; i < _count; i++)
+        for (int i = 0; i < _copy.Count; i++)
         {
-            pos += PendingRecord.Read(records.AsSpan(pos, _length - pos), e, withId: true);
+            pos += PendingRecord.Read(records[pos..], e, withId: true);
             list.Add(Of(e, _outputs));
         }
         return list;
     }
-
-    private byte[] Records() => _released || _records is null
-        ? throw new InvalidOperationException("the snapshot's pending entries were released after it was written")
-        : _records;
 }

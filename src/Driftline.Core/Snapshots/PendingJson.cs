@@ -1,3 +1,4 @@
+using System.Runtime.InteropServices;
 using System.Text.Json;
 using Driftline.Core.Scoring;
 
@@ -25,11 +26,12 @@ internal static class PendingJson
     private static readonly JsonEncodedText Values = JsonEncodedText.Encode("values");
     private static readonly JsonEncodedText Segment = JsonEncodedText.Encode("segment");
 
-    /// <summary>Writes <see cref="PendingEntries.Of"/>(<paramref name="e"/>, <paramref name="outputs"/>) as the serializer would.</summary>
-    public static void Write(Utf8JsonWriter writer, PendingPrediction e, int outputs)
+    /// <summary>Writes <see cref="PendingEntries.Of"/>(<paramref name="e"/>, <paramref name="outputs"/>), its id spelt by <paramref name="key"/>, as the serializer would.</summary>
+    public static void Write(Utf8JsonWriter writer, ReadOnlySpan<byte> key, PendingPrediction e, int outputs)
     {
         writer.WriteStartObject();
-        writer.WriteString(Id, e.Id);
+        writer.WritePropertyName(Id);
+        WriteKey(writer, key);
         writer.WriteNumber(Model, e.Model);
         writer.WriteNumber(TimeTicks, e.TimeTicks);
         bool open = !e.Labelled;
@@ -78,6 +80,24 @@ internal static class PendingJson
             }
         }
         writer.WriteEndObject();
+    }
+
+    /// <summary>
+    /// Writes the id an <see cref="IdKey"/> key spells as a JSON string, from its bytes: UTF-8 as
+    /// it is (the writer escapes it as it would the string), UTF-16 code units as characters.
+    /// </summary>
+    public static void WriteKey(Utf8JsonWriter writer, ReadOnlySpan<byte> key)
+    {
+        uint tag = Varint.Read(key, 0, out int header);
+        var body = key.Slice(header, (int)(tag >> 1));
+        if ((tag & 1) == 0)
+        {
+            writer.WriteStringValue(body);
+        }
+        else
+        {
+            writer.WriteStringValue(MemoryMarshal.Cast<byte, char>(body));
+        }
     }
 
     private static void Numbers(Utf8JsonWriter writer, JsonEncodedText name, ReadOnlySpan<double> values)

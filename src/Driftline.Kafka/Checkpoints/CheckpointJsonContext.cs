@@ -13,6 +13,7 @@ namespace Driftline.Kafka.Checkpoints;
     Converters = [typeof(EnumNamesOnly)],
     NumberHandling = JsonNumberHandling.AllowNamedFloatingPointLiterals)]
 [JsonSerializable(typeof(PartitionCheckpoint))]
-// The pending entries' converter reads and writes a list of them with this metadata.
+// The converters of the pending entries and the inline-labelled ids read and write lists with this metadata.
 [JsonSerializable(typeof(List<PendingSnapshot>))]
+[JsonSerializable(typeof(List<string>))]
 internal sealed partial class CheckpointJsonContext : JsonSerializerContext;

@@ -113,9 +113,9 @@ internal sealed class CheckpointCommitter(KafkaOptions options, CheckpointStore 
             // goes back either. Its keys are this worker's own, so another owner's writes never
             // make what this one remembers of them out of date.
             var kept = store.Write(checkpoint, json, topic is null ? null : () => topic.Write(checkpoint, json));
-            // Written: the engines' copies of their pending stores go back for the next checkpoint.
-            checkpoint.Snapshot.ReleasePending();
-            checkpoint.Challengers?.ForEach(c => c.Snapshot.ReleasePending());
+            // Written: the engines' copies of their stores go back for the next checkpoint.
+            checkpoint.Snapshot.ReleaseCopies();
+            checkpoint.Challengers?.ForEach(c => c.Snapshot.ReleaseCopies());
             if (kept is { } newer)
             {
                 // Two owners at once: this member, or the other, has not yet noticed the group moved on.

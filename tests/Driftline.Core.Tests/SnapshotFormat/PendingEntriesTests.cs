@@ -26,13 +26,20 @@ public sealed class PendingEntriesTests
         var copied = engine.Snapshot();
         var listed = engine.Snapshot();
         Assert.True(copied.PendingEntries!.IsCopy);
-        // Reading the list makes it the list: then the serializer's metadata writes it, as before.
+        Assert.True(copied.InlineLabelledEntries!.IsCopy);
+        // Reading the lists makes them lists: then the serializer's metadata writes them, as before.
         Assert.Equal(engine.Pending.Count, listed.Pending.Count);
+        Assert.Equal(engine.InlineLabelled.Count, listed.InlineLabelled!.Count);
         Assert.False(listed.PendingEntries!.IsCopy);
+        Assert.False(listed.InlineLabelledEntries!.IsCopy);
 
         Assert.Equal(Json(listed), Json(copied));
         Assert.Contains(listed.Pending, p => p.Labelled);
         Assert.Contains(listed.Pending, p => !p.Labelled);
+        // Each kind has the fields it is here for, so the comparison covers them.
+        Assert.Equal(kind.EndsWith("served", StringComparison.Ordinal), listed.Pending.Any(p => p.Served is not null || p.ServedClassP is not null));
+        Assert.Equal(kind == "segments", listed.Pending.Any(p => p.Segment is not null));
+        Assert.Equal(kind.StartsWith("multiclass", StringComparison.Ordinal), listed.Pending.Any(p => p.ClassP is not null));
     }
 
     [Theory]
@@ -48,6 +55,23 @@ public sealed class PendingEntriesTests
     }
 
     [Fact]
+    public void Write_NoIdsRemembered_WritesEmptyArraysAsBefore()
+    {
+        var engine = new ScoringEngine(Options("binary"), new RecordingSink());
+        var copied = engine.Snapshot();
+        var listed = engine.Snapshot();
+        _ = listed.Pending;
+        _ = listed.InlineLabelled;
+
+        byte[] json = Json(copied);
+
+        Assert.Equal(Json(listed), json);
+        string text = System.Text.Encoding.UTF8.GetString(json);
+        Assert.Contains("\"pending\":[]", text, StringComparison.Ordinal);
+        Assert.Contains("\"inline_labelled\":[]", text, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public void Snapshot_AfterRelease_ReusesNothingStillHeldAndReleasedEntriesRefuseUse()
     {
         var engine = Fed("binary", events: 2_000);
@@ -55,7 +79,7 @@ public sealed class PendingEntriesTests
         byte[] heldJson = Json(held);
         var released = engine.Snapshot();
         _ = Json(released);
-        released.ReleasePending();
+        released.ReleaseCopies();
 
         EngineDriver.Feed(engine, Lines("binary", 2_000, 500));
         // The next snapshot takes the released array: the one still held must not change.
@@ -66,6 +90,7 @@ public sealed class PendingEntriesTests
         _ = reference.Pending;
         Assert.Equal(Json(reference), Json(next));
         Assert.Throws<InvalidOperationException>(() => released.Pending);
+        Assert.Throws<InvalidOperationException>(() => released.InlineLabelled);
     }
 
     private static byte[] Json(EngineSnapshot snapshot)
@@ -107,7 +132,7 @@ public sealed class PendingEntriesTests
     }
 
     // Inline labels, late labels 40 events on and events never labelled; ids with characters
-    // JSON escapes, keys that make several models, values that are not ±1.
+    // JSON escapes (and one outside the basic plane), keys that make several models, values that are not ±1.
     private static IEnumerable<string> Lines(string kind, int from, int count)
     {
         bool multiclass = kind.StartsWith("multiclass", StringComparison.Ordinal);
@@ -117,11 +142,11 @@ public sealed class PendingEntriesTests
         {
             string inline = i % 4 == 0 ? ",\"label\":" + Label(i) : "";
             yield return string.Create(CultureInfo.InvariantCulture,
-                $"{{\"id\":\"e{i}<é>\",\"key\":\"k{i % 3}\",\"features\":{{\"zone\":\"{zones[i % 4]}\",\"distance_km\":{i % 97 / 7.0},\"items\":{i % 7},\"raining\":{(i % 3 == 0 ? "true" : "false")},\"tags\":[\"t{i % 5}\"]}}{inline}}}");
+                $"{{\"id\":\"e{i}<é>{(i % 11 == 0 ? "\\uD83D\\uDE00" : "")}\",\"key\":\"k{i % 3}\",\"features\":{{\"zone\":\"{zones[i % 4]}\",\"distance_km\":{i % 97 / 7.0},\"items\":{i % 7},\"raining\":{(i % 3 == 0 ? "true" : "false")},\"tags\":[\"t{i % 5}\"]}}{inline}}}");
             int late = i - 40;
             if (late >= from && late % 4 == 1)
             {
-                yield return $"{{\"id\":\"e{late}<é>\",\"label\":{Label(late)}}}";
+                yield return $"{{\"id\":\"e{late}<é>{(late % 11 == 0 ? "\\uD83D\\uDE00" : "")}\",\"label\":{Label(late)}}}";
             }
         }
     }
