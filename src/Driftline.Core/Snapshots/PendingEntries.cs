@@ -5,29 +5,25 @@ using Driftline.Core.Scoring;
 namespace Driftline.Core.Snapshots;
 
 /// <summary>
-/// The waiting and graded predictions of a snapshot, oldest first: either a list of entries
-/// (read from a file, or set by a caller) or the pending store's records copied in one block
-/// when the snapshot was taken. The copy is written to JSON straight from its bytes
-/// (<see cref="PendingEntriesConverter"/>), with exactly the bytes the list of the same entries
-/// gives, and becomes a list only when someone reads <see cref="List"/> (a restore, a test).
-/// So a checkpoint keeps one array alive until it is written, not three objects an entry that
-/// the collector has to trace and copy (tests/Driftline.Kafka.Benchmarks README, part 2).
+/// The waiting and graded predictions of a snapshot, oldest first: a list, or the pending
+/// store's records copied when the snapshot was taken (<see cref="CopiedList{TItem}"/>).
 /// </summary>
-[JsonConverter(typeof(PendingEntriesConverter))]
-internal sealed class PendingEntries
+[JsonConverter(typeof(CopiedListConverter<PendingEntries, PendingSnapshot>))]
+internal sealed class PendingEntries : CopiedList<PendingSnapshot>, ICopiedListOf<PendingEntries, PendingSnapshot>
 {
-    private List<PendingSnapshot>? _list;
-    private readonly RecordCopy? _copy;
     private readonly int _outputs;
 
     /// <summary>Entries given as a list.</summary>
-    public PendingEntries(List<PendingSnapshot> list) => _list = list;
+    public PendingEntries(List<PendingSnapshot> list)
+        : base(list)
+    {
+    }
 
     private PendingEntries(RecordCopy copy, int outputs)
-    {
-        _copy = copy;
-        _outputs = outputs;
-    }
+        : base(copy) => _outputs = outputs;
+
+    /// <inheritdoc />
+    public static PendingEntries Of(List<PendingSnapshot> list) => new(list);
 
     /// <summary>
     /// Copies <paramref name="store"/>'s records into the array <paramref name="pool"/> keeps
@@ -40,17 +36,8 @@ internal sealed class PendingEntries
         return new PendingEntries(new RecordCopy(records, length, store.Count, pool), outputs);
     }
 
-    /// <summary>True while the entries are the copied records (not yet made a list).</summary>
-    public bool IsCopy => _list is null;
-
-    /// <summary>The entries as a list, decoded from the copy on first use.</summary>
-    public List<PendingSnapshot> List => _list ??= Decode();
-
-    /// <summary>Gives the copy's array back to its engine; the entries may not be used after.</summary>
-    public void Release() => _copy?.Release();
-
     /// <summary>The entry a snapshot holds for the decoded record <paramref name="e"/>.</summary>
-    public static PendingSnapshot Of(PendingPrediction e, int outputs) => new()
+    public static PendingSnapshot Entry(PendingPrediction e, int outputs) => new()
     {
         Id = e.Id!,
         Model = e.Model,
@@ -70,21 +57,18 @@ internal sealed class PendingEntries
     };
 
     /// <summary>
-    /// Writes the copied records as the JSON array the list of <see cref="Of"/> each gives with
-    /// the snapshot's serializer options (snake-case names, named floating-point literals, a
-    /// left-out p and prior_p when 0 and left-out nulls but for served), one record decoded at a
-    /// time into one scratch instance.
+    /// Writes the records as the JSON array the list of <see cref="Entry"/>
+    /// each gives with the snapshot's serializer options, one record decoded at a time into one
+    /// scratch instance, the id written from its key's bytes (<see cref="PendingJson"/>).
     /// </summary>
-    public void WriteCopy(Utf8JsonWriter writer)
+    protected override void WriteCopy(Utf8JsonWriter writer, ReadOnlySpan<byte> records, int count)
     {
-        var records = _copy!.Records;
         var e = new PendingPrediction();
         writer.WriteStartArray();
         int pos = 0;
-        for (int i = 0; i < _copy.Count; i++)
+        for (int i = 0; i < count; i++)
         {
             var record = records[pos..];
-            // The id is written from its key's bytes: no string an entry on the writer thread either.
             int size = PendingRecord.Read(record, e, withId: false);
             PendingJson.Write(writer, record[..IdKey.Length(record)], e, _outputs);
             pos += size;
@@ -92,16 +76,16 @@ internal sealed class PendingEntries
         writer.WriteEndArray();
     }
 
-    private List<PendingSnapshot> Decode()
+    /// <inheritdoc />
+    protected override List<PendingSnapshot> Decode(ReadOnlySpan<byte> records, int count)
     {
-        var records = _copy!.Records;
-        var list = new List<PendingSnapshot>(_copy.Count);
+        var list = new List<PendingSnapshot>(count);
         var e = new PendingPrediction();
         int pos = 0;
-        for (int i = 0; i < _copy.Count; i++)
+        for (int i = 0; i < count; i++)
         {
             pos += PendingRecord.Read(records[pos..], e, withId: true);
-            list.Add(Of(e, _outputs));
+            list.Add(Entry(e, _outputs));
         }
         return list;
     }

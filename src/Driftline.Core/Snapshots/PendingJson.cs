@@ -26,7 +26,7 @@ internal static class PendingJson
     private static readonly JsonEncodedText Values = JsonEncodedText.Encode("values");
     private static readonly JsonEncodedText Segment = JsonEncodedText.Encode("segment");
 
-    /// <summary>Writes <see cref="PendingEntries.Of"/>(<paramref name="e"/>, <paramref name="outputs"/>), its id spelt by <paramref name="key"/>, as the serializer would.</summary>
+    /// <summary>Writes <see cref="PendingEntries.Entry"/>(<paramref name="e"/>, <paramref name="outputs"/>), its id spelt by <paramref name="key"/>, as the serializer would.</summary>
     public static void Write(Utf8JsonWriter writer, ReadOnlySpan<byte> key, PendingPrediction e, int outputs)
     {
         writer.WriteStartObject();
