@@ -20,6 +20,44 @@ public sealed class CheckpointStoreTests
     };
 
     [Fact]
+    public void Serialize_SnapshotOfCopiedStores_SameBytesAsItsListsAndReadsBack()
+    {
+        // A fed engine holds waiting and graded predictions and inline-labelled ids; its snapshot
+        // holds them as copies of the stores' records. The reference is the same checkpoint with
+        // those made lists, which the checkpoint context's own metadata writes (as every build
+        // before the copies did).
+        var engine = new ScoringEngine(new DriftlineOptions(), new NullSink());
+        var parser = new Driftline.Core.Events.EventParser();
+        var record = new Driftline.Core.Events.ParsedRecord();
+        for (int i = 0; i < 500; i++)
+        {
+            string label = i % 2 == 0 ? $",\"label\":{i % 3 % 2}" : "";
+            Assert.True(parser.TryParse(System.Text.Encoding.UTF8.GetBytes($"{{\"id\":\"é{i}\",\"features\":{{\"x\":{i % 9},\"zone\":\"z{i % 4}\"}}{label}}}"), record, out _));
+            engine.Process(record);
+            if (i >= 20 && i % 4 == 1)
+            {
+                Assert.True(parser.TryParse(System.Text.Encoding.UTF8.GetBytes($"{{\"id\":\"é{i - 20}\",\"label\":1}}"), record, out _));
+                engine.Process(record);
+            }
+        }
+        var copied = Checkpoint(3);
+        copied.Snapshot = engine.Snapshot();
+        var listed = Checkpoint(3);
+        listed.WrittenAt = copied.WrittenAt;
+        listed.Snapshot = engine.Snapshot();
+        Assert.Equal(engine.Pending.Count, listed.Snapshot.Pending.Count);
+        Assert.Equal(engine.InlineLabelled.Count, listed.Snapshot.InlineLabelled!.Count);
+
+        byte[] json = CheckpointStore.Serialize(copied);
+
+        Assert.Equal(CheckpointStore.Serialize(listed), json);
+        var read = CheckpointStore.Parse(new MemoryStream(json), "test");
+        Assert.Equal(listed.Snapshot.Pending.Select(p => p.Id), read.Snapshot.Pending.Select(p => p.Id));
+        Assert.Equal(listed.Snapshot.InlineLabelled, read.Snapshot.InlineLabelled);
+        Assert.Contains(read.Snapshot.Pending, p => !p.Labelled && p.Slots is { Length: > 0 });
+    }
+
+    [Fact]
     public void Serialize_SourceGeneratedContext_WritesTheReflectionSerializersBytes()
     {
         // Reference: System.Text.Json's reflection serializer with the options the store used
