@@ -677,37 +677,42 @@ internal sealed class ScoringEngine
         return snapshot;
     }
 
-    private EngineSnapshot Capture() => new()
+    private EngineSnapshot Capture()
     {
-        Options = _options,
-        Models = _models.Select(m => new ModelSnapshot
+        // The whole model's channel once: its windows' contents are copied, which three calls did three times.
+        var main = ExportChannel(_channels[0]);
+        return new EngineSnapshot
         {
-            Key = m.Key,
-            Learner = m.Learner.Export(),
-            Scaling = m.Featurizer.Scaler.Export().ToList(),
-            PriorCount = m.Prior.Count,
-            PriorPositives = m.Prior.Positives,
-            PriorClassCounts = ClassNames is null ? null : m.Prior.ClassCounts.ToArray(),
-            Scored = m.Scored,
-            Recalibration = m.Recalibration?.Export(),
-        }).ToList(),
-        // One block copy of the store's records into the array kept for it, written to JSON from there.
-        PendingEntries = PendingEntries.Copy(Pending, _outputs, _pendingCopies),
-        Segments = _segments?.Export(),
-        InlineLabelledEntries = RecentIdEntries.Copy(InlineLabelled, _inlineCopies),
-        ExpiredLabels = Pending.Expired,
-        Windows = ExportChannel(_channels[0]).Windows,
-        TimeWindows = ExportChannel(_channels[0]).TimeWindows,
-        Totals = Totals.ToState(),
-        PriorTotals = PriorTotals.ToState(),
-        Rules = ExportChannel(_channels[0]).Rules,
-        Classes = ClassNames is null ? null : _channels.Skip(1).Select(ExportChannel).ToList(),
-        TopLabel = TopLabel?.ToState(),
-        TopLabelWindow = TopLabelWindow?.ToArray(),
-        Confusion = _confusion?.ToArray(),
-        Counters = Counters.Copy(),
-        ClockTicks = _clockTicks,
-    };
+            Options = _options,
+            Models = _models.Select(m => new ModelSnapshot
+            {
+                Key = m.Key,
+                Learner = m.Learner.Export(),
+                Scaling = m.Featurizer.Scaler.Export().ToList(),
+                PriorCount = m.Prior.Count,
+                PriorPositives = m.Prior.Positives,
+                PriorClassCounts = ClassNames is null ? null : m.Prior.ClassCounts.ToArray(),
+                Scored = m.Scored,
+                Recalibration = m.Recalibration?.Export(),
+            }).ToList(),
+            // One block copy of the store's records into the array kept for it, written to JSON from there.
+            PendingEntries = PendingEntries.Copy(Pending, _outputs, _pendingCopies),
+            Segments = _segments?.Export(),
+            InlineLabelledEntries = RecentIdEntries.Copy(InlineLabelled, _inlineCopies),
+            ExpiredLabels = Pending.Expired,
+            Windows = main.Windows,
+            TimeWindows = main.TimeWindows,
+            Totals = Totals.ToState(),
+            PriorTotals = PriorTotals.ToState(),
+            Rules = main.Rules,
+            Classes = ClassNames is null ? null : _channels.Skip(1).Select(ExportChannel).ToList(),
+            TopLabel = TopLabel?.ToState(),
+            TopLabelWindow = TopLabelWindow?.ToArray(),
+            Confusion = _confusion?.ToArray(),
+            Counters = Counters.Copy(),
+            ClockTicks = _clockTicks,
+        };
+    }
 
     /// <summary>
     /// Creates an engine that continues from <paramref name="snapshot"/>, with the snapshot's
