@@ -6,4 +6,7 @@ internal interface ICopiedListOf<TList, TItem>
 {
     /// <summary>The items of <paramref name="list"/>.</summary>
     static abstract TList Of(List<TItem> list);
+
+    /// <summary>The snapshot property the items are written under, to name an item in an error.</summary>
+    static abstract string JsonName { get; }
 }

@@ -25,6 +25,9 @@ internal sealed class PendingEntries : CopiedList<PendingSnapshot>, ICopiedListO
     /// <inheritdoc />
     public static PendingEntries Of(List<PendingSnapshot> list) => new(list);
 
+    /// <inheritdoc />
+    public static string JsonName => "pending";
+
     /// <summary>
     /// Copies <paramref name="store"/>'s records into the array <paramref name="pool"/> keeps
     /// (<paramref name="outputs"/>: 1 for a binary model, K for a multiclass one).

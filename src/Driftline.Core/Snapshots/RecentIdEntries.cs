@@ -29,6 +29,9 @@ internal sealed class RecentIdEntries : CopiedList<string>, ICopiedListOf<Recent
     /// <inheritdoc />
     public static RecentIdEntries Of(List<string> list) => new(list);
 
+    /// <inheritdoc />
+    public static string JsonName => "inline_labelled";
+
     /// <summary>Copies the keys <paramref name="ids"/> holds into the array <paramref name="pool"/> keeps.</summary>
     public static RecentIdEntries Copy(RecentIds ids, RecordCopyPool pool)
     {
